@@ -1,0 +1,64 @@
+/**
+ * Auth.js configuration (auth-astro): e-mail + password only, argon2id hashes, failed sign-ins
+ * rate-limited per e-mail and per address. Sessions are JWT cookies carrying the user id only.
+ */
+import Credentials from '@auth/core/providers/credentials';
+import { CredentialsSignin } from '@auth/core/errors';
+import { defineConfig } from 'auth-astro';
+import { eq } from 'drizzle-orm';
+import { z } from 'zod';
+import { getDb } from './src/lib/db/client';
+import { users } from './src/lib/db/schema';
+import { verifyPassword } from './src/lib/auth/passwords';
+import { isSignInBlocked, recordSignInAttempt } from './src/lib/auth/rateLimit';
+import { audit } from './src/lib/audit';
+
+class TooManyAttempts extends CredentialsSignin {
+  code = 'too_many_attempts';
+}
+
+const SignInInput = z.object({ email: z.string().trim().toLowerCase().email().max(254), password: z.string().min(1).max(1024) });
+
+function clientIp(request: Request): string {
+  // The Node adapter exposes the socket address through Astro; behind a proxy, the first forwarded hop.
+  return request.headers.get('x-forwarded-for')?.split(',')[0]?.trim() || request.headers.get('x-real-ip') || 'local';
+}
+
+export default defineConfig({
+  secret: process.env.AUTH_SECRET,
+  trustHost: true,
+  session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
+  pages: { signIn: '/signin', error: '/signin' },
+  providers: [
+    Credentials({
+      credentials: { email: { label: 'E-mail' }, password: { label: 'Password', type: 'password' } },
+      async authorize(raw, request) {
+        const parsed = SignInInput.safeParse(raw);
+        if (!parsed.success) return null;
+        const { email, password } = parsed.data;
+        const ip = clientIp(request);
+        const db = await getDb();
+        if (await isSignInBlocked(db, email, ip)) {
+          await audit(db, { action: 'sign_in.blocked', actorEmail: email, ip });
+          throw new TooManyAttempts();
+        }
+        const [user] = await db.select().from(users).where(eq(users.email, email));
+        const ok = !!user?.passwordHash && user.active && (await verifyPassword(user.passwordHash, password));
+        await recordSignInAttempt(db, email, ip, ok);
+        await audit(db, { action: ok ? 'sign_in.succeeded' : 'sign_in.failed', actorId: ok ? user!.id : null, actorEmail: email, ip });
+        if (!ok) return null;
+        return { id: user!.id, email: user!.email, name: user!.name };
+      },
+    }),
+  ],
+  callbacks: {
+    jwt({ token, user }) {
+      if (user?.id) token.uid = user.id;
+      return token;
+    },
+    session({ session, token }) {
+      (session.user as { id?: string }).id = token.uid as string;
+      return session;
+    },
+  },
+});

@@ -1,0 +1,53 @@
+/**
+ * `npm start`: embedded PostgreSQL, S3 fake and SMTP sink on loopback, migrations, demo seed,
+ * build, then the app and one job worker. Ctrl-C stops every child. Data stays in .data/.
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { embeddedSettings } from './lib/env';
+import { startServices } from './lib/services';
+import { createDb } from '../src/lib/db/client';
+import { seed, DEMO_USERS, DEMO_PASSWORD } from './seed';
+
+const log = (m: string) => console.log(`[heightlight] ${m}`);
+
+async function main() {
+  const s = embeddedSettings('start');
+  Object.assign(process.env, s.env);
+  const services = await startServices(s, log);
+  const db = createDb(s.env.DATABASE_URL, 2);
+  await seed(db);
+  await db.$client.end();
+  log('demo data seeded');
+
+  if (process.env.HEIGHTLIGHT_SKIP_BUILD !== '1') {
+    log('building the app (astro build) ...');
+    const b = spawnSync('npx', ['astro', 'build'], { stdio: 'inherit', env: process.env });
+    if (b.status !== 0) throw new Error('astro build failed');
+  }
+  const children: ChildProcess[] = [];
+  children.push(spawn(process.execPath, ['dist/server/entry.mjs'], { stdio: 'inherit', env: process.env }));
+  children.push(spawn('npx', ['tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
+
+  let stopping = false;
+  const stop = async () => {
+    if (stopping) return;
+    stopping = true;
+    log('stopping ...');
+    for (const c of children) c.kill('SIGTERM');
+    await services.stop();
+    process.exit(0);
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+  for (const c of children) c.on('exit', (code) => { if (!stopping) { log(`a child exited (${code}); stopping`); void stop(); } });
+
+  log(`Heightlight is up at ${s.env.PUBLIC_URL}`);
+  log(`demo sign-ins (password "${DEMO_PASSWORD}" for each):`);
+  for (const u of DEMO_USERS) log(`  ${u.role.padEnd(13)} ${u.email}`);
+  log('press Ctrl-C to stop everything');
+}
+
+main().catch((e) => {
+  console.error('[heightlight] start failed:', e instanceof Error ? e.message : e);
+  process.exit(1);
+});

@@ -1,0 +1,80 @@
+/**
+ * `npm test`: throw-away PostgreSQL, s3rver and SMTP sink on other ports and folders, a production
+ * build of the app served on 127.0.0.1, then the type check and every vitest project (unit,
+ * integration, browser). Services stop even when tests fail; the exit code is the tests'.
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { rmSync, existsSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { embeddedSettings } from './lib/env';
+import { startServices } from './lib/services';
+import { createDb } from '../src/lib/db/client';
+import { seed } from './seed';
+
+const log = (m: string) => console.log(`[test] ${m}`);
+
+function ensureChromium() {
+  if (existsSync('/usr/bin/chromium')) return;
+  if (process.getuid?.() !== 0) throw new Error('Chromium is missing: run `sudo apt-get install -y chromium`.');
+  log('installing Chromium from Debian packages ...');
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+  spawnSync('apt-get', ['update', '-qq'], { stdio: 'inherit', env });
+  const r = spawnSync('apt-get', ['install', '-y', '-qq', 'chromium'], { stdio: 'inherit', env });
+  if (r.status !== 0) throw new Error('apt-get install chromium failed');
+}
+
+async function waitForHttp(url: string, timeoutMs: number) {
+  const until = Date.now() + timeoutMs;
+  while (Date.now() < until) {
+    try {
+      const r = await fetch(url);
+      if (r.status < 500) return;
+    } catch {
+      /* not up yet */
+    }
+    await new Promise((r) => setTimeout(r, 300));
+  }
+  throw new Error(`the app did not answer at ${url} within ${timeoutMs / 1000} s`);
+}
+
+async function main() {
+  process.env.HEIGHTLIGHT_DATA_DIR ??= resolve('.test-data');
+  rmSync(process.env.HEIGHTLIGHT_DATA_DIR, { recursive: true, force: true });
+  const s = embeddedSettings('test');
+  Object.assign(process.env, s.env, { NODE_ENV: 'test' });
+  const children: ChildProcess[] = [];
+  let services: Awaited<ReturnType<typeof startServices>> | undefined;
+  let code = 1;
+  try {
+    ensureChromium();
+    services = await startServices(s, log);
+    const db = createDb(s.env.DATABASE_URL, 2);
+    await seed(db);
+    await db.$client.end();
+
+    log('type check (tsc --noEmit) ...');
+    const tsc = spawnSync('npx', ['tsc', '--noEmit', '-p', 'tsconfig.json'], { stdio: 'inherit' });
+    if (tsc.status !== 0) throw new Error('type check failed');
+
+    log('building the app ...');
+    const b = spawnSync('npx', ['astro', 'build'], { stdio: ['ignore', 'ignore', 'inherit'] });
+    if (b.status !== 0) throw new Error('astro build failed');
+    const app = spawn(process.execPath, ['dist/server/entry.mjs'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
+    children.push(app);
+    await waitForHttp(`${s.env.PUBLIC_URL}/signin`, 60_000);
+    log(`app up at ${s.env.PUBLIC_URL}`);
+
+    const args = ['vitest', 'run', ...process.argv.slice(2)];
+    const v = spawnSync('npx', args, { stdio: 'inherit', env: { ...process.env, HEIGHTLIGHT_APP_URL: s.env.PUBLIC_URL } });
+    code = v.status ?? 1;
+  } catch (e) {
+    console.error('[test] setup failed:', e instanceof Error ? e.message : e);
+    code = 1;
+  } finally {
+    for (const c of children) c.kill('SIGTERM');
+    await services?.stop();
+  }
+  process.exit(code);
+}
+
+void main();

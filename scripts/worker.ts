@@ -1,0 +1,24 @@
+/**
+ * `npm run worker`: processes ingestion, detection and linking jobs from the PostgreSQL queue.
+ * Run more of these, on more machines against the same PostgreSQL and S3, to scale out.
+ */
+import { getBoss } from '../src/lib/jobs/boss';
+import { registerHandlers } from '../src/lib/jobs/handlers';
+import { config } from '../src/lib/config';
+
+async function main() {
+  const boss = await getBoss(config().DATABASE_URL);
+  await registerHandlers(boss);
+  console.log('[worker] waiting for jobs');
+  const stop = async () => {
+    await boss.stop({ graceful: true, timeout: 10_000 }).catch(() => undefined);
+    process.exit(0);
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+main().catch((e) => {
+  console.error('[worker] failed to start:', e);
+  process.exit(1);
+});

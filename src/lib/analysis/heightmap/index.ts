@@ -1,0 +1,17 @@
+export { analyzeHeightMap } from './analyzeHeightMap';
+export { capBaseRadiusFromSlice } from './capBaseRadiusFromSlice';
+export { detectVesicles } from './detectVesicles';
+export { levelHeightMap } from './levelHeightMap';
+export { measureVesicle } from './measureVesicle';
+export { otsuHistogramThreshold } from './otsuHistogramThreshold';
+export { otsuThreshold } from './otsuThreshold';
+export { robustSigma } from './robustSigma';
+export type { RobustSigmaResult } from './robustSigma';
+export { robustThreshold } from './robustThreshold';
+export { selectKth } from './selectKth';
+export { selectThreshold } from './selectThreshold';
+export { sphericalCap } from './sphericalCap';
+export { tipBroadenedHalfWidth } from './tipBroadenedHalfWidth';
+export { tipCorrectedBaseRadius } from './tipCorrectedBaseRadius';
+export { validateRaster } from './validateRaster';
+export type * from './types';

@@ -1,0 +1,251 @@
+import { solve, Matrix } from 'ml-matrix';
+import { AnalysisError } from '../errors';
+import type { Raster } from '../types';
+import { robustSigma } from './robustSigma';
+import { selectKth } from './selectKth';
+import type { BackgroundSurface, LevelHeightMapOptions, LevelHeightMapResult } from './types';
+import { validateRaster } from './validateRaster';
+
+/** Exponents (a, b) of the basis u^a·v^b, in the order of the reported coefficients. */
+const BASIS_PLANE: readonly (readonly [number, number])[] = [[0, 0], [1, 0], [0, 1]];
+const BASIS_POLY2: readonly (readonly [number, number])[] = [[0, 0], [1, 0], [0, 1], [2, 0], [1, 1], [0, 2]];
+/** Floor of the robust sigma so a noise-free map still separates particles from a flat background (nm). */
+const MIN_SIGMA_NM = 1e-6;
+
+/**
+ * Level an AFM height map: least-squares background surface (plane or second-order polynomial)
+ * fitted on background pixels only, then scan-line alignment (each row shifted by the median of
+ * its background pixels). Particles are excluded iteratively: residuals above
+ * median + k·(1.4826·MAD) are dropped, grown by a few px, and the fit is repeated until the
+ * background mask stops changing. The input raster is not modified.
+ *
+ * @param raster - raw heights (nm), row-major
+ * @param options - see {@link LevelHeightMapOptions}
+ * @returns the levelled raster (background median 0 nm) and a report of every correction
+ * @throws AnalysisError `non_finite_height` if a sample is NaN or infinite
+ * @throws AnalysisError `insufficient_background` if too few pixels remain to fit the surface
+ * @throws RangeError for a malformed raster or options
+ * @see Legendre AM 1805 / Gauss CF 1809: least squares (normal equations), textbook
+ * @see Hampel FR 1974, J Am Stat Assoc 69:383–393 (MAD as a robust scale)
+ */
+export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = {}): LevelHeightMapResult {
+  const {
+    surface = 'plane', alignRows = true, exclusionK = 3, exclusionDilationPx = 2, maxIterations = 8,
+    convergenceFraction = 0.0005, minBackgroundPerRow = 8,
+  } = options;
+  validateRaster(raster);
+  if (!(exclusionK > 0)) throw new RangeError(`exclusionK must be > 0, got ${exclusionK}`);
+  if (!Number.isInteger(maxIterations) || maxIterations < 1) throw new RangeError(`maxIterations must be an integer ≥ 1, got ${maxIterations}`);
+  if (!Number.isInteger(exclusionDilationPx) || exclusionDilationPx < 0) throw new RangeError(`exclusionDilationPx must be an integer ≥ 0, got ${exclusionDilationPx}`);
+  const { data, width, height } = raster;
+  const n = width * height;
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(data[i])) {
+      throw new AnalysisError('non_finite_height', `Height at pixel (${i % width}, ${Math.floor(i / width)}) is ${data[i]}; fill or crop missing data before levelling.`, { x: i % width, y: Math.floor(i / width) });
+    }
+  }
+  const basis = surface === 'poly2' ? BASIS_POLY2 : BASIS_PLANE;
+  const xc = (width - 1) / 2;
+  const yc = (height - 1) / 2;
+  const sx = Math.max(xc, 1);
+  const sy = Math.max(yc, 1);
+
+  const background = new Uint8Array(n).fill(1);
+  const excluded = new Uint8Array(n);
+  const rowOffsetsNm = new Float64Array(height);
+  const residual = new Float32Array(n);
+  const scratch = new Float32Array(n);
+  const rowBuf = new Float64Array(width);
+  let coefficients: Float64Array = new Float64Array(basis.length);
+  let median = 0;
+  let sigma = 0;
+  let nbIterations = 0;
+  let converged = false;
+
+  for (let iter = 0; iter < maxIterations; iter++) {
+    nbIterations = iter + 1;
+    // fit the surface to data − row offsets on the background
+    coefficients = fitSurface(data, width, height, background, rowOffsetsNm, basis, xc, yc, sx, sy);
+    evaluateResidual(data, width, height, coefficients, basis, xc, yc, sx, sy, residual);
+    // align scan lines on the background
+    if (alignRows) {
+      for (let y = 0; y < height; y++) {
+        let m = 0;
+        const row = y * width;
+        for (let x = 0; x < width; x++) if (background[row + x]) rowBuf[m++] = residual[row + x];
+        rowOffsetsNm[y] = m >= minBackgroundPerRow ? medianInPlace(rowBuf, m) : 0;
+        const off = rowOffsetsNm[y];
+        for (let x = 0; x < width; x++) residual[row + x] -= off;
+      }
+    }
+    // robust scale of the background, new exclusion mask
+    ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch));
+    const cut = median + exclusionK * Math.max(sigma, MIN_SIGMA_NM);
+    excluded.fill(0);
+    for (let i = 0; i < n; i++) if (residual[i] > cut) excluded[i] = 1;
+    dilateSquare(excluded, width, height, exclusionDilationPx, scratch);
+    let changes = 0;
+    let nbBackground = 0;
+    for (let i = 0; i < n; i++) {
+      const b = excluded[i] ? 0 : 1;
+      if (b !== background[i]) changes++;
+      nbBackground += b;
+    }
+    if (nbBackground < Math.max(3 * basis.length, 16)) {
+      throw new AnalysisError('insufficient_background', `Only ${nbBackground} background pixels remain after excluding particles; the map needs flat substrate around the particles (or a larger exclusionK).`, { nbBackground, exclusionK });
+    }
+    for (let i = 0; i < n; i++) background[i] = excluded[i] ? 0 : 1;
+    if (changes < convergenceFraction * n) {
+      converged = true;
+      break;
+    }
+  }
+
+  // final statistics on the final mask; put the background median at 0
+  ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch));
+  const levelledData = new Float32Array(n);
+  for (let i = 0; i < n; i++) levelledData[i] = residual[i] - median;
+  let nbBackgroundPx = 0;
+  for (let i = 0; i < n; i++) nbBackgroundPx += background[i];
+
+  const c = (a: number, b: number): number => {
+    const j = basis.findIndex(([p, q]) => p === a && q === b);
+    return j < 0 ? 0 : coefficients[j];
+  };
+  const surfaceReport: BackgroundSurface = {
+    offsetNm: c(0, 0) + median,
+    slopeXNmPerPx: c(1, 0) / sx,
+    slopeYNmPerPx: c(0, 1) / sy,
+    curvXXNmPerPx2: c(2, 0) / (sx * sx),
+    curvXYNmPerPx2: c(1, 1) / (sx * sy),
+    curvYYNmPerPx2: c(0, 2) / (sy * sy),
+  };
+  return {
+    levelled: { data: levelledData, width, height },
+    surface: surfaceReport,
+    rowOffsetsNm,
+    backgroundSigmaNm: sigma,
+    backgroundMask: background,
+    diagnostics: { nbIterations, converged, nbBackgroundPx, backgroundFraction: nbBackgroundPx / n },
+  };
+}
+
+/**
+ * Least squares of z − rowOffset on u^a v^b over background pixels, u = (x − xc)/sx, v = (y − yc)/sy.
+ * Accumulates per-row power sums of u so the pass over the pixels costs a few flops each.
+ */
+function fitSurface(
+  data: Float32Array, width: number, height: number, background: Uint8Array, rowOffsetsNm: Float64Array,
+  basis: readonly (readonly [number, number])[], xc: number, yc: number, sx: number, sy: number,
+): Float64Array {
+  // moments[a][b] = Σ u^a v^b (a + b ≤ 4); zMoments[a][b] = Σ z u^a v^b (a + b ≤ 2)
+  const moments = Array.from({ length: 5 }, () => new Float64Array(5));
+  const zMoments = Array.from({ length: 3 }, () => new Float64Array(3));
+  const s = new Float64Array(5);
+  const t = new Float64Array(3);
+  for (let y = 0; y < height; y++) {
+    s.fill(0);
+    t.fill(0);
+    const row = y * width;
+    const off = rowOffsetsNm[y];
+    for (let x = 0; x < width; x++) {
+      if (!background[row + x]) continue;
+      const u = (x - xc) / sx;
+      const z = data[row + x] - off;
+      const u2 = u * u;
+      s[0] += 1; s[1] += u; s[2] += u2; s[3] += u2 * u; s[4] += u2 * u2;
+      t[0] += z; t[1] += z * u; t[2] += z * u2;
+    }
+    if (s[0] === 0) continue;
+    const v = (y - yc) / sy;
+    let vb = 1;
+    for (let b = 0; b <= 4; b++) {
+      for (let a = 0; a + b <= 4; a++) moments[a][b] += s[a] * vb;
+      if (b <= 2) for (let a = 0; a + b <= 2; a++) zMoments[a][b] += t[a] * vb;
+      vb *= v;
+    }
+  }
+  const p = basis.length;
+  const normal = new Matrix(p, p);
+  const rhs = new Matrix(p, 1);
+  for (let i = 0; i < p; i++) {
+    const [ai, bi] = basis[i];
+    rhs.set(i, 0, zMoments[ai][bi]);
+    for (let j = 0; j < p; j++) {
+      const [aj, bj] = basis[j];
+      normal.set(i, j, moments[ai + aj][bi + bj]);
+    }
+  }
+  const solution = solve(normal, rhs);
+  const out = new Float64Array(p);
+  for (let i = 0; i < p; i++) {
+    out[i] = solution.get(i, 0);
+    if (!Number.isFinite(out[i])) {
+      throw new AnalysisError('insufficient_background', 'The background pixels do not constrain the surface (degenerate layout); try surface "plane".', { surface: p === 3 ? 'plane' : 'poly2' });
+    }
+  }
+  return out;
+}
+
+/** residual = data − surface (row offsets not applied). */
+function evaluateResidual(
+  data: Float32Array, width: number, height: number, c: Float64Array,
+  basis: readonly (readonly [number, number])[], xc: number, yc: number, sx: number, sy: number, out: Float32Array,
+): void {
+  const poly2 = basis.length === 6;
+  for (let y = 0; y < height; y++) {
+    const v = (y - yc) / sy;
+    // z = A + B·u + C·u², with the v-terms folded into A and B
+    const A = c[0] + c[2] * v + (poly2 ? c[5] * v * v : 0);
+    const B = c[1] + (poly2 ? c[4] * v : 0);
+    const C = poly2 ? c[3] : 0;
+    const row = y * width;
+    for (let x = 0; x < width; x++) {
+      const u = (x - xc) / sx;
+      out[row + x] = data[row + x] - (A + u * (B + C * u));
+    }
+  }
+}
+
+/** Median of buf[0..m), reordering buf. */
+function medianInPlace(buf: Float64Array, m: number): number {
+  const half = m >> 1;
+  const upper = selectKth(buf, m, half);
+  if (m % 2 === 1) return upper;
+  let lower = -Infinity;
+  for (let i = 0; i < half; i++) if (buf[i] > lower) lower = buf[i];
+  return (lower + upper) / 2;
+}
+
+/** In-place binary dilation by a (2r+1)² square, separable; `tmp` is scratch of length ≥ mask.length. */
+function dilateSquare(mask: Uint8Array, width: number, height: number, r: number, tmp: Float32Array): void {
+  if (r === 0) return;
+  // horizontal: tmp = row-wise dilation of mask
+  for (let y = 0; y < height; y++) {
+    const row = y * width;
+    let last = -Infinity; // last set column seen, scanning left to right
+    for (let x = 0; x < width; x++) tmp[row + x] = 0;
+    for (let x = 0; x < width; x++) {
+      if (mask[row + x]) last = x;
+      if (x - last <= r) tmp[row + x] = 1;
+    }
+    last = Infinity;
+    for (let x = width - 1; x >= 0; x--) {
+      if (mask[row + x]) last = x;
+      if (last - x <= r) tmp[row + x] = 1;
+    }
+  }
+  // vertical: mask = column-wise dilation of tmp
+  for (let x = 0; x < width; x++) {
+    let last = -Infinity;
+    for (let y = 0; y < height; y++) {
+      if (tmp[y * width + x]) last = y;
+      mask[y * width + x] = y - last <= r ? 1 : 0;
+    }
+    last = Infinity;
+    for (let y = height - 1; y >= 0; y--) {
+      if (tmp[y * width + x]) last = y;
+      if (last - y <= r) mask[y * width + x] = 1;
+    }
+  }
+}

@@ -1,0 +1,4 @@
+export { createRng } from './random';
+export type { Rng } from './random';
+export { makeHeightScene } from './makeHeightScene';
+export type * from './types';

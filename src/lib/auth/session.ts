@@ -1,0 +1,60 @@
+/**
+ * The server-side guard used by every page and API route. The session cookie only carries the
+ * user id; role and active flag are read from the database on each request, so a change by an
+ * admin takes effect at once.
+ */
+import { eq, and } from 'drizzle-orm';
+import { getSession } from 'auth-astro/server';
+import type { Db } from '../db/client';
+import { users, studyMembers, studies } from '../db/schema';
+import { HttpError, unauthorized, forbidden } from '../http/errors';
+import { canInStudy, type Action, type MemberRole, type Role, type SessionUser } from './permissions';
+
+/** Reads the session cookie and loads the active user it names, or null. */
+export async function loadSessionUser(db: Db, request: Request): Promise<SessionUser | null> {
+  const session = await getSession(request);
+  const id = (session?.user as { id?: string } | undefined)?.id;
+  if (!id) return null;
+  const [row] = await db
+    .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active })
+    .from(users)
+    .where(eq(users.id, id));
+  if (!row || !row.active) return null;
+  return { id: row.id, email: row.email, name: row.name, role: row.role };
+}
+
+/** The signed-in user, or 401. */
+export function requireUser(locals: App.Locals): SessionUser {
+  if (!locals.user) throw unauthorized();
+  return locals.user;
+}
+
+/** The signed-in user with one of `roles`, or 401/403. */
+export function requireRole(locals: App.Locals, roles: Role[], what = 'do this'): SessionUser {
+  const user = requireUser(locals);
+  if (!roles.includes(user.role)) throw forbidden(what);
+  return user;
+}
+
+/**
+ * The signed-in user allowed to do `action` in study `studyId`: 401 anonymous, 404 no such study,
+ * 403 not a member or not allowed. Returns the user and their study role (null for an admin who is not a member).
+ */
+export async function requireStudyAction(
+  db: Db,
+  locals: App.Locals,
+  studyId: string,
+  action: Action,
+  what = 'do this in this study',
+): Promise<{ user: SessionUser; membership: MemberRole | null }> {
+  const user = requireUser(locals);
+  const [row] = await db
+    .select({ id: studies.id, role: studyMembers.role })
+    .from(studies)
+    .leftJoin(studyMembers, and(eq(studyMembers.studyId, studies.id), eq(studyMembers.userId, user.id)))
+    .where(eq(studies.id, studyId));
+  if (!row) throw new HttpError(404, 'not_found', 'That study does not exist.');
+  const membership = row.role ?? null;
+  if (!canInStudy(user, membership, action)) throw forbidden(what);
+  return { user, membership };
+}

@@ -1,0 +1,110 @@
+import { pgTable, pgEnum, uuid, text, timestamp, integer, real, jsonb, bigserial, boolean, index, unique } from 'drizzle-orm/pg-core';
+import { users } from './users';
+import { fields } from './fields';
+import { samples } from './studies';
+
+export const transformModelEnum = pgEnum('transform_model', ['affine', 'similarity']);
+export const reviewDecisionEnum = pgEnum('review_decision', ['approved', 'sent_back']);
+
+/** Every saved registration of a field is kept; the highest version is the accepted one. */
+export const registrations = pgTable(
+  'registrations',
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    fieldId: uuid().notNull().references(() => fields.id, { onDelete: 'cascade' }),
+    version: integer().notNull(),
+    model: transformModelEnum().notNull(),
+    /** [{ afm: {x,y}, fl: {x,y} }] in pixels of each image. */
+    pairs: jsonb().$type<{ afm: { x: number; y: number }; fl: { x: number; y: number } }[]>().notNull(),
+    /** flFromAfm as [a, b, c, d, e, f]. */
+    flFromAfm: jsonb().$type<number[]>().notNull(),
+    freNm: real(),
+    treNm: real(),
+    createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+    createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [unique().on(t.fieldId, t.version), index().on(t.fieldId), index().on(t.createdBy)],
+);
+
+/** One linking of a field: the settings and transform that produced its vesicle rows. */
+export const linkRuns = pgTable(
+  'link_runs',
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    fieldId: uuid().notNull().references(() => fields.id, { onDelete: 'cascade' }),
+    registrationId: uuid().references(() => registrations.id, { onDelete: 'set null' }),
+    settings: jsonb().$type<Record<string, unknown>>().notNull(),
+    summary: jsonb().$type<Record<string, unknown>>().notNull(),
+    current: boolean().notNull().default(true),
+    createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index().on(t.fieldId), index().on(t.registrationId)],
+);
+
+/**
+ * One row per detected vesicle. `markerBits` holds the positive calls (bit i = panel channel i),
+ * so per-sample counts are SQL aggregates; `sampleId` is repeated here for those aggregates.
+ */
+export const vesicles = pgTable(
+  'vesicles',
+  {
+    id: bigserial({ mode: 'number' }).primaryKey(),
+    linkRunId: uuid().notNull().references(() => linkRuns.id, { onDelete: 'cascade' }),
+    fieldId: uuid().notNull().references(() => fields.id, { onDelete: 'cascade' }),
+    sampleId: uuid().notNull().references(() => samples.id, { onDelete: 'cascade' }),
+    index: integer().notNull(),
+    xAfmPx: real().notNull(),
+    yAfmPx: real().notNull(),
+    xFlPx: real(),
+    yFlPx: real(),
+    heightNm: real().notNull(),
+    meanHeightNm: real().notNull(),
+    areaNm2: real().notNull(),
+    diameterNm: real().notNull(),
+    volumeNm3: real().notNull(),
+    circularity: real().notNull(),
+    capRadiusNm: real(),
+    contactAngleDeg: real(),
+    sphereDiameterNm: real(),
+    outOfFrame: boolean().notNull().default(false),
+    markerBits: integer().notNull().default(0),
+    phenotype: text().notNull().default(''),
+    /** Per channel: { intensity, snr, amplitude, spotDistancePx } in panel order. */
+    markers: jsonb().$type<{ intensity: number; snr: number; amplitude: number; spotDistancePx: number | null }[]>().notNull(),
+  },
+  (t) => [
+    index().on(t.linkRunId),
+    index().on(t.fieldId, t.index),
+    index().on(t.sampleId, t.markerBits),
+    index().on(t.sampleId, t.heightNm),
+    index().on(t.sampleId, t.diameterNm),
+  ],
+);
+
+export const fieldReviews = pgTable(
+  'field_reviews',
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    fieldId: uuid().notNull().references(() => fields.id, { onDelete: 'cascade' }),
+    decision: reviewDecisionEnum().notNull(),
+    comment: text().notNull().default(''),
+    linkRunId: uuid().references(() => linkRuns.id, { onDelete: 'set null' }),
+    reviewedBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+    reviewedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index().on(t.fieldId), index().on(t.linkRunId), index().on(t.reviewedBy)],
+);
+
+/** A sample's released results. Each release freezes the link runs it covers. */
+export const releases = pgTable(
+  'releases',
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    sampleId: uuid().notNull().references(() => samples.id, { onDelete: 'cascade' }),
+    version: integer().notNull(),
+    linkRunIds: jsonb().$type<string[]>().notNull(),
+    releasedBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+    releasedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [unique().on(t.sampleId, t.version), index().on(t.sampleId), index().on(t.releasedBy)],
+);

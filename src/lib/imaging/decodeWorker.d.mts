@@ -1,0 +1,117 @@
+// Types for decodeWorker.mjs (plain JavaScript so that a worker thread can run it without a TypeScript loader).
+
+/** Error codes thrown by the imaging layer (snake_case, STYLE.md §2). */
+export type ImagingErrorCode =
+  | 'not_tiff'
+  | 'truncated'
+  | 'corrupt'
+  | 'unsupported_compression'
+  | 'bad_sample_format'
+  | 'too_large'
+  | 'timeout'
+  | 'worker_failed';
+
+/** Domain failure of the imaging layer; `message` is written for the person who uploaded the file. */
+export declare class ImagingError extends Error {
+  constructor(code: ImagingErrorCode, message: string, details?: Record<string, unknown>);
+  readonly code: ImagingErrorCode;
+  readonly details: Record<string, unknown> | undefined;
+}
+
+/** Limits checked against the declared sizes before any pixel is decoded. */
+export interface TiffLimits {
+  /** Largest file accepted (bytes). @default 1 GiB */
+  maxFileBytes?: number;
+  /** Largest width × height of one page (pixels). @default 16384 × 16384 */
+  maxPixels?: number;
+  /** Largest memory needed to decode all pages: Σ width × height × (bytes per sample + 4) (bytes). @default 1 GiB */
+  maxDecodedBytes?: number;
+  /** Largest number of image directories (pages) in the file. @default 256 */
+  maxPages?: number;
+}
+
+export declare const DEFAULT_LIMITS: Readonly<Required<TiffLimits>>;
+
+export type SampleFormat = 'uint' | 'int' | 'float';
+
+/** One image directory of the file. */
+export interface TiffPageInfo {
+  /** Position of the IFD in the file's chain (0-based), including skipped previews. */
+  ifdIndex: number;
+  width: number;
+  height: number;
+  bitsPerSample: number;
+  sampleFormat: SampleFormat;
+  samplesPerPixel: number;
+  /** TIFF Compression code (1 none, 5 LZW, 8/32946 Deflate, 32773 PackBits). */
+  compression: number;
+  compressionName: string;
+  layout: 'strips' | 'tiles';
+  /** NewSubfileType bit 0: a reduced-resolution preview, not decoded. */
+  reducedResolution: boolean;
+}
+
+/** What inspectTiff learned from the file's structure. */
+export interface TiffMetadata {
+  byteOrder: 'little-endian' | 'big-endian';
+  bigTiff: boolean;
+  /** Width of the first full-resolution page (pixels). */
+  width: number;
+  /** Height of the first full-resolution page (pixels). */
+  height: number;
+  bitsPerSample: number;
+  sampleFormat: SampleFormat;
+  samplesPerPixel: number;
+  /** Compression name of the first page ('none', 'LZW', 'Deflate', 'PackBits'). */
+  compression: string;
+  /** Number of full-resolution pages (channels of a stack). */
+  pageCount: number;
+  pages: TiffPageInfo[];
+  /** Pixel size (nm) along x and y, or null when the file does not state one. */
+  pixelSizeNm: { x: number; y: number } | null;
+  pixelSizeSource: 'ome-xml' | 'resolution-tags' | null;
+  /** ImageDescription of the first IFD (OME-XML in OME-TIFF), or null. */
+  imageDescription: string | null;
+  /** Memory decoding will need (bytes), as compared with maxDecodedBytes. */
+  decodedBytes: number;
+  /** Non-fatal findings for the user (ignored pixel size, skipped previews). */
+  warnings: string[];
+}
+
+/** One decoded page, row-major, values as stored in the file (nm for height maps, counts for fluorescence). */
+export interface DecodedPage {
+  data: Float32Array;
+  width: number;
+  height: number;
+}
+
+export interface DecodedTiff {
+  /** Full-resolution pages in file order; in a multi-page stack each page is one channel. */
+  pages: DecodedPage[];
+  meta: TiffMetadata;
+}
+
+/**
+ * Checks the signature, walks the IFD chain defensively and reads the metadata, without decoding pixels.
+ * Declared sizes are compared with `limits` before anything proportional to them is allocated.
+ * @param bytes - the whole file (the buffer is not modified)
+ * @param limits - size limits; missing fields take DEFAULT_LIMITS
+ * @returns the file's metadata, pixel size in nm
+ * @throws ImagingError not_tiff, truncated, corrupt, unsupported_compression, bad_sample_format, too_large
+ * @see TIFF 6.0 specification (Adobe, 1992); OME-TIFF specification
+ */
+export declare function inspectTiff(bytes: Uint8Array | ArrayBuffer, limits?: TiffLimits): TiffMetadata;
+
+/**
+ * Decodes every full-resolution page (8/16/32-bit int or uint, 32/64-bit float; none, LZW, Deflate or
+ * PackBits compression) to Float32Array with geotiff, after inspectTiff accepted the file. Runs in the
+ * calling thread: use decodeInWorker for files from users.
+ * @param bytes - the whole file (the buffer is not modified)
+ * @param limits - size limits; missing fields take DEFAULT_LIMITS
+ * @returns the pages and the metadata
+ * @throws ImagingError with the codes of inspectTiff; corrupt when the pixel data cannot be decoded
+ */
+export declare function decodeTiff(bytes: Uint8Array | ArrayBuffer, limits?: TiffLimits): Promise<DecodedTiff>;
+
+/** workerData.kind that makes decodeWorker.mjs act as a decoding worker. */
+export declare const WORKER_KIND: string;

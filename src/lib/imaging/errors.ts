@@ -1,0 +1,1 @@
+export { ImagingError, type ImagingErrorCode } from './decodeWorker.mjs';

@@ -1,0 +1,9 @@
+// Image-file layer: TIFF inspection/decoding (in process or sandboxed), a TIFF writer, colour mapping and Deep Zoom tiles.
+export { inspectTiff, decodeTiff, DEFAULT_LIMITS } from './decodeWorker.mjs';
+export { ImagingError } from './errors';
+export { decodeInWorker } from './decodeInWorker';
+export { writeTiff } from './writeTiff';
+export { colourMapHeight, VIRIDIS_RGB } from './colourMapHeight';
+export { contrastFromPercentiles } from './contrastFromPercentiles';
+export { buildDeepZoom, deepZoomLevels } from './buildDeepZoom';
+export type * from './types';

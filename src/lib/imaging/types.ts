@@ -1,0 +1,8 @@
+export type {
+  TiffLimits, TiffMetadata, TiffPageInfo, DecodedPage, DecodedTiff, SampleFormat,
+} from './decodeWorker.mjs';
+export type { TiffPageInput, WriteTiffOptions } from './writeTiff';
+export type { Raster, ColourMapOptions, ColourMapResult, ColourBarStop } from './colourMapHeight';
+export type { ContrastResult } from './contrastFromPercentiles';
+export type { DeepZoomOptions, DeepZoomLevel, DeepZoomTile, DeepZoomResult } from './buildDeepZoom';
+export type { DecodeInWorkerOptions } from './decodeInWorker';
