@@ -9,6 +9,8 @@ const allowedHosts = ['127.0.0.1', 'localhost', ...(process.env.ALLOWED_HOSTS ??
 
 export default defineConfig({
   output: 'server',
+  // A separate build folder lets several checkouts' test runs build side by side.
+  outDir: process.env.HEIGHTLIGHT_OUT_DIR ?? './dist',
   adapter: node({ mode: 'standalone' }),
   integrations: [react(), auth()],
   // Cross-site form posts are refused (Astro's origin check); it is the default, stated here on purpose.
@@ -16,7 +18,6 @@ export default defineConfig({
   // host name with ALLOWED_HOSTS (comma-separated) at build time.
   security: { checkOrigin: true, allowedDomains: allowedHosts.map((hostname) => ({ hostname })) },
   server: { host: '127.0.0.1' },
-  telemetry: false,
   vite: {
     plugins: [tailwindcss()],
     ssr: { external: ['sharp', '@node-rs/argon2', 'pg', 'pg-boss', 's3rver', 'smtp-server', 'geotiff', 'utif'] },

@@ -12,6 +12,7 @@ import { users } from './src/lib/db/schema';
 import { verifyPassword } from './src/lib/auth/passwords';
 import { isSignInBlocked, recordSignInAttempt } from './src/lib/auth/rateLimit';
 import { audit } from './src/lib/audit';
+import { currentIp } from './src/lib/http/requestContext';
 
 class TooManyAttempts extends CredentialsSignin {
   code = 'too_many_attempts';
@@ -19,10 +20,6 @@ class TooManyAttempts extends CredentialsSignin {
 
 const SignInInput = z.object({ email: z.string().trim().toLowerCase().email().max(254), password: z.string().min(1).max(1024) });
 
-function clientIp(request: Request): string {
-  // The Node adapter exposes the socket address through Astro; behind a proxy, the first forwarded hop.
-  return request.headers.get('x-forwarded-for')?.split(',')[0]?.trim() || request.headers.get('x-real-ip') || 'local';
-}
 
 export default defineConfig({
   secret: process.env.AUTH_SECRET,
@@ -32,11 +29,11 @@ export default defineConfig({
   providers: [
     Credentials({
       credentials: { email: { label: 'E-mail' }, password: { label: 'Password', type: 'password' } },
-      async authorize(raw, request) {
+      async authorize(raw) {
         const parsed = SignInInput.safeParse(raw);
         if (!parsed.success) return null;
         const { email, password } = parsed.data;
-        const ip = clientIp(request);
+        const ip = currentIp();
         const db = await getDb();
         if (await isSignInBlocked(db, email, ip)) {
           await audit(db, { action: 'sign_in.blocked', actorEmail: email, ip });

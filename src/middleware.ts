@@ -5,12 +5,20 @@
 import { defineMiddleware } from 'astro:middleware';
 import { getDb } from './lib/db/client';
 import { loadSessionUser } from './lib/auth/session';
+import { requestContext } from './lib/http/requestContext';
 
 const PUBLIC_PAGES = ['/signin', '/invite/', '/reset', '/favicon.svg', '/_astro/', '/api/auth/', '/api/invitations/', '/api/password-reset'];
 
 const isPublic = (path: string) => PUBLIC_PAGES.some((p) => path === p || path.startsWith(p));
 
-function securityHeaders(res: Response) {
+function securityHeaders(original: Response) {
+  let res = original;
+  try {
+    res.headers.set('X-Content-Type-Options', 'nosniff');
+  } catch {
+    // Some responses (redirects) have immutable headers: copy them.
+    res = new Response(original.body, original);
+  }
   const h = res.headers;
   h.set('X-Content-Type-Options', 'nosniff');
   h.set('Referrer-Policy', 'same-origin');
@@ -55,6 +63,12 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
     const back = encodeURIComponent(path + ctx.url.search);
     return securityHeaders(ctx.redirect(`/signin?next=${back}`, 302));
   }
-  const res = await next();
+  let ip = 'unknown';
+  try {
+    ip = ctx.clientAddress;
+  } catch {
+    /* not available for prerendered routes */
+  }
+  const res = await requestContext.run({ ip }, () => next());
   return securityHeaders(res);
 });

@@ -4,6 +4,8 @@ import { signInAttempts } from '../db/schema';
 
 export const SIGN_IN_WINDOW_MS = 15 * 60 * 1000;
 export const SIGN_IN_MAX_FAILURES = 10;
+/** A whole lab may share one address behind NAT, so the per-address limit is looser. */
+export const SIGN_IN_MAX_FAILURES_PER_ADDRESS = 50;
 
 /** True when this e-mail or this address has had too many failed sign-ins in the window. */
 export async function isSignInBlocked(db: Db, email: string, ip: string, now = new Date()): Promise<boolean> {
@@ -17,7 +19,7 @@ export async function isSignInBlocked(db: Db, email: string, ip: string, now = n
     .select({ n: count() })
     .from(signInAttempts)
     .where(and(eq(signInAttempts.ip, ip), eq(signInAttempts.succeeded, false), gte(signInAttempts.at, since)));
-  return byIp.n >= SIGN_IN_MAX_FAILURES;
+  return byIp.n >= SIGN_IN_MAX_FAILURES_PER_ADDRESS;
 }
 
 export async function recordSignInAttempt(db: Db, email: string, ip: string, succeeded: boolean) {

@@ -305,8 +305,22 @@ function describePage(ctx, ifd, index, limits, fileLength) {
     }
   }
 
+  if (compression !== 1) {
+    // A header can claim any size while its compressed data is a few bytes, which would make the decoder
+    // allocate the claimed size. No valid stream expands beyond: Deflate 1032:1 (zlib technical notes,
+    // from memory), TIFF LZW about 1400:1 (3836 codes of ≤ 12 bits yield ≤ 7.4 MB per table; our
+    // derivation), PackBits 64:1 (2 bytes → 128 bytes, TIFF 6.0 section 9). Ratios rounded up.
+    const maxRatio = compression === 32773 ? 64 : 2048;
+    let compressedBytes = 0;
+    for (let i = 0; i < nBlocks; i++) compressedBytes += counts[i];
+    const declaredBytes = nBlocks * blockW * blockH * bytesPerSample;
+    if (declaredBytes > compressedBytes * maxRatio + 65536) {
+      throw corrupt(`image ${index + 1} declares ${width} × ${height} pixels, more than its ${compressedBytes} bytes of compressed data can hold`);
+    }
+  }
+
   const subfileType = single(ctx, ifd, 254, 0);
-  return {
+  const page = {
     ifdIndex: index,
     width,
     height,
@@ -319,6 +333,8 @@ function describePage(ctx, ifd, index, limits, fileLength) {
     // NewSubfileType bit 0: reduced-resolution version of another image (TIFF 6.0 section 8)
     reducedResolution: (subfileType & 1) === 1,
   };
+  const blocks = { offsets: offsets.slice(0, nBlocks), counts: counts.slice(0, nBlocks), maxBytes: blockW * blockH * bytesPerSample };
+  return { page, blocks };
 }
 
 function decodeXmlEntities(s) {
@@ -395,6 +411,10 @@ function pixelSizeFromResolution(ctx, ifd, warnings) {
  * See decodeWorker.d.mts for the documented signature.
  */
 export function inspectTiff(bytes, limits = DEFAULT_LIMITS) {
+  return inspect(bytes, limits).meta;
+}
+
+function inspect(bytes, limits) {
   const lim = { ...DEFAULT_LIMITS, ...limits };
   const u8 = asBytes(bytes);
   if (u8.length > lim.maxFileBytes) {
@@ -405,7 +425,8 @@ export function inspectTiff(bytes, limits = DEFAULT_LIMITS) {
   }
   const ctx = walkIfds(u8, lim);
   const warnings = [];
-  const all = ctx.ifds.map((ifd, i) => describePage(ctx, ifd, i, lim, u8.length));
+  const described = ctx.ifds.map((ifd, i) => describePage(ctx, ifd, i, lim, u8.length));
+  const all = described.map((d) => d.page);
   const pages = all.filter((p) => !p.reducedResolution);
   if (pages.length === 0) throw corrupt('it only holds reduced-resolution previews');
   if (pages.length < all.length) {
@@ -429,7 +450,7 @@ export function inspectTiff(bytes, limits = DEFAULT_LIMITS) {
     pixelSizeSource = pixelSizeNm ? 'resolution-tags' : null;
   }
   const p0 = pages[0];
-  return {
+  const meta = {
     byteOrder: ctx.le ? 'little-endian' : 'big-endian',
     bigTiff: ctx.big,
     width: p0.width,
@@ -446,6 +467,68 @@ export function inspectTiff(bytes, limits = DEFAULT_LIMITS) {
     decodedBytes,
     warnings,
   };
+  return { meta, blocks: described.map((d) => d.blocks) };
+}
+
+/**
+ * Dry run of TIFF LZW (TIFF 6.0 section 13) that tracks only string lengths, mirroring how geotiff 3.0.5's
+ * decoder reads codes (MSB-first, width grows when the table holds 2^width − 1 entries, missing bits are 0,
+ * end of data acts as EndOfInformation). geotiff's decoder loops forever (and then aborts the whole
+ * process with an array-size error) on codes it never stored: a code ≥ 4093 (its table size) or a code
+ * beyond the next free entry. Found by fuzz.test.ts. This check rejects such streams, and any stream that
+ * would expand beyond maxOut bytes, before geotiff sees them. Cost: one pass over the compressed bytes.
+ */
+function checkLzwStream(data, maxOut, ifdIndex) {
+  const nbBits = data.length * 8;
+  let pos = 0;
+  let width = 9;
+  const next = () => {
+    if (pos >= nbBits) return 257;
+    let code = 0;
+    for (let b = 0; b < width; b++, pos++) {
+      const byte = pos >> 3 < data.length ? data[pos >> 3] : 0;
+      code = (code << 1) | ((byte >> (7 - (pos & 7))) & 1);
+    }
+    return code;
+  };
+  const bad = () => corrupt(`the compressed (LZW) data of image ${ifdIndex + 1} is invalid`);
+  const lengths = new Uint32Array(4096);
+  for (let i = 0; i < 256; i++) lengths[i] = 1;
+  let dictLen = 258;
+  let oldCode = -1;
+  let out = 0;
+  let code = next();
+  while (code !== 257) {
+    if (code === 256) {
+      dictLen = 258;
+      width = 9;
+      code = next();
+      while (code === 256) code = next();
+      if (code === 257) break;
+      if (code > 256) throw bad();
+      out += 1;
+      oldCode = code;
+    } else if (code >= 4093 || code > dictLen) {
+      throw bad();
+    } else if (code < dictLen) {
+      out += lengths[code];
+      if (oldCode !== -1) lengths[dictLen++] = lengths[oldCode] + 1;
+      oldCode = code;
+    } else {
+      if (oldCode === -1) throw bad();
+      lengths[dictLen] = lengths[oldCode] + 1;
+      out += lengths[dictLen++];
+      oldCode = code;
+    }
+    if (out > maxOut) {
+      throw corrupt(`the compressed (LZW) data of image ${ifdIndex + 1} expands to more than the image size`);
+    }
+    if (dictLen + 1 >= 2 ** width) {
+      if (width === 12) oldCode = -1;
+      else width++;
+    }
+    code = next();
+  }
 }
 
 /** Maps anything geotiff throws on damaged data to an ImagingError. */
@@ -463,8 +546,15 @@ function asImagingError(err) {
  * See decodeWorker.d.mts for the documented signature.
  */
 export async function decodeTiff(bytes, limits = DEFAULT_LIMITS) {
-  const meta = inspectTiff(bytes, limits);
+  const { meta, blocks } = inspect(bytes, limits);
   const u8 = asBytes(bytes);
+  for (const page of meta.pages) {
+    if (page.compression !== 5) continue;
+    const { offsets, counts, maxBytes } = blocks[page.ifdIndex];
+    for (let i = 0; i < offsets.length; i++) {
+      checkLzwStream(u8.subarray(offsets[i], offsets[i] + counts[i]), 2 * maxBytes + 1024, page.ifdIndex);
+    }
+  }
   // geotiff needs an ArrayBuffer holding exactly the file; copy so the caller's buffer is never shared
   const buffer = u8.slice().buffer;
   const pages = [];

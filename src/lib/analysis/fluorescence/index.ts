@@ -1,6 +1,5 @@
 export * from './types';
 export * from './psfSigmaPx';
-export * from './gaussianFilter';
 export * from './laplacianOfGaussian';
 export * from './robustNoiseSigma';
 export * from './correctBackground';

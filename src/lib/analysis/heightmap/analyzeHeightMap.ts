@@ -20,7 +20,11 @@ export function analyzeHeightMap(raster: Raster, pixelSizeNm: number, options: A
   const { level = {}, threshold: thresholdOptions = { method: 'robust', k: 3 }, detect = {}, measure = {} } = options;
   if (!(pixelSizeNm > 0) || !Number.isFinite(pixelSizeNm)) throw new RangeError(`pixelSizeNm must be a positive finite number, got ${pixelSizeNm}`);
   const levelling = levelHeightMap(raster, level);
-  const threshold = selectThreshold(levelling.levelled, thresholdOptions);
+  // the robust threshold reuses the background found by levelling unless the caller gave one
+  const threshold = selectThreshold(
+    levelling.levelled,
+    thresholdOptions.method === 'robust' ? { backgroundMask: levelling.backgroundMask, ...thresholdOptions } : thresholdOptions,
+  );
   const detection = detectVesicles(levelling.levelled, { ...detect, thresholdNm: threshold.thresholdNm });
   const measureOptions = { ...measure, thresholdNm: Math.max(0, threshold.thresholdNm) };
   const measureAll = (regions: typeof detection.vesicles) =>

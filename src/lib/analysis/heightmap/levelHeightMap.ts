@@ -9,6 +9,8 @@ import { validateRaster } from './validateRaster';
 /** Exponents (a, b) of the basis u^a·v^b, in the order of the reported coefficients. */
 const BASIS_PLANE: readonly (readonly [number, number])[] = [[0, 0], [1, 0], [0, 1]];
 const BASIS_POLY2: readonly (readonly [number, number])[] = [[0, 0], [1, 0], [0, 1], [2, 0], [1, 1], [0, 2]];
+/** Samples used for the median/MAD of the background (regular subsample, see robustSigma). */
+const ROBUST_MAX_SAMPLES = 1 << 17;
 /** Floor of the robust sigma so a noise-free map still separates particles from a flat background (nm). */
 const MIN_SIGMA_NM = 1e-6;
 
@@ -31,7 +33,7 @@ const MIN_SIGMA_NM = 1e-6;
 export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = {}): LevelHeightMapResult {
   const {
     surface = 'plane', alignRows = true, exclusionK = 3, exclusionDilationPx = 2, maxIterations = 8,
-    convergenceFraction = 0.0005, minBackgroundPerRow = 8,
+    convergenceFraction = 0.0005, convergenceSigmaFraction = 0.01, minBackgroundPerRow = 8,
   } = options;
   validateRaster(raster);
   if (!(exclusionK > 0)) throw new RangeError(`exclusionK must be > 0, got ${exclusionK}`);
@@ -54,7 +56,11 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
   const excluded = new Uint8Array(n);
   const rowOffsetsNm = new Float64Array(height);
   const residual = new Float32Array(n);
+  const previous = new Float32Array(n);
   const scratch = new Float32Array(n);
+  const dilationTmp = new Uint8Array(n);
+  const lastRow = new Int32Array(width);
+  const rowValid = new Uint8Array(height);
   const rowBuf = new Float64Array(width);
   let coefficients: Float64Array = new Float64Array(basis.length);
   let median = 0;
@@ -65,6 +71,7 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
   for (let iter = 0; iter < maxIterations; iter++) {
     nbIterations = iter + 1;
     // fit the surface to data − row offsets on the background
+    previous.set(residual);
     coefficients = fitSurface(data, width, height, background, rowOffsetsNm, basis, xc, yc, sx, sy);
     evaluateResidual(data, width, height, coefficients, basis, xc, yc, sx, sy, residual);
     // align scan lines on the background
@@ -73,36 +80,47 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
         let m = 0;
         const row = y * width;
         for (let x = 0; x < width; x++) if (background[row + x]) rowBuf[m++] = residual[row + x];
-        rowOffsetsNm[y] = m >= minBackgroundPerRow ? medianInPlace(rowBuf, m) : 0;
+        rowValid[y] = m >= minBackgroundPerRow ? 1 : 0;
+        rowOffsetsNm[y] = rowValid[y] ? medianInPlace(rowBuf, m) : 0;
+      }
+      // Row offsets and the surface's pure-y terms (1, y, y²) describe the same thing; keep those terms
+      // in the surface so the split is unique and the alternation converges.
+      removeTrend(rowOffsetsNm, rowValid, basis.length === 6 ? 2 : 1, yc, sy);
+      for (let y = 0; y < height; y++) {
         const off = rowOffsetsNm[y];
+        const row = y * width;
         for (let x = 0; x < width; x++) residual[row + x] -= off;
       }
     }
     // robust scale of the background, new exclusion mask
-    ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch));
+    ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch, ROBUST_MAX_SAMPLES));
     const cut = median + exclusionK * Math.max(sigma, MIN_SIGMA_NM);
-    excluded.fill(0);
-    for (let i = 0; i < n; i++) if (residual[i] > cut) excluded[i] = 1;
-    dilateSquare(excluded, width, height, exclusionDilationPx, scratch);
+    dilateAbove(residual, cut, width, height, exclusionDilationPx, excluded, dilationTmp, lastRow);
     let changes = 0;
     let nbBackground = 0;
+    let sumShift2 = 0;
     for (let i = 0; i < n; i++) {
-      const b = excluded[i] ? 0 : 1;
-      if (b !== background[i]) changes++;
+      const shift = residual[i] - previous[i];
+      sumShift2 += shift * shift;
+      const b = 1 - excluded[i];
+      changes += b ^ background[i];
+      background[i] = b;
       nbBackground += b;
     }
     if (nbBackground < Math.max(3 * basis.length, 16)) {
       throw new AnalysisError('insufficient_background', `Only ${nbBackground} background pixels remain after excluding particles; the map needs flat substrate around the particles (or a larger exclusionK).`, { nbBackground, exclusionK });
     }
-    for (let i = 0; i < n; i++) background[i] = excluded[i] ? 0 : 1;
-    if (changes < convergenceFraction * n) {
+    // converged: the mask is stable, or the correction moved the map (RMS) by less than a fraction of the
+    // noise; a pixel toggling at the cut flips one row median back and forth, so the mask test alone can cycle
+    const rmsShift = Math.sqrt(sumShift2 / n);
+    if (changes < convergenceFraction * n || (iter > 0 && rmsShift < convergenceSigmaFraction * Math.max(sigma, MIN_SIGMA_NM))) {
       converged = true;
       break;
     }
   }
 
   // final statistics on the final mask; put the background median at 0
-  ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch));
+  ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch, ROBUST_MAX_SAMPLES));
   const levelledData = new Float32Array(n);
   for (let i = 0; i < n; i++) levelledData[i] = residual[i] - median;
   let nbBackgroundPx = 0;
@@ -143,6 +161,8 @@ function fitSurface(
   const zMoments = Array.from({ length: 3 }, () => new Float64Array(3));
   const s = new Float64Array(5);
   const t = new Float64Array(3);
+  const us = new Float64Array(width);
+  for (let x = 0; x < width; x++) us[x] = (x - xc) / sx;
   for (let y = 0; y < height; y++) {
     s.fill(0);
     t.fill(0);
@@ -150,7 +170,7 @@ function fitSurface(
     const off = rowOffsetsNm[y];
     for (let x = 0; x < width; x++) {
       if (!background[row + x]) continue;
-      const u = (x - xc) / sx;
+      const u = us[x];
       const z = data[row + x] - off;
       const u2 = u * u;
       s[0] += 1; s[1] += u; s[2] += u2; s[3] += u2 * u; s[4] += u2 * u2;
@@ -193,6 +213,8 @@ function evaluateResidual(
   basis: readonly (readonly [number, number])[], xc: number, yc: number, sx: number, sy: number, out: Float32Array,
 ): void {
   const poly2 = basis.length === 6;
+  const us = new Float64Array(width);
+  for (let x = 0; x < width; x++) us[x] = (x - xc) / sx;
   for (let y = 0; y < height; y++) {
     const v = (y - yc) / sy;
     // z = A + B·u + C·u², with the v-terms folded into A and B
@@ -201,9 +223,35 @@ function evaluateResidual(
     const C = poly2 ? c[3] : 0;
     const row = y * width;
     for (let x = 0; x < width; x++) {
-      const u = (x - xc) / sx;
+      const u = us[x];
       out[row + x] = data[row + x] - (A + u * (B + C * u));
     }
+  }
+}
+
+/** Subtract from `values` (rows flagged valid) their least-squares polynomial of the given degree in v = (y − yc)/sy. */
+function removeTrend(values: Float64Array, valid: Uint8Array, degree: number, yc: number, sy: number): void {
+  const p = degree + 1;
+  const normal = new Matrix(p, p);
+  const rhs = new Matrix(p, 1);
+  let count = 0;
+  for (let y = 0; y < values.length; y++) {
+    if (!valid[y]) continue;
+    count++;
+    const v = (y - yc) / sy;
+    for (let i = 0; i < p; i++) {
+      rhs.set(i, 0, rhs.get(i, 0) + values[y] * v ** i);
+      for (let j = 0; j < p; j++) normal.set(i, j, normal.get(i, j) + v ** (i + j));
+    }
+  }
+  if (count <= p) return;
+  const c = solve(normal, rhs).getColumn(0);
+  for (let y = 0; y < values.length; y++) {
+    if (!valid[y]) continue;
+    const v = (y - yc) / sy;
+    let t = 0;
+    for (let i = 0; i < p; i++) t += c[i] * v ** i;
+    values[y] -= t;
   }
 }
 
@@ -217,35 +265,48 @@ function medianInPlace(buf: Float64Array, m: number): number {
   return (lower + upper) / 2;
 }
 
-/** In-place binary dilation by a (2r+1)² square, separable; `tmp` is scratch of length ≥ mask.length. */
-function dilateSquare(mask: Uint8Array, width: number, height: number, r: number, tmp: Float32Array): void {
-  if (r === 0) return;
-  // horizontal: tmp = row-wise dilation of mask
+/**
+ * out = (values > cut) dilated by a (2r+1)² square. Separable, and both passes read memory in row
+ * order: the vertical pass keeps, per column, the last row where the horizontal result was set.
+ */
+function dilateAbove(
+  values: Float32Array, cut: number, width: number, height: number, r: number,
+  out: Uint8Array, tmp: Uint8Array, lastRow: Int32Array,
+): void {
+  // horizontal
   for (let y = 0; y < height; y++) {
     const row = y * width;
-    let last = -Infinity; // last set column seen, scanning left to right
-    for (let x = 0; x < width; x++) tmp[row + x] = 0;
+    let last = -1e9;
     for (let x = 0; x < width; x++) {
-      if (mask[row + x]) last = x;
-      if (x - last <= r) tmp[row + x] = 1;
+      if (values[row + x] > cut) last = x;
+      tmp[row + x] = x - last <= r ? 1 : 0;
     }
-    last = Infinity;
+    if (r === 0) continue;
+    last = 1e9;
     for (let x = width - 1; x >= 0; x--) {
-      if (mask[row + x]) last = x;
+      if (values[row + x] > cut) last = x;
       if (last - x <= r) tmp[row + x] = 1;
     }
   }
-  // vertical: mask = column-wise dilation of tmp
-  for (let x = 0; x < width; x++) {
-    let last = -Infinity;
-    for (let y = 0; y < height; y++) {
-      if (tmp[y * width + x]) last = y;
-      mask[y * width + x] = y - last <= r ? 1 : 0;
+  if (r === 0) {
+    out.set(tmp);
+    return;
+  }
+  // vertical, downwards then upwards
+  lastRow.fill(-1e9);
+  for (let y = 0; y < height; y++) {
+    const row = y * width;
+    for (let x = 0; x < width; x++) {
+      if (tmp[row + x]) lastRow[x] = y;
+      out[row + x] = y - lastRow[x] <= r ? 1 : 0;
     }
-    last = Infinity;
-    for (let y = height - 1; y >= 0; y--) {
-      if (tmp[y * width + x]) last = y;
-      if (last - y <= r) mask[y * width + x] = 1;
+  }
+  lastRow.fill(1e9);
+  for (let y = height - 1; y >= 0; y--) {
+    const row = y * width;
+    for (let x = 0; x < width; x++) {
+      if (tmp[row + x]) lastRow[x] = y;
+      if (lastRow[x] - y <= r) out[row + x] = 1;
     }
   }
 }

@@ -16,7 +16,8 @@ import { validateRaster } from './validateRaster';
  * - area and volume: pixel counts times pixel area; volume = Σ max(h, 0)·px²;
  * - perimeter: (π/4) × number of pixel edges between the region and the rest (crack length). A
  *   crack path is a Manhattan length, which over all orientations averages 4/π times the Euclidean
- *   length (Cauchy–Crofton, from memory). A digitised disk of r px reads as r + ½, so its circularity is ≈ (r/(r+½))²;
+ *   length (Cauchy–Crofton, from memory). A digitised disk of r px spans 2r ± 1 px per axis depending on its
+ *   sub-pixel phase, so its circularity lies between (r/(r+½))² and (r/(r−½))² and is ≈ 1 on average;
  * - cap model: base half-width from the footprint area at the threshold extrapolated to 0 nm
  *   as a spherical cap, then optionally tip-corrected a = √(w² − 2hR), with the apex height as h.
  *

@@ -15,6 +15,8 @@ export interface RobustSigmaResult {
  * @param values - samples (e.g. heights in nm)
  * @param mask - optional selector, same length as values
  * @param scratch - optional reusable buffer of length ≥ values.length (avoids an allocation)
+ * @param maxSamples - when more samples are selected, use every ⌈count/maxSamples⌉-th one (a deterministic,
+ *   regular subsample: the median of 65 536 samples has a standard error of about 0.005 σ for Gaussian data). @default Infinity
  * @returns median, robust sigma and sample count; NaN for both when no sample is selected
  * @see Hampel FR 1974, J Am Stat Assoc 69:383–393 (MAD scaled by 1/Φ⁻¹(3/4) = 1.4826; constant common practice)
  */
@@ -22,12 +24,19 @@ export function robustSigma(
   values: ArrayLike<number>,
   mask?: Uint8Array,
   scratch?: Float32Array | Float64Array,
+  maxSamples = Infinity,
 ): RobustSigmaResult {
   if (mask && mask.length !== values.length) throw new RangeError(`mask length ${mask.length} ≠ values length ${values.length}`);
   const buf = scratch && scratch.length >= values.length ? scratch : new Float64Array(values.length);
+  let selected = 0;
+  if (mask) for (let i = 0; i < mask.length; i++) selected += mask[i] !== 0 ? 1 : 0;
+  else selected = values.length;
+  const stride = selected > maxSamples ? Math.ceil(selected / maxSamples) : 1;
   let n = 0;
+  let seen = 0;
   for (let i = 0; i < values.length; i++) {
-    if (!mask || mask[i] !== 0) buf[n++] = values[i];
+    if (mask && mask[i] === 0) continue;
+    if (seen++ % stride === 0) buf[n++] = values[i];
   }
   if (n === 0) return { median: Number.NaN, robustSigma: Number.NaN, nbSamples: 0 };
   const median = medianOfScratch(buf, n);

@@ -16,6 +16,8 @@ export interface LevelHeightMapOptions {
   maxIterations?: number;
   /** Stop when fewer than this fraction of pixels change background status. @default 0.0005 */
   convergenceFraction?: number;
+  /** Or stop when the correction changed the map by less than this fraction of the background sigma (RMS over pixels). @default 0.01 */
+  convergenceSigmaFraction?: number;
   /** A row with fewer background pixels than this keeps offset 0 (px). @default 8 */
   minBackgroundPerRow?: number;
 }
@@ -75,6 +77,8 @@ export interface RobustThresholdOptions {
   k?: number;
   /** Sigma-clipping rounds that drop particles before the final median/MAD. @default 3 */
   clipIterations?: number;
+  /** Background pixels (1) known from levelling; when given, no clipping is done. @default undefined */
+  backgroundMask?: Uint8Array;
 }
 
 /** Options of {@link otsuThreshold}. */
@@ -206,7 +210,7 @@ export interface MeasureVesicleResult {
   readonly volumeNm3: number;
   /** (π/4)·(number of pixel edges on the region border)·pixel size (nm). */
   readonly perimeterNm: number;
-  /** 4πA/P² (1 for a disk, ≈ (r/(r+½))² for a digitised disk of r px). */
+  /** 4πA/P²: 1 for a disk; a digitised disk of r px gives (r/(r+½))² to (r/(r−½))² depending on its sub-pixel phase. */
   readonly circularity: number;
   /** Footprint half-width at 0 nm before tip correction (nm). */
   readonly apparentBaseRadiusNm: number;

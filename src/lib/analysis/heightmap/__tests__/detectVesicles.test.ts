@@ -1,0 +1,113 @@
+import { describe, expect, it } from 'vitest';
+import { makeHeightScene } from '../../synthetic/makeHeightScene';
+import type { SceneTruth } from '../../synthetic/types';
+import { analyzeHeightMap } from '../analyzeHeightMap';
+import { detectVesicles } from '../detectVesicles';
+import { levelHeightMap } from '../levelHeightMap';
+import type { MeasureVesicleResult } from '../types';
+
+function nearest(found: readonly MeasureVesicleResult[], t: SceneTruth): { v: MeasureVesicleResult; distPx: number } {
+  let best = found[0];
+  let bestD = Infinity;
+  for (const v of found) {
+    const d = Math.hypot(v.centroidPx.x - t.xPx, v.centroidPx.y - t.yPx);
+    if (d < bestD) {
+      bestD = d;
+      best = v;
+    }
+  }
+  return { v: best, distPx: bestD };
+}
+
+describe('detectVesicles on synthetic scenes (tilt + line offsets + 0.15 nm noise, levelled first)', () => {
+  it.each([1, 2, 3])('seed %d: counts separated vesicles exactly, heights within 0.3 nm, centroids within 0.3 px', (seed) => {
+    // Acceptance criteria of the product brief. Ground truth from makeHeightScene (spherical caps, REFERENCES §2).
+    // Apex height tolerance 0.3 nm = 2σ of the noise; the quadratic apex fit averages ~25 px, so its SE is
+    // ≈ 0.15·√(6/25) ≈ 0.07 nm plus < 0.05 nm sphere-vs-paraboloid bias. Centroid tolerance 0.3 px (brief).
+    const scene = makeHeightScene({ seed, width: 256, height: 256, pixelSizeNm: 5, nbVesicles: 15 });
+    const copy = scene.raster.data.slice();
+    const r = analyzeHeightMap(scene.raster, 5);
+    expect(scene.raster.data).toEqual(copy);
+    const truth = scene.truth.filter((t) => t.kind === 'vesicle');
+    expect(r.vesicles.length).toBe(truth.length);
+    const matched = new Set<number>();
+    for (const t of truth) {
+      const { v, distPx } = nearest(r.vesicles, t);
+      matched.add(v.label);
+      expect(distPx).toBeLessThan(0.3);
+      expect(Math.abs(v.apexHeightNm - t.heightNm)).toBeLessThan(0.3);
+      // The highest pixel is the maximum of several noisy samples near the apex, so it reads high;
+      // allow 4σ = 0.6 nm (common practice: extreme of ~10 Gaussian samples stays below +3σ).
+      expect(Math.abs(v.maxHeightNm - t.heightNm)).toBeLessThan(0.6);
+      // Cap base radius from the threshold footprint (REFERENCES §2 relation a² + h² = 2hR_c): the footprint
+      // area is a pixel count, ± half a pixel along the rim (2πr·0.5 px of ~πr² px), ≤ 5% for r ≥ 6 px.
+      expect(Math.abs(v.cap!.baseRadiusNm - t.baseRadiusNm) / t.baseRadiusNm).toBeLessThan(0.05);
+    }
+    expect(matched.size).toBe(truth.length); // one detection per vesicle
+  });
+
+  it('splits overlapping pairs into two and keeps their centroids', () => {
+    // Two pairs whose footprints overlap (centre distance 0.8 and 0.9 of a₁ + a₂): the saddle is far below
+    // both apices, so the watershed must keep two basins each. Centroid tolerance 0.5 px: each basin is
+    // cut at the watershed line, which removes a sliver of the other cap's skirt (measured ≤ 0.1 px).
+    const vesicles = [
+      { xPx: 50, yPx: 50, baseRadiusNm: 50, heightNm: 20 },
+      { xPx: 66, yPx: 50, baseRadiusNm: 50, heightNm: 20 },
+      { xPx: 100, yPx: 100, baseRadiusNm: 60, heightNm: 25 },
+      { xPx: 118, yPx: 100, baseRadiusNm: 40, heightNm: 12 },
+    ];
+    const scene = makeHeightScene({ seed: 4, width: 160, height: 150, pixelSizeNm: 5, vesicles });
+    const r = analyzeHeightMap(scene.raster, 5);
+    expect(r.vesicles.length).toBe(4);
+    expect(r.detection.diagnostics.nbSplits).toBe(2);
+    for (const t of scene.truth) expect(nearest(r.vesicles, t).distPx).toBeLessThan(0.5);
+    // without the prominence criterion (huge minProminenceNm) each pair is one region
+    const merged = analyzeHeightMap(scene.raster, 5, { detect: { minProminenceNm: 1000 } });
+    expect(merged.vesicles.length).toBe(2);
+  });
+
+  it('drops regions that touch the border and keeps them when asked', () => {
+    const scene = makeHeightScene({
+      seed: 5, width: 120, height: 120, pixelSizeNm: 5,
+      vesicles: [{ xPx: 2, yPx: 60, baseRadiusNm: 40, heightNm: 15 }, { xPx: 60, yPx: 60, baseRadiusNm: 40, heightNm: 15 }, { xPx: 80, yPx: 118.5, baseRadiusNm: 30, heightNm: 10 }],
+    });
+    const r = analyzeHeightMap(scene.raster, 5);
+    expect(r.vesicles.length).toBe(1);
+    expect(nearest(r.vesicles, scene.truth[1]).distPx).toBeLessThan(0.3);
+    expect(r.detection.diagnostics.nbDroppedEdge).toBeGreaterThanOrEqual(2);
+    const kept = analyzeHeightMap(scene.raster, 5, { detect: { dropEdgeRegions: false } });
+    expect(kept.vesicles.length).toBe(3);
+  });
+
+  it('reports beads taller than beadMinHeightNm as fiducial candidates, not vesicles', () => {
+    // Beads 400 nm (default) and 350 nm against the 300 nm cut-off (EVs on mica ≤ 100 nm: common practice).
+    const scene = makeHeightScene({
+      seed: 6, width: 256, height: 256, pixelSizeNm: 5, nbVesicles: 8,
+      beads: [{ xPx: 60, yPx: 60 }, { xPx: 190, yPx: 190, heightNm: 350 }],
+    });
+    const r = analyzeHeightMap(scene.raster, 5);
+    expect(r.vesicles.length).toBe(8);
+    expect(r.fiducialCandidates.length).toBe(2);
+    for (const b of scene.truth.filter((t) => t.kind === 'bead')) {
+      const { v, distPx } = nearest(r.fiducialCandidates, b);
+      expect(distPx).toBeLessThan(0.3);
+      // bead apex: a sphere top, fitted like a cap; 0.3 nm as for vesicles
+      expect(Math.abs(v.apexHeightNm - b.heightNm)).toBeLessThan(0.3);
+    }
+    for (const v of r.vesicles) expect(v.maxHeightNm).toBeLessThan(300);
+    // labels: each region's label appears in the map, and only those labels
+    const labels = new Set(r.labels);
+    expect([...labels].filter((l) => l !== 0).sort((a, b) => a - b)).toEqual([...r.vesicles, ...r.fiducialCandidates].map((v) => v.label).sort((a, b) => a - b));
+  });
+
+  it('finds nothing on a particle-free map and does not mutate its input', () => {
+    const scene = makeHeightScene({ seed: 7, width: 128, height: 128, nbVesicles: 0 });
+    const levelled = levelHeightMap(scene.raster).levelled;
+    const copy = levelled.data.slice();
+    const r = detectVesicles(levelled, { thresholdNm: 0.45 });
+    expect(r.vesicles.length).toBe(0);
+    expect(r.fiducialCandidates.length).toBe(0);
+    expect(levelled.data).toEqual(copy);
+    expect(() => detectVesicles(levelled, { thresholdNm: Number.NaN })).toThrow(RangeError);
+  });
+});

@@ -1,0 +1,5 @@
+export * from './solveNnls';
+export * from './estimateMarkerAmplitudes';
+export * from './thresholdFromControls';
+export * from './backgroundApertureThreshold';
+export * from './linkVesicles';
