@@ -65,6 +65,8 @@ async function main() {
     const outDir = process.env.HEIGHTLIGHT_OUT_DIR ?? 'dist';
     const app = spawn(process.execPath, [`${outDir}/server/entry.mjs`], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
     children.push(app);
+    const worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
+    children.push(worker);
     await waitForHttp(`${s.env.PUBLIC_URL}/signin`, 60_000);
     log(`app up at ${s.env.PUBLIC_URL}`);
 

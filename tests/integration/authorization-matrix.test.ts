@@ -4,6 +4,8 @@ import { join, relative } from 'node:path';
 import { AppClient, signedIn } from '../support/client';
 import { DEMO, DEMO_PASSWORD, ROLES, type DemoRole } from '../support/demo';
 import { ROUTES, type RouteSpec } from '../support/routes';
+import { createDb } from '../../src/lib/db/client';
+import { samples, fields } from '../../src/lib/db/schema';
 
 const clients = {} as Record<DemoRole, AppClient>;
 let ids: Record<string, string> = {};
@@ -15,12 +17,15 @@ function listApiFiles(dir: string): string[] {
   });
 }
 
-const resolvePath = (r: RouteSpec, study: string) =>
-  r.path.replace(':study', study).replace(':other', ids.other).replace(':user', ids.user);
+/** Fills the placeholders; `outsider` uses the study no demo person belongs to. */
+function fill(text: string, outsider: boolean): string {
+  const p = outsider ? { study: ids.other, sample: ids.otherSample, field: ids.otherField } : { study: ids.study, sample: ids.sample, field: ids.field };
+  return text.replaceAll(':study', p.study).replaceAll(':sample', p.sample).replaceAll(':field', p.field).replaceAll(':user', ids.user);
+}
 
-async function call(c: AppClient, r: RouteSpec, study = ids.study) {
-  const path = resolvePath(r, study);
-  return r.body === undefined ? c.fetch(path, { method: r.method }) : c.json(path, r.method, r.body);
+async function call(c: AppClient, r: RouteSpec, outsider = false) {
+  const path = fill(r.path, outsider);
+  return r.body === undefined ? c.fetch(path, { method: r.method }) : c.json(path, r.method, JSON.parse(fill(JSON.stringify(r.body), outsider)));
 }
 
 beforeAll(async () => {
@@ -29,6 +34,15 @@ beforeAll(async () => {
   const other = await clients.admin.json('/api/studies', 'POST', { name: `Matrix other study ${Date.now()}` });
   const users = (await (await clients.admin.fetch('/api/admin/users')).json()).users;
   ids = { study: studies[0].id, other: (await other.json()).id, user: users.find((u: { email: string }) => u.email === DEMO.collaborator).id };
+  // A sample and a field in each study, written straight to the database.
+  const db = createDb(process.env.DATABASE_URL!, 2);
+  for (const [key, studyId] of [['', ids.study], ['other', ids.other]] as const) {
+    const [s] = await db.insert(samples).values({ studyId, code: `MATRIX-${Date.now()}-${key || 'own'}` }).returning();
+    const [f] = await db.insert(fields).values({ sampleId: s.id, name: 'matrix probe', status: 'failed', failureReason: 'probe' }).returning();
+    ids[key ? 'otherSample' : 'sample'] = s.id;
+    ids[key ? 'otherField' : 'field'] = f.id;
+  }
+  await db.$client.end();
 });
 
 describe('authorization matrix', () => {
@@ -54,7 +68,7 @@ describe('authorization matrix', () => {
         it(`${role} ${allowed ? 'passes the guard' : 'gets 403'}`, async () => {
           const res = await call(clients[role], r);
           if (allowed) {
-            expect([200, 201, 202, 204, 400, 404]).toContain(res.status);
+            expect([200, 201, 202, 204, 400, 404, 409, 422]).toContain(res.status);
           } else {
             expect(res.status).toBe(403);
             expect((await res.json()).error).toBe('forbidden');
@@ -62,7 +76,7 @@ describe('authorization matrix', () => {
         });
         if (r.studyScoped && role !== 'admin') {
           it(`${role} who is not a member gets 403`, async () => {
-            const res = await call(clients[role], r, ids.other);
+            const res = await call(clients[role], r, true);
             expect(res.status).toBe(403);
           });
         }

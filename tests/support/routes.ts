@@ -2,7 +2,8 @@
  * Every API route with who may call it. The authorization matrix runs each against anonymous,
  * each role and a non-member; a completeness test makes sure a new route cannot skip this table.
  * `allowed`: roles that pass the guard (they then get 2xx, or 400/404 for the deliberately empty body).
- * Paths use :study (the demo study), :other (a study with no demo members) and :user (a user id).
+ * Paths and string values in bodies use placeholders: :study, :sample, :field (in the demo study),
+ * and :user (a user id); for the non-member check they are swapped for a study with no demo members.
  */
 export type Who = 'admin' | 'biologist' | 'analyst' | 'collaborator';
 export interface RouteSpec {
@@ -30,3 +31,15 @@ export const ROUTES: RouteSpec[] = [
   { file: 'invitations/accept.ts', method: 'POST', path: '/api/invitations/accept', allowed: 'public', body: {} },
   { file: 'password-reset.ts', method: 'POST', path: '/api/password-reset', allowed: 'public', body: {} },
 ];
+
+ROUTES.push(
+  { file: 'studies/[id]/samples.ts', method: 'GET', path: '/api/studies/:study/samples', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'studies/[id]/samples.ts', method: 'POST', path: '/api/studies/:study/samples', allowed: ['admin', 'biologist'], studyScoped: true, body: {} },
+  { file: 'uploads/index.ts', method: 'POST', path: '/api/uploads', allowed: ['admin', 'biologist'], studyScoped: true, body: { studyId: ':study', fileName: 'probe.tif', sizeBytes: 1000 } },
+  { file: 'uploads/[id]/inspect.ts', method: 'POST', path: '/api/uploads/00000000-0000-4000-8000-000000000000/inspect', allowed: ['admin', 'biologist'], body: {} },
+  { file: 'fields/index.ts', method: 'POST', path: '/api/fields', allowed: ['admin', 'biologist'], studyScoped: true, body: { sampleId: ':sample', name: 'probe', topographyUploadId: '00000000-0000-4000-8000-000000000001', fluorescenceUploadIds: ['00000000-0000-4000-8000-000000000002'], settings: { objectiveNa: 1.4 } } },
+  { file: 'fields/[id]/index.ts', method: 'GET', path: '/api/fields/:field', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'fields/[id]/retry.ts', method: 'POST', path: '/api/fields/:field/retry', allowed: ['admin', 'biologist'], studyScoped: true },
+  { file: 'fields/[id]/detection.ts', method: 'GET', path: '/api/fields/:field/detection', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'fields/[id]/tiles/[...path].ts', method: 'GET', path: '/api/fields/:field/tiles/height.dzi', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+);

@@ -484,11 +484,11 @@ function checkLzwStream(data, maxOut, ifdIndex) {
   let width = 9;
   const next = () => {
     if (pos >= nbBits) return 257;
-    let code = 0;
-    for (let b = 0; b < width; b++, pos++) {
-      const byte = pos >> 3 < data.length ? data[pos >> 3] : 0;
-      code = (code << 1) | ((byte >> (7 - (pos & 7))) & 1);
-    }
+    // 24-bit window: a code of ≤ 12 bits starting at any bit of byte i ends within byte i + 2
+    const i = pos >> 3;
+    const word = (data[i] << 16) | ((i + 1 < data.length ? data[i + 1] : 0) << 8) | (i + 2 < data.length ? data[i + 2] : 0);
+    const code = (word >>> (24 - (pos & 7) - width)) & ((1 << width) - 1);
+    pos += width;
     return code;
   };
   const bad = () => corrupt(`the compressed (LZW) data of image ${ifdIndex + 1} is invalid`);

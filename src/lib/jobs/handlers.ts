@@ -1,4 +1,55 @@
 import type PgBoss from 'pg-boss';
+import { eq, and } from 'drizzle-orm';
+import { QUEUES } from './queues';
+import { ingestField, PermanentJobError } from './ingestField';
+import { getDb } from '../db/client';
+import { getStorage } from '../storage/client';
+import { config } from '../config';
+import { fields, samples, users, studyMembers } from '../db/schema';
+import { send } from '../mail';
+import { ImagingError } from '../imaging';
 
-/** Registers the worker's job handlers (filled in by the ingestion and linking modules). */
-export async function registerHandlers(_boss: PgBoss) {}
+async function notifyFieldReady(fieldId: string) {
+  const db = await getDb();
+  const [row] = await db
+    .select({ name: fields.name, status: fields.status, reason: fields.failureReason, createdBy: fields.createdBy, studyId: samples.studyId, code: samples.code })
+    .from(fields).innerJoin(samples, eq(samples.id, fields.sampleId)).where(eq(fields.id, fieldId));
+  if (!row) return;
+  const link = new URL(`/fields/${fieldId}`, config().PUBLIC_URL).toString();
+  const [uploader] = row.createdBy ? await db.select().from(users).where(eq(users.id, row.createdBy)) : [];
+  const ok = row.status === 'ready';
+  if (uploader) {
+    await send({
+      to: uploader.email,
+      subject: ok ? `Field ${row.name} (${row.code}) is processed` : `Field ${row.name} (${row.code}) could not be processed`,
+      text: ok ? `Your field ${row.name} of sample ${row.code} is processed and ready to register.\n\n${link}` : `Processing of field ${row.name} failed: ${row.reason}\n\n${link}`,
+      html: '',
+    }).catch((e) => console.error('[jobs] mail failed:', e.message));
+  }
+  if (ok) {
+    const analysts = await db.select({ email: users.email }).from(studyMembers).innerJoin(users, eq(users.id, studyMembers.userId))
+      .where(and(eq(studyMembers.studyId, row.studyId), eq(studyMembers.role, 'analyst')));
+    for (const a of analysts) {
+      await send({ to: a.email, subject: `Field ready to register: ${row.name} (${row.code})`, text: `A new field is ready to register.\n\n${link}`, html: '' })
+        .catch((e) => console.error('[jobs] mail failed:', e.message));
+    }
+  }
+}
+
+/** Registers the worker's job handlers. */
+export async function registerHandlers(boss: PgBoss) {
+  const c = config();
+  await boss.work<{ fieldId: string }>(QUEUES.ingestField, { batchSize: 1 }, async ([job]) => {
+    const started = Date.now();
+    try {
+      const r = await ingestField({ db: await getDb(), st: await getStorage(), decodeLimits: { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES } }, job.data.fieldId);
+      console.log(`[worker] ingested field ${job.data.fieldId} in ${Date.now() - started} ms`, r);
+    } catch (e) {
+      console.error(`[worker] field ${job.data.fieldId} failed:`, (e as Error).message);
+      // A bad file will not get better on a retry: the field is marked failed and the job ends.
+      if (!(e instanceof PermanentJobError || e instanceof ImagingError)) throw e;
+    } finally {
+      await notifyFieldReady(job.data.fieldId);
+    }
+  });
+}

@@ -33,7 +33,7 @@ const MIN_SIGMA_NM = 1e-6;
 export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = {}): LevelHeightMapResult {
   const {
     surface = 'plane', alignRows = true, exclusionK = 3, exclusionDilationPx = 2, maxIterations = 8,
-    convergenceFraction = 0.0005, convergenceSigmaFraction = 0.01, minBackgroundPerRow = 8,
+    convergenceFraction = 0.0005, convergenceSigmaFraction = 0.05, minBackgroundPerRow = 8,
   } = options;
   validateRaster(raster);
   if (!(exclusionK > 0)) throw new RangeError(`exclusionK must be > 0, got ${exclusionK}`);
@@ -61,12 +61,24 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
   const dilationTmp = new Uint8Array(n);
   const lastRow = new Int32Array(width);
   const rowValid = new Uint8Array(height);
-  const rowBuf = new Float64Array(width);
+  const rowBuf = new Float32Array(width); // Float32 like every buffer given to selectKth: one element kind keeps it fast
   let coefficients: Float64Array = new Float64Array(basis.length);
   let median = 0;
   let sigma = 0;
   let nbIterations = 0;
   let converged = false;
+
+  // robust start: a surface through block medians gives a first mask that already excludes particles,
+  // which saves one or two full-resolution passes compared with starting from every pixel
+  const start = blockMedianSurface(data, width, height, basis, xc, yc, sx, sy, exclusionK, scratch);
+  if (start) {
+    evaluateResidual(data, width, height, start, basis, xc, yc, sx, sy, residual);
+    const first = robustSigma(residual, undefined, scratch, ROBUST_MAX_SAMPLES);
+    dilateAbove(residual, first.median + exclusionK * Math.max(first.robustSigma, MIN_SIGMA_NM), width, height, exclusionDilationPx, excluded, dilationTmp, lastRow);
+    let nbStart = 0;
+    for (let i = 0; i < n; i++) nbStart += background[i] = 1 - excluded[i];
+    if (nbStart < Math.max(3 * basis.length, 16)) background.fill(1);
+  }
 
   for (let iter = 0; iter < maxIterations; iter++) {
     nbIterations = iter + 1;
@@ -207,6 +219,75 @@ function fitSurface(
   return out;
 }
 
+/**
+ * Surface coefficients fitted to the medians of square blocks (about 16 per side), dropping blocks whose
+ * median lies above median + k·sigma of the block residuals (particles, beads) over a few rounds.
+ * Returns null when the map is too small for enough blocks.
+ */
+function blockMedianSurface(
+  data: Float32Array, width: number, height: number, basis: readonly (readonly [number, number])[],
+  xc: number, yc: number, sx: number, sy: number, k: number, scratch: Float32Array,
+): Float64Array | null {
+  const block = Math.max(8, Math.ceil(Math.min(width, height) / 16));
+  const nbX = Math.floor(width / block);
+  const nbY = Math.floor(height / block);
+  const nbBlocks = nbX * nbY;
+  const p = basis.length;
+  if (nbBlocks < 4 * p) return null;
+  const u = new Float64Array(nbBlocks);
+  const v = new Float64Array(nbBlocks);
+  const z = new Float64Array(nbBlocks);
+  for (let by = 0; by < nbY; by++) {
+    for (let bx = 0; bx < nbX; bx++) {
+      let m = 0;
+      for (let y = by * block; y < (by + 1) * block; y++) {
+        const row = y * width;
+        for (let x = bx * block; x < (bx + 1) * block; x++) scratch[m++] = data[row + x];
+      }
+      const b = by * nbX + bx;
+      z[b] = medianInPlace(scratch, m);
+      u[b] = ((bx + 0.5) * block - 0.5 - xc) / sx;
+      v[b] = ((by + 0.5) * block - 0.5 - yc) / sy;
+    }
+  }
+  const keep = new Uint8Array(nbBlocks).fill(1);
+  const res = new Float32Array(nbBlocks);
+  let c: Float64Array | null = null;
+  for (let round = 0; round < 5; round++) {
+    const normal = new Matrix(p, p);
+    const rhs = new Matrix(p, 1);
+    let count = 0;
+    for (let b = 0; b < nbBlocks; b++) {
+      if (!keep[b]) continue;
+      count++;
+      for (let i = 0; i < p; i++) {
+        const fi = u[b] ** basis[i][0] * v[b] ** basis[i][1];
+        rhs.set(i, 0, rhs.get(i, 0) + fi * z[b]);
+        for (let j = 0; j < p; j++) normal.set(i, j, normal.get(i, j) + fi * u[b] ** basis[j][0] * v[b] ** basis[j][1]);
+      }
+    }
+    if (count < 2 * p) return c;
+    const sol = solve(normal, rhs).getColumn(0);
+    if (!sol.every(Number.isFinite)) return c;
+    c = Float64Array.from(sol);
+    for (let b = 0; b < nbBlocks; b++) {
+      let f = 0;
+      for (let i = 0; i < p; i++) f += c[i] * u[b] ** basis[i][0] * v[b] ** basis[i][1];
+      res[b] = z[b] - f;
+    }
+    const stats = robustSigma(res, keep);
+    const cut = stats.median + k * Math.max(stats.robustSigma, MIN_SIGMA_NM);
+    let changed = false;
+    for (let b = 0; b < nbBlocks; b++) {
+      const kb = res[b] > cut ? 0 : 1;
+      if (kb !== keep[b]) changed = true;
+      keep[b] = kb;
+    }
+    if (!changed) break;
+  }
+  return c;
+}
+
 /** residual = data − surface (row offsets not applied). */
 function evaluateResidual(
   data: Float32Array, width: number, height: number, c: Float64Array,
@@ -256,7 +337,7 @@ function removeTrend(values: Float64Array, valid: Uint8Array, degree: number, yc
 }
 
 /** Median of buf[0..m), reordering buf. */
-function medianInPlace(buf: Float64Array, m: number): number {
+function medianInPlace(buf: Float32Array, m: number): number {
   const half = m >> 1;
   const upper = selectKth(buf, m, half);
   if (m % 2 === 1) return upper;

@@ -10,7 +10,8 @@ export interface RobustSigmaResult {
 
 /**
  * Median and robust sigma (1.4826·MAD) of `values`, optionally restricted to `mask[i] !== 0`.
- * Exact medians (mean of the two middle values for even counts). Does not modify its inputs.
+ * Exact medians of the samples rounded to Float32 (mean of the two middle values for even counts).
+ * Does not modify its inputs.
  *
  * @param values - samples (e.g. heights in nm)
  * @param mask - optional selector, same length as values
@@ -27,7 +28,7 @@ export function robustSigma(
   maxSamples = Infinity,
 ): RobustSigmaResult {
   if (mask && mask.length !== values.length) throw new RangeError(`mask length ${mask.length} ≠ values length ${values.length}`);
-  const buf = scratch && scratch.length >= values.length ? scratch : new Float64Array(values.length);
+  const buf = scratch && scratch.length >= values.length ? scratch : new Float32Array(values.length);
   let selected = 0;
   if (mask) for (let i = 0; i < mask.length; i++) selected += mask[i] !== 0 ? 1 : 0;
   else selected = values.length;

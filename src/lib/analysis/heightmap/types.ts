@@ -16,7 +16,10 @@ export interface LevelHeightMapOptions {
   maxIterations?: number;
   /** Stop when fewer than this fraction of pixels change background status. @default 0.0005 */
   convergenceFraction?: number;
-  /** Or stop when the correction changed the map by less than this fraction of the background sigma (RMS over pixels). @default 0.01 */
+  /**
+   * Or stop when the correction changed the map by less than this fraction of the background sigma (RMS over
+   * pixels); 5% of the noise (e.g. 0.008 nm at 0.15 nm) is far below the 0.1 nm to which heights are read. @default 0.05
+   */
   convergenceSigmaFraction?: number;
   /** A row with fewer background pixels than this keeps offset 0 (px). @default 8 */
   minBackgroundPerRow?: number;

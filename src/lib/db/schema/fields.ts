@@ -17,6 +17,8 @@ export const fields = pgTable(
     name: text().notNull(),
     status: fieldStatusEnum().notNull().default('uploading'),
     failureReason: text(),
+    /** Progress of the running job: stage name and fraction done (0..1). */
+    progress: jsonb().$type<{ stage: string; fraction: number } | null>(),
     afmScanSizeNm: real(),
     afmPixelNm: real(),
     tipRadiusNm: real(),

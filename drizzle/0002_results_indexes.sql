@@ -1,0 +1,1 @@
+CREATE INDEX "vesicles_link_run_results_index" ON "vesicles" USING btree ("link_run_id","marker_bits","diameter_nm","height_nm");

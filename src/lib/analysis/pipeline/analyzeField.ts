@@ -1,0 +1,307 @@
+import KDBush from 'kdbush';
+import { AnalysisError } from '../errors';
+import { correctBackground, detectSpots, psfSigmaPx, type FluorescenceSpot } from '../fluorescence';
+import { applyAffine, evaluateRegistration, findPairsRansac, invertAffine, type FiducialPair } from '../geometry';
+import { detectVesicles, levelHeightMap, measureVesicle, selectThreshold } from '../heightmap';
+import type { MeasureVesicleResult } from '../heightmap/types';
+import { backgroundApertureThreshold, linkVesicles } from '../linking';
+import type { Point, Raster } from '../types';
+import { mergeSpots } from './mergeSpots';
+import { refineFiducialPairs } from './refineFiducialPairs';
+import type {
+  AnalyzeFieldInput,
+  AnalyzeFieldOptions,
+  AnalyzeFieldResult,
+  FieldChannelSummary,
+  FieldRegistration,
+  VesicleMarkerCall,
+  VesicleRecord,
+} from './types';
+
+/**
+ * Analyses one correlative field end to end: level the height map, detect and measure vesicles and fiducial
+ * candidates, detect spots in every fluorescence channel, register AFM to fluorescence (refined fiducial picks, or
+ * automatic pairing of AFM candidates with spots), map every vesicle into fluorescence pixels, measure and call
+ * each marker (aperture photometry against a given threshold or mean + 3 SD of empty apertures, joint NNLS
+ * amplitude, nearest spot) and gather per-vesicle records and field counts. Pure and deterministic.
+ *
+ * @param input - rasters, pixel sizes (nm/px), optics, optional fiducials and thresholds; not modified
+ * @param options - see {@link AnalyzeFieldOptions}
+ * @returns per-vesicle records, a field summary and the intermediate detections
+ * @throws AnalysisError `no_channels`, `duplicate_marker`, `channel_size_mismatch`, `unknown_marker_threshold`;
+ *   the codes of levelling and thresholds (`insufficient_background`, ...), of registration (`too_few_fiducials`,
+ *   `duplicate_fiducials`, `degenerate_fiducials`, `no_consistent_pairing`) and `too_few_background_apertures`
+ * @throws RangeError for non-positive pixel sizes, NA or wavelengths
+ */
+export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOptions = {}): AnalyzeFieldResult {
+  const {
+    thresholdNm, level = {}, tipRadiusNm = 0, cameraOffsetCounts = 0, spotThresholdK = 5, snapRadiusNm = 300,
+    mergeSpotsPx = 1.5, pairingToleranceFlPx = 2, seed = 1, onProgress = () => undefined,
+  } = options;
+  const { heightNm, afmPixelNm, channels, flPixelNm, numericalAperture, fiducialPairs, thresholdCountsByMarker = {} } = input;
+  validateInput(input);
+  const markers = channels.map((c) => c.marker);
+  const sigmaPxByMarker: Record<string, number> = {};
+  for (const c of channels) sigmaPxByMarker[c.marker] = psfSigmaPx(c.emissionNm, numericalAperture, flPixelNm);
+
+  // level
+  onProgress('level', 0);
+  const levelling = levelHeightMap(heightNm, level);
+  onProgress('level', 1);
+
+  // detect
+  onProgress('detect', 0);
+  const threshold = selectThreshold(
+    levelling.levelled,
+    thresholdNm === undefined
+      ? { method: 'robust', k: 3, backgroundMask: levelling.backgroundMask }
+      : { method: 'manual', thresholdNm },
+  );
+  const detection = detectVesicles(levelling.levelled, { thresholdNm: threshold.thresholdNm });
+  onProgress('detect', 1);
+
+  // measure
+  onProgress('measure', 0);
+  const measureOptions = { tipRadiusNm, thresholdNm: Math.max(0, threshold.thresholdNm) };
+  const measure = (r: (typeof detection.vesicles)[number]) =>
+    measureVesicle(levelling.levelled, detection.labels, r, afmPixelNm, measureOptions);
+  const vesicles = detection.vesicles.map(measure);
+  onProgress('measure', 0.9);
+  const fiducialCandidates = detection.fiducialCandidates.map(measure);
+  onProgress('measure', 1);
+
+  // spots
+  onProgress('spots', 0);
+  const spotsByMarker: Record<string, FluorescenceSpot[]> = {};
+  channels.forEach((c, i) => {
+    const bg = correctBackground(c.raster, { cameraOffsetCounts });
+    spotsByMarker[c.marker] = detectSpots(bg.corrected, {
+      sigmaPx: sigmaPxByMarker[c.marker], thresholdK: spotThresholdK, background: bg.background,
+    }).spots;
+    onProgress('spots', (i + 1) / channels.length);
+  });
+  const spotsPerChannel = markers.map((m) => spotsByMarker[m]);
+
+  // register
+  onProgress('register', 0);
+  const registration = fiducialPairs
+    ? registerFromPicks(fiducialPairs, vesicles, fiducialCandidates, detection.labels, heightNm.width, spotsPerChannel, {
+        afmPixelNm, flPixelNm, snapRadiusNm,
+      })
+    : registerAutomatically(vesicles, fiducialCandidates, spotsPerChannel, {
+        afmPixelNm, flPixelNm, mergeSpotsPx, pairingToleranceFlPx, seed,
+      });
+  const vesiclesFl = vesicles.map((v) => applyAffine(registration.flFromAfm, v.centroidPx));
+  const fiducialsFl = fiducialCandidates.map((f) => applyAffine(registration.flFromAfm, f.centroidPx));
+  onProgress('register', 1);
+
+  // link: thresholds first (given, else empty apertures of the same frame), then calls
+  onProgress('link', 0);
+  const rastersPerChannel: Record<string, Raster> = {};
+  for (const c of channels) rastersPerChannel[c.marker] = c.raster;
+  const thresholds: Record<string, number> = {};
+  const thresholdInfo: Record<string, Pick<FieldChannelSummary, 'thresholdSource' | 'backgroundMeanCounts' | 'backgroundSdCounts' | 'nbBackgroundApertures'>> = {};
+  channels.forEach((c, i) => {
+    const given = thresholdCountsByMarker[c.marker];
+    if (given !== undefined) {
+      thresholds[c.marker] = given;
+      thresholdInfo[c.marker] = { thresholdSource: 'given', backgroundMeanCounts: null, backgroundSdCounts: null, nbBackgroundApertures: null };
+    } else {
+      const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[c.marker]];
+      const t = backgroundApertureThreshold(c.raster, avoid, { sigmaPx: sigmaPxByMarker[c.marker], k: 3 });
+      thresholds[c.marker] = t.thresholdCounts;
+      thresholdInfo[c.marker] = {
+        thresholdSource: 'background_apertures', backgroundMeanCounts: t.meanCounts, backgroundSdCounts: t.sdCounts,
+        nbBackgroundApertures: t.nbControls,
+      };
+    }
+    onProgress('link', (0.5 * (i + 1)) / channels.length);
+  });
+  const links = linkVesicles(vesiclesFl, spotsByMarker, rastersPerChannel, {
+    sigmaPxByMarker, thresholdCountsByMarker: thresholds,
+  });
+  onProgress('link', 1);
+
+  // summarise
+  onProgress('summarise', 0);
+  const records: VesicleRecord[] = vesicles.map((v, i) => {
+    const link = links.vesicles[i];
+    const calls: Record<string, VesicleMarkerCall> = {};
+    for (const m of markers) {
+      const c = link.channels[m];
+      calls[m] = {
+        intensityCounts: c.apertureCounts, intensitySnr: c.apertureSnr, amplitudeCounts: c.amplitudeCounts,
+        spotDistancePx: c.spotDistancePx, positive: c.positive,
+      };
+    }
+    return {
+      index: i,
+      xAfmPx: v.centroidPx.x,
+      yAfmPx: v.centroidPx.y,
+      xFlPx: vesiclesFl[i].x,
+      yFlPx: vesiclesFl[i].y,
+      heightNm: v.apexHeightNm,
+      diameterNm: v.equivalentDiameterNm,
+      volumeNm3: v.volumeNm3,
+      areaNm2: v.projectedAreaNm2,
+      circularity: v.circularity,
+      outOfFrame: link.outOfFrame,
+      phenotype: link.phenotype,
+      markers: calls,
+    };
+  });
+  const phenotypeCounts: Record<string, number> = {};
+  for (const r of records) phenotypeCounts[r.phenotype] = (phenotypeCounts[r.phenotype] ?? 0) + 1;
+  const channelSummaries: Record<string, FieldChannelSummary> = {};
+  const spotsWithoutVesicleByMarker: Record<string, number> = {};
+  for (const c of channels) {
+    const sigma = sigmaPxByMarker[c.marker];
+    const spots = spotsByMarker[c.marker];
+    const nearVesicle = nearAny(vesiclesFl, 2 * sigma);
+    const nearFiducial = nearAny(fiducialsFl, 2 * sigma);
+    let withoutVesicle = 0;
+    let onFiducial = 0;
+    for (const s of spots) {
+      if (nearVesicle(s)) continue;
+      if (nearFiducial(s)) onFiducial++;
+      else withoutVesicle++;
+    }
+    spotsWithoutVesicleByMarker[c.marker] = withoutVesicle;
+    channelSummaries[c.marker] = {
+      emissionNm: c.emissionNm,
+      psfSigmaPx: sigma,
+      nbSpots: spots.length,
+      thresholdCounts: thresholds[c.marker],
+      ...thresholdInfo[c.marker],
+      nbPositive: links.positiveByMarker[c.marker],
+      nbSpotsWithoutVesicle: withoutVesicle,
+      nbSpotsOnFiducials: onFiducial,
+    };
+  }
+  onProgress('summarise', 1);
+  return {
+    records,
+    summary: {
+      afmPixelNm,
+      flPixelNm,
+      numericalAperture,
+      markers,
+      heightThresholdNm: threshold.thresholdNm,
+      heightThresholdMethod: threshold.method,
+      backgroundSigmaNm: levelling.backgroundSigmaNm,
+      nbVesicles: vesicles.length,
+      nbFiducialCandidates: fiducialCandidates.length,
+      registration,
+      channels: channelSummaries,
+      positiveByMarker: { ...links.positiveByMarker },
+      phenotypeCounts,
+      nbOutOfFrame: links.nbOutOfFrame,
+      spotsWithoutVesicleByMarker,
+      nbVesiclesWithoutMarker: links.nbVesiclesWithoutMarker,
+    },
+    labels: detection.labels,
+    vesicles,
+    fiducialCandidates,
+    spotsByMarker,
+    fiducialsFl,
+  };
+}
+
+function validateInput(input: AnalyzeFieldInput): void {
+  const { channels, afmPixelNm, flPixelNm, numericalAperture, thresholdCountsByMarker = {} } = input;
+  for (const [name, v] of [['afmPixelNm', afmPixelNm], ['flPixelNm', flPixelNm], ['numericalAperture', numericalAperture]] as const) {
+    if (!(v > 0) || !Number.isFinite(v)) throw new RangeError(`${name} must be a positive finite number, got ${v}`);
+  }
+  if (channels.length === 0) throw new AnalysisError('no_channels', 'At least one fluorescence channel is needed.');
+  const seen = new Set<string>();
+  for (const c of channels) {
+    if (seen.has(c.marker)) {
+      throw new AnalysisError('duplicate_marker', `Marker "${c.marker}" is given twice; each channel needs its own marker name.`, { marker: c.marker });
+    }
+    seen.add(c.marker);
+  }
+  const { width, height } = channels[0].raster;
+  for (const c of channels) {
+    if (c.raster.width !== width || c.raster.height !== height) {
+      throw new AnalysisError(
+        'channel_size_mismatch',
+        `Channel ${c.marker} is ${c.raster.width}×${c.raster.height} px but ${channels[0].marker} is ${width}×${height} px; ` +
+          'all fluorescence channels of a field must be the same frame.',
+        { marker: c.marker },
+      );
+    }
+  }
+  for (const [m, t] of Object.entries(thresholdCountsByMarker)) {
+    if (!seen.has(m)) {
+      throw new AnalysisError('unknown_marker_threshold', `A threshold is given for "${m}", which is not one of the markers (${[...seen].join(', ')}).`, { marker: m });
+    }
+    if (!Number.isFinite(t)) throw new RangeError(`thresholdCountsByMarker.${m} must be finite, got ${t}`);
+  }
+}
+
+/** Predicate "a point of `points` lies within radiusPx". */
+function nearAny(points: readonly Point[], radiusPx: number): (p: Point) => boolean {
+  if (points.length === 0) return () => false;
+  const index = new KDBush(points.length);
+  for (const p of points) index.add(p.x, p.y);
+  index.finish();
+  return (p) => index.within(p.x, p.y, radiusPx).length > 0;
+}
+
+function registerFromPicks(
+  picks: readonly FiducialPair[],
+  vesicles: readonly MeasureVesicleResult[],
+  fiducialCandidates: readonly MeasureVesicleResult[],
+  labels: Int32Array,
+  width: number,
+  spotsPerChannel: readonly (readonly Point[])[],
+  o: { afmPixelNm: number; flPixelNm: number; snapRadiusNm: number },
+): FieldRegistration {
+  const centroidByLabel = new Map<number, Point>();
+  for (const r of [...fiducialCandidates, ...vesicles]) centroidByLabel.set(r.label, r.centroidPx);
+  const refinement = refineFiducialPairs(picks, {
+    labels, width, centroidByLabel, spotsPerChannel,
+    afmRadiusPx: o.snapRadiusNm / o.afmPixelNm, flRadiusPx: o.snapRadiusNm / o.flPixelNm,
+    afmPixelNm: o.afmPixelNm, flPixelNm: o.flPixelNm,
+  });
+  return describe('fiducials', refinement.map((r) => r.refined), refinement, o);
+}
+
+function registerAutomatically(
+  vesicles: readonly MeasureVesicleResult[],
+  fiducialCandidates: readonly MeasureVesicleResult[],
+  spotsPerChannel: readonly (readonly Point[])[],
+  o: { afmPixelNm: number; flPixelNm: number; mergeSpotsPx: number; pairingToleranceFlPx: number; seed: number },
+): FieldRegistration {
+  // beads and vesicles in AFM against every spot (merged across channels) in fluorescence
+  const afm = [...fiducialCandidates, ...vesicles].map((r) => r.centroidPx);
+  const fl = mergeSpots(spotsPerChannel, o.mergeSpotsPx);
+  const found = findPairsRansac(afm, fl, {
+    afmPixelNm: o.afmPixelNm, flPixelNm: o.flPixelNm, inlierTolerancePx: o.pairingToleranceFlPx, seed: o.seed,
+  });
+  return describe('automatic', found.pairs.map((p) => ({ afm: p.afm, fl: p.fl })), null, o);
+}
+
+function describe(
+  source: FieldRegistration['source'],
+  pairs: FiducialPair[],
+  refinement: FieldRegistration['refinement'],
+  o: { afmPixelNm: number; flPixelNm: number },
+): FieldRegistration {
+  const evaluation = evaluateRegistration(pairs, { afmPixelNm: o.afmPixelNm, flPixelNm: o.flPixelNm });
+  return {
+    source,
+    flFromAfm: evaluation.flFromAfm,
+    afmFromFl: invertAffine(evaluation.flFromAfm),
+    description: evaluation.description,
+    mirrored: evaluation.mirrored,
+    pairs,
+    nbPairs: pairs.length,
+    freNm: evaluation.freNm,
+    rmsResidualPx: evaluation.rmsResidualPx,
+    leaveOneOutTreRmsNm: evaluation.leaveOneOutTreRmsNm,
+    predictedTreAtCentroidNm: evaluation.predictedTreAtCentroidNm,
+    warnings: evaluation.warnings,
+    refinement,
+  };
+}

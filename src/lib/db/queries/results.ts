@@ -1,0 +1,485 @@
+/**
+ * Released results: releases of a sample, and the per-sample and per-study aggregates shown to
+ * collaborators. Every number is computed by PostgreSQL (aggregates over the vesicle rows of the
+ * selected link runs, served by `vesicles_link_run_results_index`); vesicle rows reach Node only
+ * in the streamed per-vesicle export and as a bounded, thinned sample for the rank-sum test.
+ */
+import type { Db } from '../client';
+import type { SessionUser } from '../../auth/permissions';
+import { estimateProportion } from '../../reporting/estimate';
+import { phenotypeLabel } from '../../reporting/phenotypeLabel';
+import type {
+  FieldBreakdown, Histogram, MarkerComparison, MarkerFraction, PhenotypeCount, ReleaseInfo, ResultSource,
+  SampleMarkerRow, SampleResults, SizeComparison, StudyComparison,
+} from '../../reporting/types';
+import { benjaminiHochberg, compareProportions, mannWhitneyU } from '../../analysis/stats';
+
+/** Histogram ranges: fixed so that samples and releases can be compared bin by bin. */
+export const DIAMETER_BINS = { lowNm: 0, highNm: 500, bins: 50 } as const;
+export const HEIGHT_BINS = { lowNm: 0, highNm: 100, bins: 50 } as const;
+/** Most vesicles per group entering the Mann–Whitney test (keeps the transfer and the test bounded). */
+export const MAX_RANK_SAMPLE = 5000;
+
+type Panel = { channelIndex: number; marker: string }[];
+
+async function rows<T>(db: Db, text: string, params: unknown[] = []): Promise<T[]> {
+  return (await db.$client.query(text, params)).rows as T[];
+}
+
+/** `count(*) filter (...)` per panel channel; channel indexes are integers from the DB, never user text. */
+function markerCountColumns(panel: Panel, alias = ''): string {
+  return panel
+    .map((c) => {
+      const bit = 2 ** c.channelIndex;
+      if (!Number.isInteger(bit) || c.channelIndex < 0 || c.channelIndex > 30) throw new RangeError(`channel index ${c.channelIndex} out of 0…30`);
+      return `count(*) filter (where ${alias}marker_bits & ${bit} <> 0)::int as p${c.channelIndex}`;
+    })
+    .join(', ');
+}
+
+export interface SampleContext {
+  id: string;
+  code: string;
+  groupLabel: string;
+  controlKind: string;
+  studyId: string;
+  studyName: string;
+}
+
+/** The sample with its study, or null. */
+export async function getSampleContext(db: Db, sampleId: string): Promise<SampleContext | null> {
+  const [row] = await rows<SampleContext>(
+    db,
+    `select s.id, s.code, s.group_label as "groupLabel", s.control_kind as "controlKind", s.study_id as "studyId", st.name as "studyName"
+       from samples s join studies st on st.id = s.study_id where s.id = $1`,
+    [sampleId],
+  );
+  return row ?? null;
+}
+
+/** The study's marker panel in channel order. */
+export async function getPanel(db: Db, studyId: string): Promise<Panel> {
+  return rows<{ channelIndex: number; marker: string }>(
+    db,
+    `select channel_index as "channelIndex", marker from marker_channels where study_id = $1 order by channel_index`,
+    [studyId],
+  );
+}
+
+/** The highest release version of a sample with its link runs, or null when never released. */
+export async function getLatestRelease(db: Db, sampleId: string): Promise<(ReleaseInfo & { linkRunIds: string[] }) | null> {
+  const [row] = await rows<{ id: string; version: number; releasedAt: Date; linkRunIds: string[] }>(
+    db,
+    `select id, version, released_at as "releasedAt", link_run_ids as "linkRunIds"
+       from releases where sample_id = $1 order by version desc limit 1`,
+    [sampleId],
+  );
+  return row ? { id: row.id, version: row.version, releasedAt: row.releasedAt.toISOString(), linkRunIds: row.linkRunIds } : null;
+}
+
+/** Ids of the current link runs of the sample's fields (what a new release would freeze). */
+export async function getCurrentLinkRunIds(db: Db, sampleId: string): Promise<string[]> {
+  const r = await rows<{ id: string }>(
+    db,
+    `select lr.id from link_runs lr join fields f on f.id = lr.field_id where f.sample_id = $1 and lr.current order by lr.id`,
+    [sampleId],
+  );
+  return r.map((x) => x.id);
+}
+
+export type ReleaseOutcome =
+  | { ok: true; release: ReleaseInfo & { linkRunIds: string[] } }
+  | { ok: false; reason: 'no_fields' }
+  | { ok: false; reason: 'not_approved'; notApproved: number; total: number }
+  | { ok: false; reason: 'no_link_runs'; fieldsWithout: number }
+  | { ok: false; reason: 'version_taken' };
+
+/**
+ * Creates the next release of a sample, freezing the current link run of each field. Refused unless
+ * every field is approved and has a current link run. Two simultaneous calls race on the unique
+ * (sample_id, version): the loser gets `version_taken` instead of a duplicate release.
+ */
+export async function createRelease(db: Db, sampleId: string, releasedBy: string): Promise<ReleaseOutcome> {
+  const [state] = await rows<{ total: number; notApproved: number; withoutRun: number }>(
+    db,
+    `select count(*)::int as total,
+            count(*) filter (where f.status <> 'approved')::int as "notApproved",
+            count(*) filter (where not exists (select 1 from link_runs lr where lr.field_id = f.id and lr.current))::int as "withoutRun"
+       from fields f where f.sample_id = $1`,
+    [sampleId],
+  );
+  if (state.total === 0) return { ok: false, reason: 'no_fields' };
+  if (state.notApproved > 0) return { ok: false, reason: 'not_approved', notApproved: state.notApproved, total: state.total };
+  if (state.withoutRun > 0) return { ok: false, reason: 'no_link_runs', fieldsWithout: state.withoutRun };
+  const linkRunIds = await getCurrentLinkRunIds(db, sampleId);
+  try {
+    const [row] = await rows<{ id: string; version: number; releasedAt: Date }>(
+      db,
+      `insert into releases (sample_id, version, link_run_ids, released_by)
+       select $1, coalesce(max(version), 0) + 1, $2::jsonb, $3 from releases where sample_id = $1
+       returning id, version, released_at as "releasedAt"`,
+      [sampleId, JSON.stringify(linkRunIds), releasedBy],
+    );
+    return { ok: true, release: { id: row.id, version: row.version, releasedAt: row.releasedAt.toISOString(), linkRunIds } };
+  } catch (err) {
+    if ((err as { code?: string }).code === '23505') return { ok: false, reason: 'version_taken' };
+    throw err;
+  }
+}
+
+function emptyHistogram(spec: { lowNm: number; highNm: number; bins: number }): Histogram & { counts: number[] } {
+  return { lowNm: spec.lowNm, binWidthNm: (spec.highNm - spec.lowNm) / spec.bins, counts: new Array(spec.bins).fill(0), below: 0, above: 0 };
+}
+
+function addToHistogram(h: { counts: number[]; below: number; above: number }, bucket: number, n: number) {
+  if (bucket <= 0) h.below += n;
+  else if (bucket > h.counts.length) h.above += n;
+  else h.counts[bucket - 1] += n;
+}
+
+/**
+ * All per-sample aggregates over the vesicle rows of `linkRunIds`: counts, marker-positive fractions
+ * with Wilson intervals, phenotype combinations, diameter/height histograms (overall and per
+ * phenotype) and a per-field breakdown with the latest registration's FRE.
+ */
+export async function getSampleResults(
+  db: Db,
+  sample: SampleContext,
+  selection: { source: ResultSource; release: ReleaseInfo | null; linkRunIds: string[] },
+): Promise<SampleResults> {
+  const panel = await getPanel(db, sample.studyId);
+  const ids = selection.linkRunIds;
+  const markerCols = markerCountColumns(panel);
+  const D = DIAMETER_BINS;
+  const H = HEIGHT_BINS;
+  const [[totals], phen, hist, fieldRows, [fa]] = await Promise.all([
+    rows<Record<string, number | number[] | null>>(
+      db,
+      `select count(*)::int as n${markerCols ? ', ' + markerCols : ''},
+              percentile_cont(array[0.25, 0.5, 0.75]) within group (order by diameter_nm) as dq,
+              percentile_cont(array[0.25, 0.5, 0.75]) within group (order by height_nm) as hq
+         from vesicles where link_run_id = any($1::uuid[])`,
+      [ids],
+    ),
+    rows<{ bits: number; n: number }>(
+      db,
+      `select marker_bits as bits, count(*)::int as n from vesicles where link_run_id = any($1::uuid[]) group by 1 order by 2 desc, 1`,
+      [ids],
+    ),
+    rows<{ m: 'd' | 'h'; bits: number; b: number; n: number }>(
+      db,
+      `select 'd' as m, marker_bits as bits, width_bucket(diameter_nm, ${D.lowNm}, ${D.highNm}, ${D.bins}) as b, count(*)::int as n
+         from vesicles where link_run_id = any($1::uuid[]) group by 2, 3
+       union all
+       select 'h', marker_bits, width_bucket(height_nm, ${H.lowNm}, ${H.highNm}, ${H.bins}), count(*)::int
+         from vesicles where link_run_id = any($1::uuid[]) group by 2, 3`,
+      [ids],
+    ),
+    rows<Record<string, unknown>>(
+      db,
+      `select f.id as "fieldId", f.name, f.status, f.afm_pixel_nm as "afmPixelNm", f.fl_pixel_nm as "flPixelNm",
+              r.fre_nm as "freNm", r.tre_nm as "treNm", r.version as "registrationVersion", r.nb as "nbFiducials",
+              coalesce(v.n, 0)::int as n${panel.map((c) => `, coalesce(v.p${c.channelIndex}, 0)::int as p${c.channelIndex}`).join('')}
+         from fields f
+         left join lateral (
+           select fre_nm, tre_nm, version, jsonb_array_length(pairs)::int as nb from registrations
+            where field_id = f.id order by version desc limit 1
+         ) r on true
+         left join (
+           select field_id, count(*)::int as n${markerCols ? ', ' + markerCols : ''}
+             from vesicles where link_run_id = any($2::uuid[]) group by field_id
+         ) v on v.field_id = f.id
+        where f.sample_id = $1 order by f.name, f.id`,
+      [sample.id, ids],
+    ),
+    rows<{ n: number }>(db, `select count(distinct field_id)::int as n from link_runs where id = any($1::uuid[])`, [ids]),
+  ]);
+
+  const n = totals.n as number;
+  const markerNames = panel.map((c) => c.marker);
+  const markers: MarkerFraction[] = panel.map((c) => ({
+    channelIndex: c.channelIndex,
+    marker: c.marker,
+    ...estimateProportion(totals[`p${c.channelIndex}`] as number, n),
+  }));
+  const phenotypes: PhenotypeCount[] = phen.map((p) => ({ bits: p.bits, label: phenotypeLabel(p.bits, markerNames), ...estimateProportion(p.n, n) }));
+
+  const diameter = emptyHistogram(D);
+  const height = emptyHistogram(H);
+  const diameterBy: Record<string, ReturnType<typeof emptyHistogram>> = {};
+  const heightBy: Record<string, ReturnType<typeof emptyHistogram>> = {};
+  for (const r of hist) {
+    const [overall, by, spec] = r.m === 'd' ? [diameter, diameterBy, D] : [height, heightBy, H];
+    addToHistogram(overall, r.b, r.n);
+    addToHistogram((by[r.bits] ??= emptyHistogram(spec)), r.b, r.n);
+  }
+  const quart = (q: unknown) => {
+    const a = q as number[] | null;
+    return { q1Nm: a?.[0] ?? null, medianNm: a?.[1] ?? null, q3Nm: a?.[2] ?? null };
+  };
+  const fields: FieldBreakdown[] = fieldRows.map((f) => ({
+    fieldId: f.fieldId as string,
+    name: f.name as string,
+    status: f.status as string,
+    vesicles: f.n as number,
+    positives: panel.map((c) => f[`p${c.channelIndex}`] as number),
+    freNm: (f.freNm as number | null) ?? null,
+    treNm: (f.treNm as number | null) ?? null,
+    nbFiducials: (f.nbFiducials as number | null) ?? null,
+    registrationVersion: (f.registrationVersion as number | null) ?? null,
+    afmPixelNm: (f.afmPixelNm as number | null) ?? null,
+    flPixelNm: (f.flPixelNm as number | null) ?? null,
+  }));
+  return {
+    sample: { id: sample.id, code: sample.code, groupLabel: sample.groupLabel, studyId: sample.studyId, studyName: sample.studyName, controlKind: sample.controlKind },
+    source: selection.source,
+    release: selection.release ? { id: selection.release.id, version: selection.release.version, releasedAt: selection.release.releasedAt } : null,
+    panel,
+    fieldsAnalysed: fa.n,
+    vesicles: n,
+    markers,
+    phenotypes,
+    diameter: { ...quart(totals.dq), histogram: diameter, byPhenotype: diameterBy },
+    height: { ...quart(totals.hq), histogram: height, byPhenotype: heightBy },
+    fields,
+  };
+}
+
+/**
+ * SQL (a CTE body) selecting `sample_id, code, group_label, version, link_run_id` for every sample of
+ * study $1: its latest release's link runs, or its current link runs.
+ */
+function selectionCte(source: ResultSource): string {
+  return source === 'released'
+    ? `select s.id as sample_id, s.code, s.group_label, r.version, x.id::uuid as link_run_id
+         from samples s
+         join lateral (select version, link_run_ids from releases where sample_id = s.id order by version desc limit 1) r on true
+         cross join lateral jsonb_array_elements_text(r.link_run_ids) as x(id)
+        where s.study_id = $1`
+    : `select s.id as sample_id, s.code, s.group_label, null::int as version, lr.id as link_run_id
+         from samples s join fields f on f.sample_id = s.id join link_runs lr on lr.field_id = f.id and lr.current
+        where s.study_id = $1`;
+}
+
+function median(sorted: number[]): number | null {
+  if (sorted.length === 0) return null;
+  const m = sorted.length >> 1;
+  return sorted.length % 2 ? sorted[m] : (sorted[m - 1] + sorted[m]) / 2;
+}
+
+/**
+ * Values of one group for the rank-sum test. At most about {@link MAX_RANK_SAMPLE} rows come back:
+ * rows are thinned by a hash of their own measurements, so the same data always give the same
+ * sample (and p-value), with no ordering of the whole group.
+ */
+async function groupSizes(db: Db, studyId: string, source: ResultSource, group: string, total: number) {
+  const stride = Math.max(1, Math.ceil(total / MAX_RANK_SAMPLE));
+  return rows<{ d: number; h: number }>(
+    db,
+    `with sel as (${selectionCte(source)})
+     select v.diameter_nm as d, v.height_nm as h
+       from sel join vesicles v on v.link_run_id = sel.link_run_id
+      where sel.group_label = $2 and (hashfloat4(v.diameter_nm) # hashfloat4(v.height_nm)) % $3 = 0`,
+    [studyId, group, stride],
+  );
+}
+
+/**
+ * Per-sample marker-positive fractions (Wilson intervals) for all samples of a study that have data
+ * in `source`, grouped by group label; and, when two groups are named, a per-marker comparison of
+ * the pooled fractions (Fisher or chi-square, Newcombe difference, Benjamini–Hochberg across markers)
+ * and Mann–Whitney tests of diameter and height.
+ */
+export async function getStudyComparison(
+  db: Db,
+  study: { id: string; name: string },
+  source: ResultSource,
+  groupA: string | null,
+  groupB: string | null,
+): Promise<StudyComparison> {
+  const panel = await getPanel(db, study.id);
+  const perSample = await rows<Record<string, unknown>>(
+    db,
+    `with sel as (${selectionCte(source)}),
+          agg as (
+            select sel.link_run_id, count(v.link_run_id)::int as n${panel.length ? ', ' + markerCountColumns(panel, 'v.') : ''}
+              from (select distinct link_run_id from sel) sel
+              left join vesicles v on v.link_run_id = sel.link_run_id
+             group by sel.link_run_id)
+     select sel.sample_id as "sampleId", sel.code, sel.group_label as "groupLabel", max(sel.version) as "releaseVersion",
+            sum(agg.n)::int as n${panel.map((c) => `, sum(agg.p${c.channelIndex})::int as p${c.channelIndex}`).join('')}
+       from sel join agg on agg.link_run_id = sel.link_run_id
+      group by sel.sample_id, sel.code, sel.group_label
+      order by sel.group_label, sel.code`,
+    [study.id],
+  );
+  const samples: SampleMarkerRow[] = perSample.map((r) => ({
+    sampleId: r.sampleId as string,
+    code: r.code as string,
+    groupLabel: r.groupLabel as string,
+    releaseVersion: (r.releaseVersion as number | null) ?? null,
+    vesicles: r.n as number,
+    markers: panel.map((c) => ({ channelIndex: c.channelIndex, marker: c.marker, ...estimateProportion(r[`p${c.channelIndex}`] as number, r.n as number) })),
+  }));
+  const groups = [...new Set(samples.map((s) => s.groupLabel))].sort();
+
+  let markerComparisons: MarkerComparison[] = [];
+  let sizeComparisons: SizeComparison[] = [];
+  if (groupA !== null && groupB !== null) {
+    // pooled counts per group (vesicles of all samples of the group)
+    const pool = (g: string) => {
+      const inGroup = samples.filter((s) => s.groupLabel === g);
+      const total = inGroup.reduce((t, s) => t + s.vesicles, 0);
+      return { total, positives: panel.map((_, i) => inGroup.reduce((t, s) => t + s.markers[i].count, 0)) };
+    };
+    const a = pool(groupA);
+    const b = pool(groupB);
+    const raw = panel.map((c, i) => {
+      const ea = estimateProportion(a.positives[i], a.total);
+      const eb = estimateProportion(b.positives[i], b.total);
+      if (a.total === 0 || b.total === 0) {
+        return { marker: c.marker, channelIndex: c.channelIndex, a: ea, b: eb, test: null, pValue: null, difference: null, differenceLower: null, differenceUpper: null };
+      }
+      const cmp = compareProportions(a.positives[i], a.total, b.positives[i], b.total);
+      return {
+        marker: c.marker, channelIndex: c.channelIndex, a: ea, b: eb, test: cmp.test, pValue: cmp.pValue,
+        difference: cmp.difference, differenceLower: cmp.differenceLower, differenceUpper: cmp.differenceUpper,
+      };
+    });
+    const tested = raw.filter((r) => r.pValue !== null);
+    const adjusted = benjaminiHochberg(tested.map((r) => r.pValue as number));
+    markerComparisons = raw.map((r) => ({ ...r, pAdjusted: r.pValue === null ? null : adjusted[tested.indexOf(r)] }));
+
+    const [va, vb] = await Promise.all([
+      a.total ? groupSizes(db, study.id, source, groupA, a.total) : Promise.resolve([]),
+      b.total ? groupSizes(db, study.id, source, groupB, b.total) : Promise.resolve([]),
+    ]);
+    sizeComparisons = (['diameter_nm', 'height_nm'] as const).map((measure) => {
+      const key = measure === 'diameter_nm' ? 'd' : 'h';
+      const xa = va.map((r) => r[key]).sort((p, q) => p - q);
+      const xb = vb.map((r) => r[key]).sort((p, q) => p - q);
+      const mw = xa.length && xb.length ? mannWhitneyU(xa, xb) : null;
+      return {
+        measure, nA: a.total, nB: b.total, usedA: xa.length, usedB: xb.length, medianA: median(xa), medianB: median(xb),
+        uStatistic: mw?.uStatistic ?? null, pValue: mw?.pValue ?? null, method: mw?.method ?? null,
+      };
+    });
+  }
+  return { study, source, panel, groups, samples, groupA, groupB, markerComparisons, sizeComparisons };
+}
+
+/** Samples with at least one release in the studies the user belongs to (admins: all), newest first. */
+export async function listReleasedSamples(db: Db, user: SessionUser) {
+  return rows<{ sampleId: string; code: string; groupLabel: string; studyId: string; studyName: string; version: number; releasedAt: Date }>(
+    db,
+    `select s.id as "sampleId", s.code, s.group_label as "groupLabel", st.id as "studyId", st.name as "studyName",
+            r.version, r.released_at as "releasedAt"
+       from samples s
+       join studies st on st.id = s.study_id
+       join lateral (select version, released_at from releases where sample_id = s.id order by version desc limit 1) r on true
+      where $2 or exists (select 1 from study_members m where m.study_id = st.id and m.user_id = $1)
+      order by st.name, s.code`,
+    [user.id, user.role === 'admin'],
+  );
+}
+
+/** One vesicle row of the per-vesicle export. */
+export interface VesicleExportRow {
+  id: number;
+  fieldId: string;
+  linkRunId: string;
+  index: number;
+  heightNm: number;
+  diameterNm: number;
+  volumeNm3: number;
+  areaNm2: number;
+  markerBits: number;
+  intensities: (number | null)[];
+}
+
+/**
+ * Pages through the vesicle rows of `linkRunIds` by keyset (link run, then id), `pageSize` rows per
+ * query, so an export of any size holds one page in memory.
+ */
+export async function* pageVesicles(db: Db, linkRunIds: string[], pageSize = 5000): AsyncGenerator<VesicleExportRow[]> {
+  for (const runId of [...linkRunIds].sort()) {
+    let after = 0;
+    for (;;) {
+      const page = await rows<VesicleExportRow & { id: string }>(
+        db,
+        `select id, field_id as "fieldId", link_run_id as "linkRunId", index, height_nm as "heightNm", diameter_nm as "diameterNm",
+                volume_nm3 as "volumeNm3", area_nm2 as "areaNm2", marker_bits as "markerBits",
+                coalesce((select jsonb_agg(m->'intensity') from jsonb_array_elements(markers) m), '[]'::jsonb) as intensities
+           from vesicles where link_run_id = $1 and id > $2 order by id limit $3`,
+        [runId, after, pageSize],
+      );
+      if (page.length === 0) break;
+      yield page.map((r) => ({ ...r, id: Number(r.id) }));
+      after = Number(page[page.length - 1].id);
+      if (page.length < pageSize) break;
+    }
+  }
+}
+
+/** What the study recorded, for the reporting checklist (see src/lib/reporting/misevChecklist.ts). */
+export async function getChecklistInput(db: Db, studyId: string) {
+  const [panel, samples, [fieldAgg], runs, [reg], [counts]] = await Promise.all([
+    rows<{ channelIndex: number; marker: string; antibodyClone: string; fluorophore: string; excitationNm: number | null; emissionNm: number | null }>(
+      db,
+      `select channel_index as "channelIndex", marker, antibody_clone as "antibodyClone", fluorophore,
+              excitation_nm as "excitationNm", emission_nm as "emissionNm"
+         from marker_channels where study_id = $1 order by channel_index`,
+      [studyId],
+    ),
+    rows<{ code: string; controlKind: string; source: string; isolationMethod: string; substrate: string; dilution: string }>(
+      db,
+      `select code, control_kind as "controlKind", source, isolation_method as "isolationMethod", substrate, dilution
+         from samples where study_id = $1 order by code`,
+      [studyId],
+    ),
+    rows<Record<string, unknown>>(
+      db,
+      `select count(*)::int as fields,
+              array_remove(array_agg(distinct f.imaging_medium::text), null) as media,
+              array_remove(array_agg(distinct nullif(f.scan_mode, '')), null) as "scanModes",
+              count(f.afm_pixel_nm)::int as "withAfmPixel", count(f.fl_pixel_nm)::int as "withFlPixel",
+              count(f.tip_radius_nm)::int as "withTipRadius", count(f.objective_na)::int as "withNa",
+              count(f.exposure_ms)::int as "withExposure", count(*) filter (where jsonb_array_length(f.channel_emission_nm) > 0)::int as "withEmission",
+              min(f.afm_pixel_nm) as "afmPixelMinNm", max(f.afm_pixel_nm) as "afmPixelMaxNm",
+              min(f.fl_pixel_nm) as "flPixelMinNm", max(f.fl_pixel_nm) as "flPixelMaxNm"
+         from fields f join samples s on s.id = f.sample_id where s.study_id = $1`,
+      [studyId],
+    ),
+    rows<{ settings: Record<string, unknown> }>(
+      db,
+      `select lr.settings from link_runs lr join fields f on f.id = lr.field_id join samples s on s.id = f.sample_id
+        where s.study_id = $1 and lr.current order by lr.created_at desc limit 200`,
+      [studyId],
+    ),
+    rows<{ registered: number; minFiducials: number | null; maxFreNm: number | null; withTre: number }>(
+      db,
+      `select count(*)::int as registered, min(nb)::int as "minFiducials", max(fre_nm) as "maxFreNm", count(tre_nm)::int as "withTre"
+         from (select distinct on (r.field_id) r.field_id, jsonb_array_length(r.pairs) as nb, r.fre_nm, r.tre_nm
+                 from registrations r join fields f on f.id = r.field_id join samples s on s.id = f.sample_id
+                where s.study_id = $1 order by r.field_id, r.version desc) latest`,
+      [studyId],
+    ),
+    rows<{ released: number }>(
+      db,
+      `select count(distinct r.sample_id)::int as released from releases r join samples s on s.id = r.sample_id where s.study_id = $1`,
+      [studyId],
+    ),
+  ]);
+  return {
+    panel,
+    samples,
+    fields: fieldAgg as {
+      fields: number; media: string[]; scanModes: string[]; withAfmPixel: number; withFlPixel: number; withTipRadius: number;
+      withNa: number; withExposure: number; withEmission: number; afmPixelMinNm: number | null; afmPixelMaxNm: number | null;
+      flPixelMinNm: number | null; flPixelMaxNm: number | null;
+    },
+    linkSettings: runs.map((r) => r.settings),
+    registrations: reg,
+    releasedSamples: counts.released,
+  };
+}
