@@ -30,6 +30,14 @@ export const ROUTES: RouteSpec[] = [
   { file: 'admin/mail.ts', method: 'GET', path: '/api/admin/mail', allowed: ['admin'] },
   { file: 'invitations/accept.ts', method: 'POST', path: '/api/invitations/accept', allowed: 'public', body: {} },
   { file: 'password-reset.ts', method: 'POST', path: '/api/password-reset', allowed: 'public', body: {} },
+  // Results (issue 7). :sample is unreleased (one failed field): lab roles get 404 not_released / 409 on release;
+  // a collaborator gets the same 403 as for another study's sample. Released data: tests/integration/results.test.ts.
+  { file: 'samples/[id]/release.ts', method: 'POST', path: '/api/samples/:sample/release', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'samples/[id]/results.ts', method: 'GET', path: '/api/samples/:sample/results', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'samples/[id]/results.csv.ts', method: 'GET', path: '/api/samples/:sample/results.csv', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'samples/[id]/vesicles.csv.ts', method: 'GET', path: '/api/samples/:sample/vesicles.csv?source=current', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'studies/[id]/comparison.ts', method: 'GET', path: '/api/studies/:study/comparison', allowed: all, studyScoped: true },
+  { file: 'studies/[id]/comparison.csv.ts', method: 'GET', path: '/api/studies/:study/comparison.csv?groupA=patient&groupB=healthy%20control', allowed: all, studyScoped: true },
 ];
 
 ROUTES.push(

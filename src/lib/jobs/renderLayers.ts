@@ -16,6 +16,37 @@ async function upload(st: Storage, fieldId: string, layer: string, rgb: Uint8Arr
   return prefix;
 }
 
+/**
+ * A float copy of a layer, box-downsampled so its longer side is at most `maxSide`, for the
+ * viewer's cursor read-out (value under the cursor without decoding the original in the browser).
+ */
+export function downsampleValues(r: Raster, maxSide = 1024) {
+  const f = Math.max(1, Math.ceil(Math.max(r.width, r.height) / maxSide));
+  const w = Math.ceil(r.width / f);
+  const h = Math.ceil(r.height / f);
+  const out = new Float32Array(w * h);
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      let sum = 0;
+      let n = 0;
+      for (let yy = y * f; yy < Math.min(r.height, (y + 1) * f); yy++) {
+        for (let xx = x * f; xx < Math.min(r.width, (x + 1) * f); xx++) {
+          sum += r.data[yy * r.width + xx];
+          n++;
+        }
+      }
+      out[y * w + x] = sum / n;
+    }
+  }
+  return { data: out, width: w, height: h, factor: f };
+}
+
+async function uploadValues(st: Storage, fieldId: string, layer: string, r: Raster) {
+  const v = downsampleValues(r);
+  await putBytes(st, `${tilePrefix(fieldId, layer)}.f32`, new Uint8Array(v.data.buffer), 'application/octet-stream');
+  return { valuesWidth: v.width, valuesHeight: v.height, valuesFactor: v.factor };
+}
+
 /** Height map through the viridis colour map, range from robust percentiles (nm). */
 export async function renderHeightLayer(st: Storage, fieldId: string, levelled: Raster) {
   const { min: low, max: high } = contrastFromPercentiles(levelled.data, 0.5, 99.8);
@@ -23,7 +54,8 @@ export async function renderHeightLayer(st: Storage, fieldId: string, levelled: 
   const maxNm = Math.max(high, minNm + 1);
   const map = colourMapHeight(levelled, { minNm, maxNm });
   const prefix = await upload(st, fieldId, 'height', map.rgb, levelled.width, levelled.height);
-  return { prefix, display: { unit: 'nm', minNm, maxNm, colourBar: map.colourBar } };
+  const values = await uploadValues(st, fieldId, 'height', levelled);
+  return { prefix, display: { unit: 'nm', minNm, maxNm, colourBar: map.colourBar, ...values } };
 }
 
 /** Pseudo-colour for an emission wavelength (nm): a rough visible-spectrum hue, common practice for display. */
@@ -48,5 +80,6 @@ export async function renderChannelLayer(st: Storage, fieldId: string, index: nu
     rgb[i * 3 + 2] = b * v;
   }
   const prefix = await upload(st, fieldId, `ch${index}`, rgb, frame.width, frame.height);
-  return { prefix, display: { unit: 'counts', lowCounts: low, highCounts: high, colour: `rgb(${r},${g},${b})` } };
+  const values = await uploadValues(st, fieldId, `ch${index}`, frame);
+  return { prefix, display: { unit: 'counts', lowCounts: low, highCounts: high, colour: `rgb(${r},${g},${b})`, ...values } };
 }

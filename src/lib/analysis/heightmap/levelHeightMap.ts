@@ -19,7 +19,10 @@ const MIN_SIGMA_NM = 1e-6;
  * fitted on background pixels only, then scan-line alignment (each row shifted by the median of
  * its background pixels). Particles are excluded iteratively: residuals above
  * median + k·(1.4826·MAD) are dropped, grown by a few px, and the fit is repeated until the
- * background mask stops changing. The input raster is not modified.
+ * background mask stops changing or the correction changes the map by less than a small fraction
+ * of the noise. The first mask comes from a surface through robust block medians and whole-row
+ * medians, so tall beads and scan-line jumps do not spoil the first fit. Rows with too little
+ * background are aligned on their whole-row median. The input raster is not modified.
  *
  * @param raster - raw heights (nm), row-major
  * @param options - see {@link LevelHeightMapOptions}
@@ -60,7 +63,7 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
   const scratch = new Float32Array(n);
   const dilationTmp = new Uint8Array(n);
   const lastRow = new Int32Array(width);
-  const rowValid = new Uint8Array(height);
+  const rowValid = new Uint8Array(height).fill(1);
   const rowBuf = new Float32Array(width); // Float32 like every buffer given to selectKth: one element kind keeps it fast
   let coefficients: Float64Array = new Float64Array(basis.length);
   let median = 0;
@@ -73,6 +76,23 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
   const start = blockMedianSurface(data, width, height, basis, xc, yc, sx, sy, exclusionK, scratch);
   if (start) {
     evaluateResidual(data, width, height, start, basis, xc, yc, sx, sy, residual);
+    if (alignRows) {
+      // whole-row medians: robust while particles cover less than half a row; without this a scan line
+      // with a large jump would be excluded as a whole and never be aligned
+      rowValid.fill(1);
+      for (let y = 0; y < height; y++) {
+        const row = y * width;
+        // every other pixel: this is only the starting point, refined on the background below
+        let m = 0;
+        for (let x = y & 1; x < width; x += 2) rowBuf[m++] = residual[row + x];
+        rowOffsetsNm[y] = medianInPlace(rowBuf, m);
+      }
+      removeTrend(rowOffsetsNm, rowValid, basis.length === 6 ? 2 : 1, yc, sy);
+      for (let y = 0; y < height; y++) {
+        const row = y * width;
+        for (let x = 0; x < width; x++) residual[row + x] -= rowOffsetsNm[y];
+      }
+    }
     const first = robustSigma(residual, undefined, scratch, ROBUST_MAX_SAMPLES);
     dilateAbove(residual, first.median + exclusionK * Math.max(first.robustSigma, MIN_SIGMA_NM), width, height, exclusionDilationPx, excluded, dilationTmp, lastRow);
     let nbStart = 0;
@@ -92,8 +112,13 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
         let m = 0;
         const row = y * width;
         for (let x = 0; x < width; x++) if (background[row + x]) rowBuf[m++] = residual[row + x];
-        rowValid[y] = m >= minBackgroundPerRow ? 1 : 0;
-        rowOffsetsNm[y] = rowValid[y] ? medianInPlace(rowBuf, m) : 0;
+        if (m < minBackgroundPerRow) {
+          // too little background in this row: fall back to the whole row
+          for (let x = 0; x < width; x++) rowBuf[x] = residual[row + x];
+          m = width;
+        }
+        rowValid[y] = 1;
+        rowOffsetsNm[y] = medianInPlace(rowBuf, m);
       }
       // Row offsets and the surface's pure-y terms (1, y, y²) describe the same thing; keep those terms
       // in the surface so the split is unique and the alternation converges.
@@ -240,9 +265,10 @@ function blockMedianSurface(
   for (let by = 0; by < nbY; by++) {
     for (let bx = 0; bx < nbX; bx++) {
       let m = 0;
-      for (let y = by * block; y < (by + 1) * block; y++) {
+      // a quarter of the pixels (every other row and column) is plenty for a starting median
+      for (let y = by * block; y < (by + 1) * block; y += 2) {
         const row = y * width;
-        for (let x = bx * block; x < (bx + 1) * block; x++) scratch[m++] = data[row + x];
+        for (let x = bx * block; x < (bx + 1) * block; x += 2) scratch[m++] = data[row + x];
       }
       const b = by * nbX + bx;
       z[b] = medianInPlace(scratch, m);
@@ -349,6 +375,8 @@ function medianInPlace(buf: Float32Array, m: number): number {
 /**
  * out = (values > cut) dilated by a (2r+1)² square. Separable, and both passes read memory in row
  * order: the vertical pass keeps, per column, the last row where the horizontal result was set.
+ * Own kernel rather than image-js morphology: it fuses the float threshold with the dilation and
+ * reuses buffers, with no image object per levelling pass.
  */
 function dilateAbove(
   values: Float32Array, cut: number, width: number, height: number, r: number,

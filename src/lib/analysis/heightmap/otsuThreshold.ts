@@ -7,7 +7,8 @@ import { validateRaster } from './validateRaster';
 /**
  * Otsu's threshold of float heights: a histogram of `nbBins` equal bins between the minimum and the
  * maximum, Otsu's split on it (bin centres as values), and the threshold at the upper edge of the
- * last background bin. Beware: tall beads in the field pull the split towards them.
+ * last background bin. Beware: tall beads in the field pull the split towards them. Written here because
+ * image-js computes its thresholds on the integer histogram of 8/16-bit images, and heights are floats.
  *
  * @param raster - levelled heights (nm)
  * @param options - see {@link OtsuThresholdOptions}

@@ -21,7 +21,7 @@ export interface LevelHeightMapOptions {
    * pixels); 5% of the noise (e.g. 0.008 nm at 0.15 nm) is far below the 0.1 nm to which heights are read. @default 0.05
    */
   convergenceSigmaFraction?: number;
-  /** A row with fewer background pixels than this keeps offset 0 (px). @default 8 */
+  /** A row with fewer background pixels than this is aligned on the median of the whole row (px). @default 8 */
   minBackgroundPerRow?: number;
 }
 

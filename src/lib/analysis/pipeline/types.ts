@@ -49,7 +49,7 @@ export interface AnalyzeFieldOptions {
   cameraOffsetCounts?: number;
   /** Spot detection threshold in robust SDs of the LoG response. @default 5 */
   spotThresholdK?: number;
-  /** A fiducial pick snaps to a candidate at most this far away in either image (nm of sample). @default 300 */
+  /** A fiducial pick snaps to a candidate at most this far away in either image (nm of sample); 0 keeps picks as given. @default 300 */
   snapRadiusNm?: number;
   /** Spots of different channels closer than this are one candidate for automatic pairing (fluorescence px). @default 1.5 */
   mergeSpotsPx?: number;

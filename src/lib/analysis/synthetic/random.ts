@@ -19,7 +19,8 @@ const POISSON_INVERSION_MAX_MEAN = 10;
 /**
  * Create a deterministic random source from a 32-bit seed (mulberry32 generator), with
  * normal (Box–Muller) and Poisson draws (inversion for mean < 10, transformed rejection above).
- * The core must never use Math.random, so every synthetic scene takes one of these.
+ * The core must never use Math.random, so every synthetic scene takes one of these. Written here because
+ * none of the installed packages offers a seeded generator.
  *
  * @param seed - any integer; only its low 32 bits are used
  * @returns a fresh generator; two generators with the same seed give identical sequences

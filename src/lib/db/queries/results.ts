@@ -302,10 +302,10 @@ export async function getStudyComparison(
     db,
     `with sel as (${selectionCte(source)}),
           agg as (
-            select sel.link_run_id, count(v.link_run_id)::int as n${panel.length ? ', ' + markerCountColumns(panel, 'v.') : ''}
-              from (select distinct link_run_id from sel) sel
-              left join vesicles v on v.link_run_id = sel.link_run_id
-             group by sel.link_run_id)
+            select runs.link_run_id, count(v.link_run_id)::int as n${panel.length ? ', ' + markerCountColumns(panel, 'v.') : ''}
+              from (select distinct link_run_id from sel) runs
+              left join vesicles v on v.link_run_id = runs.link_run_id
+             group by runs.link_run_id)
      select sel.sample_id as "sampleId", sel.code, sel.group_label as "groupLabel", max(sel.version) as "releaseVersion",
             sum(agg.n)::int as n${panel.map((c) => `, sum(agg.p${c.channelIndex})::int as p${c.channelIndex}`).join('')}
        from sel join agg on agg.link_run_id = sel.link_run_id

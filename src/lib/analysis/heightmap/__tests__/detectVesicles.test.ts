@@ -65,6 +65,10 @@ describe('detectVesicles on synthetic scenes (tilt + line offsets + 0.15 nm nois
     // without the prominence criterion (huge minProminenceNm) each pair is one region
     const merged = analyzeHeightMap(scene.raster, 5, { detect: { minProminenceNm: 1000 } });
     expect(merged.vesicles.length).toBe(2);
+    // peaks 16 and 18 px apart (± 1–2 px: near the apex the cap is flatter than the noise) merge when the
+    // minimum separation is well above that distance, and stay apart when it is well below
+    expect(analyzeHeightMap(scene.raster, 5, { detect: { minSeparationPx: 10 } }).vesicles.length).toBe(4);
+    expect(analyzeHeightMap(scene.raster, 5, { detect: { minSeparationPx: 25 } }).vesicles.length).toBe(2);
   });
 
   it('drops regions that touch the border and keeps them when asked', () => {

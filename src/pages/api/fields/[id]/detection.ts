@@ -17,5 +17,5 @@ export const GET = handle(async (ctx) => {
     throw new HttpError(409, 'not_ready', 'The field has not been processed yet.');
   }
   const bytes = await getBytes(await getStorage(), detectionKey(id));
-  return new Response(bytes, { headers: { 'content-type': 'application/json', 'cache-control': 'private, no-cache' } });
+  return new Response(new TextDecoder().decode(bytes), { headers: { 'content-type': 'application/json', 'cache-control': 'private, no-cache' } });
 }) satisfies APIRoute;

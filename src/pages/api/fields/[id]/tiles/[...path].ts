@@ -10,10 +10,11 @@ import { getStorage } from '../../../../../lib/storage/client';
 import { getStream } from '../../../../../lib/storage/objects';
 import { tilePrefix } from '../../../../../lib/storage/keys';
 
-// Only the Deep Zoom shapes: "height.dzi" or "ch0_files/12/3_4.png"; anything else (../, other keys) is 404.
+// Only the Deep Zoom shapes ("height.dzi", "ch0_files/12/3_4.png") and the read-out values
+// ("height.f32"); anything else (../, other keys) is 404.
 const TilePath = z.object({
   id: z.uuid(),
-  path: z.string().regex(/^(height|ch\d{1,2})(\.dzi|_files\/\d{1,2}\/\d{1,5}_\d{1,5}\.png)$/),
+  path: z.string().regex(/^(height|ch\d{1,2})(\.dzi|\.f32|_files\/\d{1,2}\/\d{1,5}_\d{1,5}\.png)$/),
 });
 
 /** Tiles and descriptors of a field's layers, streamed from the bucket after a membership check. */
@@ -27,7 +28,7 @@ export const GET = handle(async (ctx) => {
     const obj = await getStream(await getStorage(), key);
     return new Response(Readable.toWeb(obj.body) as ReadableStream, {
       headers: {
-        'content-type': path.endsWith('.dzi') ? 'application/xml' : 'image/png',
+        'content-type': path.endsWith('.dzi') ? 'application/xml' : path.endsWith('.f32') ? 'application/octet-stream' : 'image/png',
         ...(obj.length !== undefined ? { 'content-length': String(obj.length) } : {}),
         // Private: tiles are behind sign-in; they change only when the field is re-ingested.
         'cache-control': 'private, max-age=300',

@@ -1,0 +1,51 @@
+import { useEffect, useState } from 'react';
+
+interface Status { status: string; failureReason: string | null; progress: { stage: string; fraction: number } | null }
+
+const WORDS: Record<string, string> = {
+  uploading: 'Uploading', ingesting: 'Processing', ready: 'Processed: ready to register', registered: 'Registered',
+  linked: 'Linked', approved: 'Approved', failed: 'Failed',
+};
+
+/** Live status of a field's processing; reloads the page once the field is processed. */
+export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: string; initial: Status; canRetry: boolean }) {
+  const [s, setS] = useState(initial);
+  const [msg, setMsg] = useState<string | null>(null);
+  useEffect(() => {
+    if (s.status !== 'ingesting' && s.status !== 'uploading') return;
+    const t = setInterval(async () => {
+      const r = await fetch(`/api/fields/${fieldId}`);
+      if (!r.ok) return;
+      const next = (await r.json()).field as Status;
+      setS(next);
+      if (next.status === 'ready') window.location.reload();
+    }, 1500);
+    return () => clearInterval(t);
+  }, [s.status, fieldId]);
+
+  async function retry() {
+    const r = await fetch(`/api/fields/${fieldId}/retry`, { method: 'POST' });
+    const body = await r.json();
+    if (r.ok) setS({ status: 'ingesting', failureReason: null, progress: { stage: 'queued', fraction: 0 } });
+    else setMsg(body.message);
+  }
+
+  return (
+    <div className="card" data-testid="field-status">
+      <div className="flex justify-between items-center">
+        <div className="font-semibold">{WORDS[s.status] ?? s.status}</div>
+        {s.status === 'failed' && canRetry && <button className="btn btn-quiet" onClick={retry}>Retry processing</button>}
+      </div>
+      {(s.status === 'ingesting' || s.status === 'uploading') && (
+        <div className="mt-2">
+          <div className="h-2 bg-mica-100 rounded" role="progressbar" aria-valuenow={Math.round((s.progress?.fraction ?? 0) * 100)} aria-valuemin={0} aria-valuemax={100}>
+            <div className="h-2 bg-tip-500 rounded transition-all" style={{ width: `${(s.progress?.fraction ?? 0) * 100}%` }} />
+          </div>
+          <div className="text-xs text-mica-600 mt-1">{s.progress?.stage ?? 'queued'} · {Math.round((s.progress?.fraction ?? 0) * 100)}%</div>
+        </div>
+      )}
+      {s.status === 'failed' && <p className="notice notice-error mt-2" role="alert">{s.failureReason}</p>}
+      {msg && <p className="notice notice-error mt-2">{msg}</p>}
+    </div>
+  );
+}

@@ -1,0 +1,205 @@
+import { useState, type DragEvent } from 'react';
+import { useForm, useFieldArray } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { z } from 'zod';
+import { AcquisitionSettings, type InspectReply } from '../../lib/schemas/fields';
+import { uploadFile, createField } from '../../lib/api-client/uploads';
+import { ApiError } from '../../lib/api-client/http';
+
+interface StudyOption {
+  id: string;
+  name: string;
+  samples: { id: string; code: string }[];
+  panel: { marker: string; emissionNm: number | null }[];
+}
+
+type FileState =
+  | { status: 'uploading'; file: File; progress: number }
+  | { status: 'done'; file: File; meta: InspectReply }
+  | { status: 'failed'; file: File; message: string };
+
+// The form uses the same acquisition schema as the API; empty number inputs mean "read it from the file".
+const FormSchema = z.object({
+  studyId: z.uuid('Choose a study'),
+  settings: AcquisitionSettings,
+  drafts: z.array(z.object({ sampleId: z.uuid('Choose a sample'), name: z.string().trim().min(1, 'Name the field').max(120) })).min(1),
+});
+type FormValues = z.input<typeof FormSchema>;
+
+const num = { setValueAs: (v: string) => (v === '' || v === undefined ? undefined : Number(v)) };
+const mb = (b: number) => `${(b / 1024 ** 2).toFixed(1)} MB`;
+
+function describe(meta: InspectReply) {
+  const px = meta.pixelSizeNm ? `${meta.pixelSizeNm.x.toFixed(2)} nm/px (from ${meta.pixelSizeSource === 'ome-xml' ? 'OME-XML' : 'resolution tags'})` : 'pixel size not in file';
+  return `${meta.widthPx} × ${meta.heightPx} px · ${meta.bitsPerSample}-bit ${meta.sampleFormat} · ${meta.pageCount} page${meta.pageCount > 1 ? 's' : ''} · ${px}`;
+}
+
+function FileSlot({ label, state, onFiles, onRetry, multiple, testId }: {
+  label: string; state: FileState[]; onFiles: (f: File[]) => void; onRetry: (i: number) => void; multiple?: boolean; testId: string;
+}) {
+  const [over, setOver] = useState(false);
+  const drop = (e: DragEvent) => { e.preventDefault(); setOver(false); onFiles([...e.dataTransfer.files]); };
+  return (
+    <div>
+      <div className="field-label">{label}</div>
+      <label
+        onDragOver={(e) => { e.preventDefault(); setOver(true); }} onDragLeave={() => setOver(false)} onDrop={drop}
+        className={`block border-2 border-dashed rounded-lg p-4 text-sm text-center cursor-pointer ${over ? 'border-tip-500 bg-tip-50' : 'border-mica-200 bg-mica-50'}`}>
+        Drop TIFF file{multiple ? 's' : ''} here or <span className="text-tip-600 underline">choose</span>
+        <input type="file" accept=".tif,.tiff,image/tiff" multiple={multiple} className="sr-only" data-testid={testId}
+          onChange={(e) => { onFiles([...(e.target.files ?? [])]); e.target.value = ''; }} />
+      </label>
+      <ul className="mt-2 space-y-2">
+        {state.map((s, i) => (
+          <li key={i} className="text-sm" data-testid={`${testId}-state`}>
+            <div className="flex justify-between"><span className="font-medium">{s.file.name}</span><span className="text-mica-400">{mb(s.file.size)}</span></div>
+            {s.status === 'uploading' && (
+              <div className="h-2 bg-mica-100 rounded mt-1" role="progressbar" aria-valuenow={Math.round(s.progress * 100)} aria-valuemin={0} aria-valuemax={100}>
+                <div className="h-2 bg-tip-500 rounded" style={{ width: `${s.progress * 100}%` }} />
+              </div>
+            )}
+            {s.status === 'done' && <div className="text-cap-600" data-testid="file-meta">✓ {describe(s.meta)}</div>}
+            {s.status === 'failed' && (
+              <div className="notice notice-error mt-1 flex justify-between items-center gap-2" role="alert">
+                <span>{s.message}</span>
+                <button type="button" className="btn-quiet btn" onClick={() => onRetry(i)}>Retry</button>
+              </div>
+            )}
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}
+
+/** Upload one or many fields: a height map and fluorescence frames each, sent straight to storage. */
+export default function UploadFields({ studies }: { studies: StudyOption[] }) {
+  const { register, control, handleSubmit, watch, formState: { errors, isSubmitting } } = useForm<FormValues>({
+    resolver: zodResolver(FormSchema),
+    defaultValues: { studyId: studies[0]?.id ?? '', settings: { imagingMedium: 'air', scanMode: 'tapping', objectiveNa: 1.4, channelEmissionNm: [] }, drafts: [{ sampleId: '', name: '' }] },
+  });
+  const drafts = useFieldArray({ control, name: 'drafts' });
+  const [topo, setTopo] = useState<Record<number, FileState[]>>({});
+  const [fluo, setFluo] = useState<Record<number, FileState[]>>({});
+  const [saved, setSaved] = useState<{ name: string; id?: string; error?: string }[]>([]);
+  const study = studies.find((s) => s.id === watch('studyId'));
+
+  function send(which: 'topo' | 'fluo', draft: number, file: File, slot: number) {
+    const set = which === 'topo' ? setTopo : setFluo;
+    const update = (s: FileState) => set((prev) => {
+      const list = [...(prev[draft] ?? [])];
+      list[slot] = s;
+      return { ...prev, [draft]: list };
+    });
+    update({ status: 'uploading', file, progress: 0 });
+    uploadFile(watch('studyId'), file, (p) => update({ status: 'uploading', file, progress: p }))
+      .then((meta) => update({ status: 'done', file, meta }))
+      .catch((e) => update({ status: 'failed', file, message: e instanceof ApiError ? e.message : 'The upload failed. Retry the file.' }));
+  }
+  const addFiles = (which: 'topo' | 'fluo', draft: number, files: File[]) => {
+    const existing = which === 'topo' ? [] : (fluo[draft] ?? []);
+    if (which === 'topo') setTopo((p) => ({ ...p, [draft]: [] }));
+    (which === 'topo' ? files.slice(0, 1) : files).forEach((f, i) => send(which, draft, f, existing.length + i));
+  };
+  const retry = (which: 'topo' | 'fluo', draft: number, slot: number) => send(which, draft, (which === 'topo' ? topo : fluo)[draft][slot].file, slot);
+
+  async function onSubmit(values: FormValues) {
+    const parsed = FormSchema.parse(values);
+    const results: typeof saved = [];
+    for (const [i, d] of parsed.drafts.entries()) {
+      const t = topo[i]?.[0];
+      const fl = fluo[i] ?? [];
+      if (t?.status !== 'done' || fl.length === 0 || fl.some((f) => f.status !== 'done')) {
+        results.push({ name: d.name, error: 'Wait until its height map and every fluorescence file show as read (✓), or retry the failed ones.' });
+        continue;
+      }
+      const done = [t, ...fl] as Extract<FileState, { status: 'done' }>[];
+      try {
+        const r = await createField({
+          sampleId: d.sampleId, name: d.name, settings: parsed.settings,
+          topographyUploadId: done[0].meta.uploadId, fluorescenceUploadIds: done.slice(1).map((f) => f.meta.uploadId),
+          fileNames: Object.fromEntries(done.map((f) => [f.meta.uploadId, f.file.name])),
+        });
+        results.push({ name: d.name, id: r.id });
+      } catch (e) {
+        results.push({ name: d.name, error: e instanceof ApiError ? e.message : 'Saving failed.' });
+      }
+    }
+    setSaved(results);
+  }
+
+  const settingsErr = errors.settings as Record<string, { message?: string }> | undefined;
+  const input = (name: keyof z.input<typeof AcquisitionSettings>, label: string, unit: string, opts: { number?: boolean; placeholder?: string } = {}) => (
+    <div>
+      <label className="field-label" htmlFor={`s-${name}`}>{label}{unit && <span className="font-normal"> ({unit})</span>}</label>
+      <input id={`s-${name}`} className="input" placeholder={opts.placeholder} {...register(`settings.${name}` as const, opts.number ? num : {})} />
+      {settingsErr?.[name]?.message && <p className="text-xs text-glow-600 mt-1">{settingsErr[name]!.message}</p>}
+    </div>
+  );
+
+  if (!studies.length) return <p className="card">You are not a biologist in any study yet. An administrator adds you to a study.</p>;
+
+  return (
+    <form onSubmit={handleSubmit(onSubmit)} className="space-y-6" aria-label="Upload fields">
+      <section className="card grid gap-4 md:grid-cols-3">
+        <div className="md:col-span-3">
+          <label className="field-label" htmlFor="study">Study</label>
+          <select id="study" className="input" {...register('studyId')}>{studies.map((s) => <option key={s.id} value={s.id}>{s.name}</option>)}</select>
+          {study && <p className="text-xs text-mica-600 mt-1">Marker panel: {study.panel.map((p) => p.marker).join(', ') || 'none recorded'} — the fluorescence files must hold {study.panel.length || 'one or more'} channel(s) in this order.</p>}
+        </div>
+        {input('afmPixelNm', 'AFM pixel size', 'nm', { number: true, placeholder: 'from file' })}
+        {input('tipRadiusNm', 'Tip radius', 'nm', { number: true, placeholder: 'e.g. 8' })}
+        {input('scanMode', 'AFM scan mode', '')}
+        <div>
+          <label className="field-label" htmlFor="s-medium">Imaging medium</label>
+          <select id="s-medium" className="input" {...register('settings.imagingMedium')}><option value="air">air</option><option value="liquid">liquid</option></select>
+        </div>
+        {input('flPixelNm', 'Fluorescence pixel size', 'nm', { number: true, placeholder: 'from file' })}
+        {input('objectiveNa', 'Objective NA', '', { number: true })}
+        {input('exposureMs', 'Exposure', 'ms', { number: true })}
+      </section>
+
+      {drafts.fields.map((d, i) => (
+        <section key={d.id} className="card space-y-4" aria-label={`Field ${i + 1}`}>
+          <div className="flex justify-between items-center">
+            <h2>Field {i + 1}</h2>
+            {drafts.fields.length > 1 && <button type="button" className="btn btn-quiet" onClick={() => drafts.remove(i)}>Remove</button>}
+          </div>
+          <div className="grid gap-4 md:grid-cols-2">
+            <div>
+              <label className="field-label" htmlFor={`sample-${i}`}>Sample</label>
+              <select id={`sample-${i}`} className="input" {...register(`drafts.${i}.sampleId`)}>
+                <option value="">choose…</option>
+                {study?.samples.map((s) => <option key={s.id} value={s.id}>{s.code}</option>)}
+              </select>
+              {errors.drafts?.[i]?.sampleId && <p className="text-xs text-glow-600 mt-1">{errors.drafts[i]!.sampleId!.message}</p>}
+            </div>
+            <div>
+              <label className="field-label" htmlFor={`name-${i}`}>Field name</label>
+              <input id={`name-${i}`} className="input" placeholder="e.g. grid B4" {...register(`drafts.${i}.name`)} />
+              {errors.drafts?.[i]?.name && <p className="text-xs text-glow-600 mt-1">{errors.drafts[i]!.name!.message}</p>}
+            </div>
+          </div>
+          <div className="grid gap-4 md:grid-cols-2">
+            <FileSlot label="AFM height map (TIFF, nm)" testId={`topography-${i}`} state={topo[i] ?? []} onFiles={(f) => addFiles('topo', i, f)} onRetry={(s) => retry('topo', i, s)} />
+            <FileSlot label="Fluorescence frames (TIFF: a stack or one file per channel)" testId={`fluorescence-${i}`} multiple state={fluo[i] ?? []} onFiles={(f) => addFiles('fluo', i, f)} onRetry={(s) => retry('fluo', i, s)} />
+          </div>
+        </section>
+      ))}
+      <div className="flex gap-3">
+        <button type="button" className="btn btn-quiet" onClick={() => drafts.append({ sampleId: '', name: '' })}>Add another field</button>
+        <button type="submit" className="btn" disabled={isSubmitting}>{isSubmitting ? 'Saving…' : 'Confirm and save'}</button>
+      </div>
+      {saved.length > 0 && (
+        <section className="card" aria-label="Saved" data-testid="upload-summary">
+          <h2>Summary</h2>
+          <ul className="mt-2 space-y-1 text-sm">
+            {saved.map((s, i) => (
+              <li key={i}>{s.id ? <>✓ <a href={`/fields/${s.id}`}>{s.name}</a> saved; processing has started.</> : <span className="text-glow-600">✗ {s.name}: {s.error}</span>}</li>
+            ))}
+          </ul>
+        </section>
+      )}
+    </form>
+  );
+}

@@ -1,0 +1,74 @@
+import { useState } from 'react';
+import type { SampleResults } from '../../../lib/reporting/types';
+import { HistogramPlot } from './HistogramPlot';
+import { ci, nm, pct } from './format';
+
+/** One sample's results: marker fractions, phenotype combinations, size distributions, per-field QC. */
+export function SampleView({ r }: { r: SampleResults }) {
+  const [phenotype, setPhenotype] = useState<string>('all');
+  const dHist = phenotype === 'all' ? r.diameter.histogram : r.diameter.byPhenotype[phenotype];
+  const hHist = phenotype === 'all' ? r.height.histogram : r.height.byPhenotype[phenotype];
+  return (
+    <div className="space-y-6">
+      <section className="card">
+        <h2>Marker-positive vesicles</h2>
+        <p className="text-sm text-mica-600 mt-1" data-testid="sample-totals">
+          {r.fieldsAnalysed} field(s) and {r.vesicles} vesicles analysed (counts). Median diameter {nm(r.diameter.medianNm)}
+          {' '}(IQR {nm(r.diameter.q1Nm)}–{nm(r.diameter.q3Nm)}), median height {nm(r.height.medianNm)}.
+        </p>
+        <table className="data-table mt-3 w-full text-sm" data-testid="marker-table">
+          <thead><tr><th>Marker</th><th>Positive (count)</th><th>Analysed (count)</th><th>Positive</th><th>95% interval (Wilson)</th></tr></thead>
+          <tbody>
+            {r.markers.map((m) => (
+              <tr key={m.channelIndex}><td className="font-semibold">{m.marker}</td><td>{m.count}</td><td>{m.total}</td><td>{pct(m.fraction)}</td><td>{ci(m.lower, m.upper)}</td></tr>
+            ))}
+          </tbody>
+        </table>
+      </section>
+      <section className="card">
+        <h2>Phenotype combinations</h2>
+        <table className="data-table mt-3 w-full text-sm">
+          <thead><tr><th>Phenotype</th><th>Vesicles (count)</th><th>Share</th><th>95% interval (Wilson)</th></tr></thead>
+          <tbody>
+            {r.phenotypes.map((p) => (
+              <tr key={p.bits}><td>{p.label}</td><td>{p.count}</td><td>{pct(p.fraction)}</td><td>{ci(p.lower, p.upper)}</td></tr>
+            ))}
+          </tbody>
+        </table>
+      </section>
+      <section className="card">
+        <div className="flex flex-wrap items-end justify-between gap-3">
+          <h2>Size distributions</h2>
+          <label className="text-sm">
+            <span className="field-label">Vesicles shown</span>
+            <select className="input" value={phenotype} onChange={(e) => setPhenotype(e.target.value)}>
+              <option value="all">All vesicles</option>
+              {r.phenotypes.map((p) => <option key={p.bits} value={String(p.bits)}>{p.label} ({p.count})</option>)}
+            </select>
+          </label>
+        </div>
+        <div className="grid gap-4 md:grid-cols-2 mt-3">
+          {dHist && <HistogramPlot histogram={dHist} xLabel="equivalent diameter (nm)" label="Histogram of equivalent diameter (nm)" />}
+          {hHist && <HistogramPlot histogram={hHist} xLabel="height (nm)" label="Histogram of height (nm)" />}
+        </div>
+      </section>
+      <section className="card">
+        <h2>Fields (quality control)</h2>
+        <table className="data-table mt-3 w-full text-sm" data-testid="field-table">
+          <thead>
+            <tr><th>Field</th><th>Status</th><th>Vesicles (count)</th>{r.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ (count)</th>)}<th>FRE</th><th>Fiducials (count)</th><th>AFM pixel</th></tr>
+          </thead>
+          <tbody>
+            {r.fields.map((f) => (
+              <tr key={f.fieldId}>
+                <td>{f.name}</td><td>{f.status}</td><td>{f.vesicles}</td>
+                {f.positives.map((k, i) => <td key={i}>{k}</td>)}
+                <td>{nm(f.freNm)}</td><td>{f.nbFiducials ?? '–'}</td><td>{f.afmPixelNm === null ? '–' : `${f.afmPixelNm.toFixed(2)} nm/px`}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </section>
+    </div>
+  );
+}

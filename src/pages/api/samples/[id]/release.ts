@@ -1,0 +1,33 @@
+import type { APIRoute } from 'astro';
+import { handle } from '../../../../lib/http/respond';
+import { parseParams, IdParam } from '../../../../lib/http/parse';
+import { requireRole, requireStudyAction } from '../../../../lib/auth/session';
+import { conflict, notFound } from '../../../../lib/http/errors';
+import { getDb } from '../../../../lib/db/client';
+import { createRelease, getSampleContext } from '../../../../lib/db/queries/results';
+import { audit } from '../../../../lib/audit';
+import { clientAddress } from '../../../../lib/http/context';
+
+/** Releases the sample's current analysis to the study's collaborators as a new version. */
+export const POST = handle(async (ctx) => {
+  requireRole(ctx.locals, ['admin', 'biologist', 'analyst'], 'release results');
+  const { id } = parseParams(ctx.params, IdParam);
+  const db = await getDb();
+  const sample = await getSampleContext(db, id);
+  if (!sample) throw notFound('That sample');
+  const { user } = await requireStudyAction(db, ctx.locals, sample.studyId, 'results.release', 'release results of this study');
+  const out = await createRelease(db, id, user.id);
+  if (!out.ok) {
+    switch (out.reason) {
+      case 'no_fields': throw conflict(`Sample ${sample.code} has no fields yet; upload and analyse fields before releasing.`);
+      case 'not_approved': throw conflict(`${out.notApproved} of ${out.total} field(s) of sample ${sample.code} are not approved yet. Approve every field (or delete failed ones) before releasing.`);
+      case 'no_link_runs': throw conflict(`${out.fieldsWithout} field(s) of sample ${sample.code} have no current linking; link them again before releasing.`);
+      case 'version_taken': throw conflict(`Someone else released sample ${sample.code} at the same moment. Reload to see the new version; release again only if the data changed.`);
+    }
+  }
+  await audit(db, {
+    action: 'sample.released', actorId: user.id, actorEmail: user.email, targetType: 'sample', targetId: id, ip: clientAddress(ctx),
+    details: { version: out.release.version, linkRunIds: out.release.linkRunIds, sampleCode: sample.code },
+  });
+  return Response.json(out.release, { status: 201 });
+}) satisfies APIRoute;

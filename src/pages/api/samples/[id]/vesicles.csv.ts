@@ -1,0 +1,47 @@
+import type { APIRoute } from 'astro';
+import { z } from 'zod';
+import { handle } from '../../../../lib/http/respond';
+import { parseParams, parseQuery, IdParam } from '../../../../lib/http/parse';
+import { requireUser } from '../../../../lib/auth/session';
+import { getDb } from '../../../../lib/db/client';
+import { getPanel, pageVesicles } from '../../../../lib/db/queries/results';
+import { selectSampleResults } from '../../../../lib/reporting/access';
+import { vesicleCsvHeader, vesicleCsvRow } from '../../../../lib/reporting/exports';
+import { safeFileName } from '../../../../lib/reporting/csv';
+
+const Query = z.object({ source: z.enum(['released', 'current']).default('released') });
+
+/** Per-vesicle CSV, streamed page by page (keyset pagination), so any size holds one page in memory. */
+export const GET = handle(async (ctx) => {
+  requireUser(ctx.locals);
+  const { id } = parseParams(ctx.params, IdParam);
+  const { source } = parseQuery(ctx.url, Query);
+  const db = await getDb();
+  const sel = await selectSampleResults(db, ctx.locals, id, source);
+  const panel = await getPanel(db, sel.sample.studyId);
+  const channels = panel.map((c) => c.channelIndex);
+  const pages = pageVesicles(db, sel.linkRunIds);
+  const encoder = new TextEncoder();
+  const stream = new ReadableStream<Uint8Array>({
+    start(controller) {
+      controller.enqueue(encoder.encode(vesicleCsvHeader(panel.map((c) => c.marker))));
+    },
+    async pull(controller) {
+      try {
+        const next = await pages.next();
+        if (next.done) return controller.close();
+        controller.enqueue(encoder.encode(next.value.map((v) => vesicleCsvRow(sel.sample.code, v, channels)).join('')));
+      } catch (err) {
+        console.error('[vesicles.csv] stream failed:', err);
+        controller.error(err);
+      }
+    },
+    async cancel() {
+      await pages.return(undefined);
+    },
+  });
+  const name = safeFileName(`${sel.sample.code}_${sel.release ? `release-v${sel.release.version}` : 'preview'}_vesicles.csv`);
+  return new Response(stream, {
+    headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${name}"`, 'cache-control': 'private, no-store' },
+  });
+}) satisfies APIRoute;
