@@ -270,7 +270,10 @@ main(process.argv.slice(2)).then(
   },
   (error: unknown) => {
     if (error instanceof InputError || error instanceof AnalysisError) {
-      process.stderr.write(`analyze: ${error.message}\n`);
+      const hint = error instanceof AnalysisError && error.code === 'too_few_background_apertures'
+        ? ' Give a threshold for every marker with --marker-threshold MARKER=counts (e.g. from a control sample).'
+        : '';
+      process.stderr.write(`analyze: ${error.message}${hint}\n`);
       process.exitCode = 2;
     } else {
       process.stderr.write(`analyze: unexpected failure: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);

@@ -54,6 +54,8 @@ async function main() {
   rmSync(process.env.HEIGHTLIGHT_DATA_DIR, { recursive: true, force: true });
   const s = embeddedSettings('test');
   Object.assign(process.env, s.env, { NODE_ENV: 'test' });
+  // A worker killed mid-job has its job retried after this expiry; short, so tests/integration/faults.test.ts stays quick.
+  process.env.JOB_EXPIRE_SECONDS ??= '30';
   const children: ChildProcess[] = [];
   let services: Awaited<ReturnType<typeof startServices>> | undefined;
   let code = 1;

@@ -10,7 +10,8 @@ import { createHash } from 'node:crypto';
 
 const isRoot = process.getuid?.() === 0;
 
-function findBinDir(): string | null {
+/** PostgreSQL's newest installed bin folder under /usr/lib/postgresql/<version>/bin, or null. */
+export function findBinDir(): string | null {
   const base = '/usr/lib/postgresql';
   if (!existsSync(base)) return null;
   const versions = readdirSync(base)
@@ -34,7 +35,7 @@ export function ensurePostgresInstalled(log: (s: string) => void): string {
 }
 
 /** Runs a PostgreSQL binary, as the postgres user when we are root (the server refuses to run as root). */
-function runPg(bin: string, args: string[], opts: { allowFail?: boolean } = {}) {
+export function runPg(bin: string, args: string[], opts: { allowFail?: boolean } = {}) {
   const cmd = isRoot ? 'runuser' : bin;
   const fullArgs = isRoot ? ['-u', 'postgres', '--', bin, ...args] : args;
   const r = spawnSync(cmd, fullArgs, { encoding: 'utf8', cwd: '/' });
@@ -52,6 +53,11 @@ function usableDataDir(wanted: string): string {
   if (probe.status === 0) return wanted;
   const hash = createHash('sha1').update(resolve(wanted)).digest('hex').slice(0, 10);
   return join(tmpdir(), `heightlight-pg-${hash}`);
+}
+
+/** The cluster folder `startPostgres` uses for `dataDir` (the /tmp fallback included); pg_ctl's -D. */
+export function clusterDir(dataDir: string): string {
+  return join(usableDataDir(resolve(dataDir)), 'cluster');
 }
 
 export interface PgCluster {

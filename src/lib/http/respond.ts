@@ -8,6 +8,18 @@ export function problem(status: number, error: string, message: string, extra: R
   return Response.json({ error, message, ...extra }, { status, headers: { 'cache-control': 'no-store' } });
 }
 
+const NETWORK_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'ENOTFOUND', 'EAI_AGAIN']);
+
+/**
+ * True for an object store that cannot be reached (refused, reset, timed out). The AWS SDK marks every
+ * error it throws with `$metadata`, which tells these apart from the same socket codes coming from pg.
+ */
+export function isStorageConnectionError(err: unknown) {
+  if (!err || typeof err !== 'object' || !('$metadata' in err)) return false;
+  const { code, name } = err as { code?: string; name?: string };
+  return (code !== undefined && NETWORK_CODES.has(code)) || name === 'TimeoutError' || name === 'RequestTimeout';
+}
+
 function isPgConnectionError(err: unknown) {
   const code = (err as { code?: string })?.code;
   return (
@@ -17,7 +29,7 @@ function isPgConnectionError(err: unknown) {
 }
 
 /**
- * Wraps a route handler: HttpError → its status, AnalysisError → 422, a database outage → 503,
+ * Wraps a route handler: HttpError → its status, AnalysisError → 422, a database or object-store outage → 503,
  * anything else → 500 with a request id. Details are logged on the server, never sent.
  */
 export function handle(fn: (ctx: APIContext) => Promise<Response> | Response) {
@@ -33,6 +45,9 @@ export function handle(fn: (ctx: APIContext) => Promise<Response> | Response) {
       }
       const requestId = randomUUID();
       console.error(`[api] ${ctx.request.method} ${new URL(ctx.request.url).pathname} failed (request ${requestId}):`, err);
+      if (isStorageConnectionError(err)) {
+        return problem(503, 'storage_unavailable', 'The file store is not reachable right now; nothing was saved. Try again in a moment.', { requestId });
+      }
       if (isPgConnectionError(err)) {
         return problem(503, 'service_unavailable', 'The database is not reachable right now. Nothing was changed; try again in a moment.', { requestId });
       }

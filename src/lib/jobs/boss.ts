@@ -5,15 +5,31 @@ import { QUEUES } from './queues';
 let boss: PgBoss | undefined;
 let starting: Promise<PgBoss> | undefined;
 
+/**
+ * How long a job may stay active before pg-boss gives it up and retries it (a worker killed mid-job
+ * leaves its job active until then), from JOB_EXPIRE_SECONDS.
+ * @returns seconds; 15 minutes unless the environment says otherwise
+ */
+export function jobExpireSeconds(): number {
+  const v = Number(process.env.JOB_EXPIRE_SECONDS);
+  return Number.isInteger(v) && v >= 1 ? v : 15 * 60;
+}
+
 export function getBoss(databaseUrl: string): Promise<PgBoss> {
   if (boss) return Promise.resolve(boss);
   starting ??= (async () => {
-    const b = new PgBoss({ connectionString: databaseUrl, max: 4, schedule: false });
+    const expireInSeconds = jobExpireSeconds();
+    // Expired jobs are found by the maintenance sweep; check often enough that a short expiry means something.
+    const maintenanceIntervalSeconds = Math.max(1, Math.min(120, Math.floor(expireInSeconds / 4)));
+    const b = new PgBoss({ connectionString: databaseUrl, max: 4, schedule: false, maintenanceIntervalSeconds });
     b.on('error', (err) => console.error('[jobs] pg-boss error:', err.message));
     await b.start();
     for (const name of Object.values(QUEUES)) {
       // Three tries with back-off: a worker killed mid-job has its job retried by another.
-      await b.createQueue(name, { name, retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 15 * 60 }).catch(() => undefined);
+      const options = { name, retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds };
+      await b.createQueue(name, options).catch(() => undefined);
+      // An existing queue keeps its old settings otherwise.
+      await b.updateQueue(name, options).catch(() => undefined);
     }
     boss = b;
     return b;

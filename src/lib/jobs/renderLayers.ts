@@ -47,9 +47,12 @@ async function uploadValues(st: Storage, fieldId: string, layer: string, r: Rast
   return { valuesWidth: v.width, valuesHeight: v.height, valuesFactor: v.factor };
 }
 
-/** Height map through the viridis colour map, range from robust percentiles (nm). */
-export async function renderHeightLayer(st: Storage, fieldId: string, levelled: Raster) {
-  const { min: low, max: high } = contrastFromPercentiles(levelled.data, 0.5, 99.8);
+/**
+ * Height map through the viridis colour map. The range comes from percentiles of the pixels below
+ * `beadMinHeightNm`, so a few tall beads do not squash the vesicles into the darkest colours (beads saturate).
+ */
+export async function renderHeightLayer(st: Storage, fieldId: string, levelled: Raster, beadMinHeightNm = 300) {
+  const { min: low, max: high } = contrastFromPercentiles(levelled.data.filter((v) => v < beadMinHeightNm), 0.5, 99.9);
   const minNm = Math.min(low, 0);
   const maxNm = Math.max(high, minNm + 1);
   const map = colourMapHeight(levelled, { minNm, maxNm });

@@ -3,6 +3,7 @@ import type { Raster } from '../types';
 import type { FluorescenceSpot } from './types';
 import { laplacianOfGaussian } from './laplacianOfGaussian';
 import { robustNoiseSigma } from './robustNoiseSigma';
+import { fitSpotGaussian, type SpotWindow } from './fitSpotGaussian';
 
 /** Options of {@link detectSpots}. */
 export interface DetectSpotsOptions {
@@ -35,10 +36,17 @@ export interface DetectSpotsOptions {
    */
   maxShiftPx?: number;
   /**
-   * Levenberg–Marquardt iterations per spot (the solver has no relative stopping rule, so all are run).
+   * Levenberg–Marquardt iterations per spot at most. The lean solver stops earlier once a step is below 10⁻³ px;
+   * ml-levenberg-marquardt has no relative stopping rule, so it runs all of them.
    * @default 10
    */
   maxIterations?: number;
+  /**
+   * Solver of the 'gaussian' refinement. 'lean' is {@link fitSpotGaussian}; 'ml-levenberg-marquardt' calls that
+   * package per spot. Same model, bounds and plausibility checks; kept to cross-check the lean solver.
+   * @default 'lean'
+   */
+  solver?: 'lean' | 'ml-levenberg-marquardt';
   /**
    * Smooth background model that was subtracted from `raster` (counts per pixel), from {@link correctBackground};
    * added to each spot's `backgroundCounts`.
@@ -95,6 +103,7 @@ export function detectSpots(raster: Raster, options: DetectSpotsOptions): Detect
     refine = 'gaussian',
     maxShiftPx = 1,
     maxIterations = 10,
+    solver = 'lean',
     background,
     gainCountsPerPhoton = 1,
   } = options;
@@ -139,10 +148,13 @@ export function detectSpots(raster: Raster, options: DetectSpotsOptions): Detect
     }
   }
 
-  // refine
+  // refine; the window and border buffers are reused for every candidate
   const spots: FluorescenceSpot[] = [];
   let nbFitted = 0;
   const noiseArea = 4 * Math.PI * sigmaPx * sigmaPx;
+  const side = 2 * fitRadiusPx + 1;
+  const values = new Float64Array(side * side);
+  const border = new Float64Array(4 * side);
   for (const index of candidates) {
     const cx = index % width;
     const cy = (index - cx) / width;
@@ -150,30 +162,28 @@ export function detectSpots(raster: Raster, options: DetectSpotsOptions): Detect
     const x1 = Math.min(width - 1, cx + fitRadiusPx);
     const y0 = Math.max(0, cy - fitRadiusPx);
     const y1 = Math.min(height - 1, cy + fitRadiusPx);
-    const n = (x1 - x0 + 1) * (y1 - y0 + 1);
-    const xs = new Float64Array(n);
-    const ys = new Float64Array(n);
-    const vs = new Float64Array(n);
-    const border: number[] = [];
+    const window: SpotWindow = { values, x0, y0, width: x1 - x0 + 1, height: y1 - y0 + 1 };
     let k = 0;
+    let nbBorder = 0;
     for (let y = y0; y <= y1; y++) {
       for (let x = x0; x <= x1; x++) {
-        xs[k] = x;
-        ys[k] = y;
-        vs[k] = data[y * width + x];
-        if (x === x0 || x === x1 || y === y0 || y === y1) border.push(vs[k]);
-        k++;
+        const v = data[y * width + x];
+        values[k++] = v;
+        if (x === x0 || x === x1 || y === y0 || y === y1) border[nbBorder++] = v;
       }
     }
-    border.sort((a, b) => a - b);
-    const localBg = border[border.length >> 1];
+    const localBg = border.subarray(0, nbBorder).sort()[nbBorder >> 1];
 
     let spot: FluorescenceSpot | undefined;
     if (refine === 'gaussian') {
-      spot = fitGaussian(xs, ys, vs, cx, cy, localBg, data[index] - localBg, sigmaPx, maxShiftPx, maxIterations);
+      const start = { x: cx, y: cy, amplitude: data[index] - localBg, background: localBg, sigmaPx };
+      spot =
+        solver === 'lean'
+          ? leanFit(window, start, maxShiftPx, maxIterations)
+          : fitGaussianLm(window, start, maxShiftPx, maxIterations);
     }
     if (spot) nbFitted++;
-    else spot = centroid(xs, ys, vs, localBg, sigmaPx);
+    else spot = centroid(window, localBg, sigmaPx);
 
     // SNR
     const bx = Math.min(width - 1, Math.max(0, Math.round(spot.x)));
@@ -196,21 +206,52 @@ export function detectSpots(raster: Raster, options: DetectSpotsOptions): Detect
   };
 }
 
-function fitGaussian(
-  xs: Float64Array,
-  ys: Float64Array,
-  vs: Float64Array,
-  cx: number,
-  cy: number,
-  bg0: number,
-  amp0: number,
-  sigmaPx: number,
+type FitStart = Parameters<typeof fitSpotGaussian>[1];
+
+/** The fit's answer as a spot, or undefined when it is implausible (same rule for both solvers). */
+function acceptFit(
+  a: number, mx: number, my: number, s: number, b: number, start: FitStart, maxShiftPx: number,
+): FluorescenceSpot | undefined {
+  const plausible =
+    [a, mx, my, s, b].every(Number.isFinite) &&
+    a > 0 &&
+    Math.hypot(mx - start.x, my - start.y) <= maxShiftPx &&
+    s >= 0.5 * start.sigmaPx &&
+    s <= 2 * start.sigmaPx;
+  if (!plausible) return undefined;
+  return {
+    x: mx,
+    y: my,
+    amplitude: a,
+    sigmaPx: s,
+    integratedCounts: 2 * Math.PI * a * s * s,
+    backgroundCounts: b,
+    snr: 0,
+    fitted: true,
+  };
+}
+
+function leanFit(window: SpotWindow, start: FitStart, maxShiftPx: number, maxIterations: number) {
+  const fit = fitSpotGaussian(window, start, { maxShiftPx, maxIterations });
+  return fit && acceptFit(fit.amplitude, fit.x, fit.y, fit.sigmaPx, fit.background, start, maxShiftPx);
+}
+
+function fitGaussianLm(
+  window: SpotWindow,
+  start: FitStart,
   maxShiftPx: number,
   maxIterations: number,
 ): FluorescenceSpot | undefined {
   // the solver takes a 1-D abscissa, so the model is indexed by pixel number inside the window
-  const idx = new Float64Array(xs.length);
-  for (let i = 0; i < idx.length; i++) idx[i] = i;
+  const n = window.width * window.height;
+  const xs = new Float64Array(n);
+  const ys = new Float64Array(n);
+  const idx = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    xs[i] = window.x0 + (i % window.width);
+    ys[i] = window.y0 + Math.floor(i / window.width);
+    idx[i] = i;
+  }
   const model = ([a, mx, my, s, b]: number[]) => {
     const inv = 1 / (2 * s * s);
     return (i: number) => {
@@ -229,10 +270,11 @@ function fitGaussian(
       return [e, (a * e * dx) / s2, (a * e * dy) / s2, (a * e * r2) / (s2 * s), 1];
     };
   };
+  const { x: cx, y: cy, sigmaPx } = start;
   let params: number[];
   try {
-    params = levenbergMarquardt({ x: idx, y: vs }, model, {
-      initialValues: [Math.max(amp0, 1e-3), cx, cy, sigmaPx, bg0],
+    params = levenbergMarquardt({ x: idx, y: window.values.subarray(0, n) }, model, {
+      initialValues: [Math.max(start.amplitude, 1e-3), cx, cy, sigmaPx, start.background],
       jacobianFunction: jacobian,
       minValues: [0, cx - maxShiftPx - 1, cy - maxShiftPx - 1, 0.3 * sigmaPx, -Infinity],
       maxValues: [Infinity, cx + maxShiftPx + 1, cy + maxShiftPx + 1, 3 * sigmaPx, Infinity],
@@ -242,48 +284,29 @@ function fitGaussian(
   } catch {
     return undefined;
   }
-  const [a, mx, my, s, b] = params;
-  const plausible =
-    params.every(Number.isFinite) &&
-    a > 0 &&
-    Math.hypot(mx - cx, my - cy) <= maxShiftPx &&
-    s >= 0.5 * sigmaPx &&
-    s <= 2 * sigmaPx;
-  if (!plausible) return undefined;
-  return {
-    x: mx,
-    y: my,
-    amplitude: a,
-    sigmaPx: s,
-    integratedCounts: 2 * Math.PI * a * s * s,
-    backgroundCounts: b,
-    snr: 0,
-    fitted: true,
-  };
+  return acceptFit(params[0], params[1], params[2], params[3], params[4], start, maxShiftPx);
 }
 
-function centroid(
-  xs: Float64Array,
-  ys: Float64Array,
-  vs: Float64Array,
-  localBg: number,
-  sigmaPx: number,
-): FluorescenceSpot {
+function centroid(window: SpotWindow, localBg: number, sigmaPx: number): FluorescenceSpot {
+  const { values, x0, y0, width, height } = window;
   let sw = 0;
   let sx = 0;
   let sy = 0;
   let total = 0;
-  for (let i = 0; i < vs.length; i++) {
-    const v = vs[i] - localBg;
-    total += v;
-    if (v > 0) {
-      sw += v;
-      sx += v * xs[i];
-      sy += v * ys[i];
+  for (let j = 0; j < height; j++) {
+    for (let i = 0; i < width; i++) {
+      const v = values[j * width + i] - localBg;
+      total += v;
+      if (v > 0) {
+        sw += v;
+        sx += v * (x0 + i);
+        sy += v * (y0 + j);
+      }
     }
   }
-  const x = sw > 0 ? sx / sw : xs[xs.length >> 1];
-  const y = sw > 0 ? sy / sw : ys[ys.length >> 1];
+  const mid = (width * height) >> 1;
+  const x = sw > 0 ? sx / sw : x0 + (mid % width);
+  const y = sw > 0 ? sy / sw : y0 + Math.floor(mid / width);
   return {
     x,
     y,

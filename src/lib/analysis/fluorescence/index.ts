@@ -8,3 +8,4 @@ export * from './aperturePhotometry';
 export * from './gaussianPixelFraction';
 export * from './samplePoisson';
 export * from './renderFluorescenceScene';
+export * from './fitSpotGaussian';

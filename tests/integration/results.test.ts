@@ -1,0 +1,272 @@
+/**
+ * Releases and released results against the running app and its real PostgreSQL. Fields, link runs
+ * and vesicles are written straight to the database (the analysis pipeline is tested elsewhere).
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { createDb, type Db } from '../../src/lib/db/client';
+import { AppClient, signedIn } from '../support/client';
+import { DEMO, DEMO_PASSWORD, ROLES, type DemoRole } from '../support/demo';
+
+const clients = {} as Record<DemoRole, AppClient>;
+let db: Db;
+let studyId: string;
+let otherStudyId: string;
+const run = Date.now().toString(36);
+const GROUP_A = `rt-a-${run}`;
+const GROUP_B = `rt-b-${run}`;
+const sampleIds: Record<string, string> = {};
+const fieldIds: Record<string, string> = {};
+
+interface V { bits: number; d: number; h: number }
+
+/** 263 vesicles: CD9 (bit 0) on the first 81, CD63 (bit 1) on even indexes, CD81 (bit 2) on multiples of 7. */
+const S1_ROWS: V[] = Array.from({ length: 263 }, (_, i) => ({
+  bits: (i < 81 ? 1 : 0) | (i % 2 === 0 ? 2 : 0) | (i % 7 === 0 ? 4 : 0),
+  d: 50 + ((i * 37) % 150),
+  h: 4 + ((i * 13) % 30),
+}));
+/** n vesicles of which the first k carry `bits`. */
+const rowsWith = (n: number, k: number, bits: number): V[] => Array.from({ length: n }, (_, i) => ({ bits: i < k ? bits : 0, d: 80 + (i % 50), h: 10 + (i % 9) }));
+
+async function q<T = Record<string, unknown>>(text: string, params: unknown[] = []): Promise<T[]> {
+  return (await db.$client.query(text, params)).rows as T[];
+}
+
+async function addSample(studyId: string, code: string, groupLabel: string) {
+  const [s] = await q<{ id: string }>(`insert into samples (study_id, code, group_label, isolation_method) values ($1, $2, $3, 'SEC') returning id`, [studyId, code, groupLabel]);
+  return s.id;
+}
+
+/** A field with a registration, a current link run and its vesicles. */
+async function addField(sampleId: string, name: string, status: string, rows: V[], freNm = 12.5) {
+  const [f] = await q<{ id: string }>(`insert into fields (sample_id, name, status, afm_pixel_nm) values ($1, $2, $3, 3.9) returning id`, [sampleId, name, status]);
+  await q(`insert into registrations (field_id, version, model, pairs, fl_from_afm, fre_nm) values ($1, 1, 'affine', '[{"afm":{"x":0,"y":0},"fl":{"x":0,"y":0}}]', '[1,0,0,0,1,0]', 30)`, [f.id]);
+  await q(`insert into registrations (field_id, version, model, pairs, fl_from_afm, fre_nm) values ($1, 2, 'affine', $2, '[1,0,0,0,1,0]', $3)`,
+    [f.id, JSON.stringify(Array.from({ length: 5 }, () => ({ afm: { x: 1, y: 1 }, fl: { x: 1, y: 1 } }))), freNm]);
+  await relink(f.id, sampleId, rows);
+  return f.id;
+}
+
+/** A new current link run for the field (the old one stops being current), with these vesicles. */
+async function relink(fieldId: string, sampleId: string, rows: V[]) {
+  await q(`update link_runs set current = false where field_id = $1`, [fieldId]);
+  const [lr] = await q<{ id: string }>(`insert into link_runs (field_id, settings, summary) values ($1, '{"thresholdCountsByMarker":{"CD9":100}}', '{}') returning id`, [fieldId]);
+  await q(
+    `insert into vesicles (link_run_id, field_id, sample_id, index, x_afm_px, y_afm_px, height_nm, mean_height_nm, area_nm2, diameter_nm, volume_nm3, circularity, marker_bits, markers)
+     select $1, $2, $3, x.idx, 10, 10, x.h, x.h / 2, pi() * (x.d / 2) ^ 2, x.d, x.h * x.d * x.d, 0.9, x.bits,
+            '[{"intensity":1,"snr":1,"amplitude":1,"spotDistancePx":null},{"intensity":2,"snr":1,"amplitude":1,"spotDistancePx":null},{"intensity":3,"snr":1,"amplitude":1,"spotDistancePx":null}]'
+       from jsonb_to_recordset($4::jsonb) as x(idx int, bits int, d real, h real)`,
+    [lr.id, fieldId, sampleId, JSON.stringify(rows.map((r, idx) => ({ idx, ...r })))],
+  );
+  return lr.id;
+}
+
+/** Wilson score interval, written out here from the formula in REFERENCES §7 (Newcombe 1998a, method 3). */
+function wilson(k: number, n: number) {
+  const z = 1.959963984540054; // 97.5% standard normal quantile (from memory; standard tables give 1.96)
+  const p = k / n;
+  const centre = p + (z * z) / (2 * n);
+  const half = z * Math.sqrt((p * (1 - p)) / n + (z * z) / (4 * n * n));
+  const den = 1 + (z * z) / n;
+  return { lower: (centre - half) / den, upper: (centre + half) / den };
+}
+
+const results = (c: AppClient, id: string, query = '') => c.fetch(`/api/samples/${id}/results${query}`);
+
+beforeAll(async () => {
+  for (const role of ROLES) clients[role] = await signedIn(DEMO[role], DEMO_PASSWORD);
+  db = createDb(process.env.DATABASE_URL!, 4);
+  [{ id: studyId }] = await q<{ id: string }>(`select id from studies where name like 'Harbour Clinic plasma EV pilot%'`);
+  [{ id: otherStudyId }] = await q<{ id: string }>(`insert into studies (name) values ($1) returning id`, [`Results other study ${run}`]);
+  sampleIds.s1 = await addSample(studyId, `RT1-${run}`, GROUP_A);
+  fieldIds.f1 = await addField(sampleIds.s1, 'F1', 'approved', S1_ROWS.slice(0, 150), 12.5);
+  fieldIds.f2 = await addField(sampleIds.s1, 'F2', 'linked', S1_ROWS.slice(150), 18);
+  sampleIds.s3 = await addSample(studyId, `RT3-${run}`, GROUP_A);
+  await addField(sampleIds.s3, 'F1', 'approved', rowsWith(70, 56, 4));
+  sampleIds.s4 = await addSample(studyId, `RT4-${run}`, GROUP_B);
+  await addField(sampleIds.s4, 'F1', 'approved', rowsWith(80, 48, 4));
+  sampleIds.other = await addSample(otherStudyId, `RTX-${run}`, 'x');
+  await addField(sampleIds.other, 'F1', 'approved', rowsWith(10, 5, 1));
+});
+
+afterAll(async () => {
+  await q(`delete from samples where id = any($1::uuid[])`, [Object.values(sampleIds)]);
+  await q(`delete from studies where id = $1`, [otherStudyId]);
+  await db.$client.end();
+});
+
+describe('release', () => {
+  it('is refused while a field is not approved, naming how many', async () => {
+    const res = await clients.analyst.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' });
+    expect(res.status).toBe(409);
+    const body = await res.json();
+    expect(body.error).toBe('conflict');
+    expect(body.message).toContain('1 of 2 field(s)');
+    expect(await q(`select 1 from releases where sample_id = $1`, [sampleIds.s1])).toHaveLength(0);
+  });
+
+  it('a collaborator cannot see the unreleased sample (API and page); the lab can preview it', async () => {
+    const res = await results(clients.collaborator, sampleIds.s1);
+    expect(res.status).toBe(403);
+    expect((await res.json()).error).toBe('forbidden');
+    expect((await results(clients.collaborator, sampleIds.s1, '?source=current')).status).toBe(403);
+    expect((await clients.collaborator.fetch(`/results/${sampleIds.s1}`)).status).toBe(403);
+    expect((await clients.collaborator.fetch(`/api/samples/${sampleIds.s1}/vesicles.csv`)).status).toBe(403);
+    const lab = await results(clients.biologist, sampleIds.s1);
+    expect(lab.status).toBe(404);
+    expect((await lab.json()).error).toBe('not_released');
+    const preview = await (await results(clients.biologist, sampleIds.s1, '?source=current')).json();
+    expect(preview.vesicles).toBe(263);
+    expect(preview.release).toBeNull();
+  });
+
+  it('works once every field is approved, freezes the current link runs and is audited', async () => {
+    await q(`update fields set status = 'approved' where id = $1`, [fieldIds.f2]);
+    const res = await clients.analyst.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' });
+    expect(res.status).toBe(201);
+    const body = await res.json();
+    expect(body.version).toBe(1);
+    const current = await q<{ id: string }>(`select lr.id from link_runs lr join fields f on f.id = lr.field_id where f.sample_id = $1 and lr.current order by lr.id`, [sampleIds.s1]);
+    expect([...body.linkRunIds].sort()).toEqual(current.map((r) => r.id).sort());
+    const audits = await q<{ details: { version: number } }>(`select details from audit_log where action = 'sample.released' and target_id = $1`, [sampleIds.s1]);
+    expect(audits.map((a) => a.details.version)).toEqual([1]);
+  });
+});
+
+describe('released results', () => {
+  it('counts and Wilson intervals match values computed independently', async () => {
+    const res = await results(clients.collaborator, sampleIds.s1);
+    expect(res.status).toBe(200);
+    const r = await res.json();
+    expect(r.source).toBe('released');
+    expect(r.release.version).toBe(1);
+    expect(r.vesicles).toBe(263);
+    expect(r.fieldsAnalysed).toBe(2);
+    const expected = [0, 1, 2].map((bit) => S1_ROWS.filter((v) => v.bits & (1 << bit)).length);
+    expect(r.markers.map((m: { marker: string; count: number }) => [m.marker, m.count])).toEqual([['CD9', expected[0]], ['CD63', expected[1]], ['CD81', expected[2]]]);
+    // 81/263 → 0.2553–0.3662: Newcombe 1998a (Stat Med 17:857), Table I, method 3 (REFERENCES §7); 4 decimals as printed
+    expect(expected[0]).toBe(81);
+    expect(r.markers[0].lower).toBeCloseTo(0.2553, 4);
+    expect(r.markers[0].upper).toBeCloseTo(0.3662, 4);
+    // the other markers against the formula written out in this test (tolerance: float rounding only)
+    for (const i of [1, 2]) {
+      const w = wilson(expected[i], 263);
+      expect(r.markers[i].fraction).toBeCloseTo(expected[i] / 263, 12);
+      expect(r.markers[i].lower).toBeCloseTo(w.lower, 10);
+      expect(r.markers[i].upper).toBeCloseTo(w.upper, 10);
+    }
+    // phenotype combinations
+    const combos = new Map<number, number>();
+    for (const v of S1_ROWS) combos.set(v.bits, (combos.get(v.bits) ?? 0) + 1);
+    expect(Object.fromEntries(r.phenotypes.map((p: { bits: number; count: number }) => [p.bits, p.count]))).toEqual(Object.fromEntries(combos));
+    expect(r.phenotypes.find((p: { bits: number }) => p.bits === 7).label).toBe('CD9+ CD63+ CD81+');
+    // histograms: 10 nm diameter bins from 0 nm; every vesicle lands in a bin
+    const dBins = new Array(50).fill(0);
+    for (const v of S1_ROWS) dBins[Math.floor(v.d / 10)]++;
+    expect(r.diameter.histogram.counts).toEqual(dBins);
+    expect(r.height.histogram.counts.reduce((a: number, b: number) => a + b, 0)).toBe(263);
+    // per-field breakdown with the latest registration's FRE
+    expect(r.fields.map((f: { name: string; vesicles: number; freNm: number; nbFiducials: number }) => [f.name, f.vesicles, f.freNm, f.nbFiducials]))
+      .toEqual([['F1', 150, 12.5, 5], ['F2', 113, 18, 5]]);
+    const sortedD = S1_ROWS.map((v) => v.d).sort((a, b) => a - b);
+    expect(r.diameter.medianNm).toBe(sortedD[131]);
+  });
+
+  it('the page and the CSV exports carry the research-use-only caution', async () => {
+    const page = await clients.collaborator.fetch(`/results/${sampleIds.s1}`);
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain('Research use only.');
+    const csv = await (await clients.collaborator.fetch(`/api/samples/${sampleIds.s1}/results.csv`)).text();
+    const lines = csv.trim().split('\r\n');
+    expect(lines[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
+    const cd9 = lines.find((l) => l.includes(',marker_positive,CD9,'))!.split(',');
+    expect(cd9.slice(0, 7)).toEqual([`RT1-${run}`, GROUP_A, '1', 'marker_positive', 'CD9', '263', '81']);
+    expect(Number(cd9[8])).toBeCloseTo(0.2553, 4); // Newcombe 1998a, Table I (as above)
+    expect(Number(cd9[9])).toBeCloseTo(0.3662, 4);
+    const ves = await clients.collaborator.fetch(`/api/samples/${sampleIds.s1}/vesicles.csv`);
+    expect(ves.headers.get('content-type')).toContain('text/csv');
+    const vl = (await ves.text()).trim().split('\r\n');
+    expect(vl[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
+    expect(vl[1]).toBe('sample_code,field_id,link_run_id,vesicle_index,height_nm,diameter_nm,area_nm2,volume_nm3,CD9_intensity,CD63_intensity,CD81_intensity,CD9,CD63,CD81');
+    expect(vl).toHaveLength(2 + 263);
+    expect(vl.slice(2).filter((l) => l.split(',')[11] === '1')).toHaveLength(81);
+  });
+
+  it("a collaborator cannot see another study's sample, even released", async () => {
+    await q(`insert into releases (sample_id, version, link_run_ids) select $1, 1, jsonb_agg(lr.id) from link_runs lr join fields f on f.id = lr.field_id where f.sample_id = $1`, [sampleIds.other]);
+    expect((await results(clients.collaborator, sampleIds.other)).status).toBe(403);
+    expect((await clients.collaborator.fetch(`/results/${sampleIds.other}`)).status).toBe(403);
+    expect((await clients.collaborator.fetch(`/api/samples/${sampleIds.other}/results.csv`)).status).toBe(403);
+    expect((await clients.collaborator.fetch(`/studies/${otherStudyId}/compare`)).status).toBe(403);
+    const landing = await (await clients.collaborator.fetch('/results')).text();
+    expect(landing).toContain(`RT1-${run}`);
+    expect(landing).not.toContain(`RTX-${run}`);
+  });
+
+  it('re-analysis after release changes nothing for the collaborator until a new release', async () => {
+    await relink(fieldIds.f1, sampleIds.s1, rowsWith(40, 40, 1));
+    const before = await (await results(clients.collaborator, sampleIds.s1)).json();
+    expect([before.vesicles, before.markers[0].count, before.release.version]).toEqual([263, 81, 1]);
+    const preview = await (await results(clients.analyst, sampleIds.s1, '?source=current')).json();
+    expect([preview.vesicles, preview.markers[0].count]).toEqual([40 + 113, 40]);
+    expect((await clients.biologist.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' })).status).toBe(201);
+    const after = await (await results(clients.collaborator, sampleIds.s1)).json();
+    expect([after.vesicles, after.markers[0].count, after.release.version]).toEqual([153, 40, 2]);
+  });
+
+  it('two simultaneous releases: exactly one gets the next version, the other 409', async () => {
+    const [a, b] = await Promise.all([
+      clients.analyst.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' }),
+      clients.biologist.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([201, 409]);
+    const loser = a.status === 409 ? a : b;
+    expect((await loser.json()).message).toContain('at the same moment');
+    expect((await q<{ version: number }>(`select version from releases where sample_id = $1 order by version`, [sampleIds.s1])).map((r) => r.version)).toEqual([1, 2, 3]);
+  });
+});
+
+describe('group comparison', () => {
+  it('compares pooled fractions with Newcombe intervals and lists released samples only', async () => {
+    for (const s of [sampleIds.s3, sampleIds.s4]) {
+      expect((await clients.analyst.fetch(`/api/samples/${s}/release`, { method: 'POST' })).status).toBe(201);
+    }
+    const unreleased = await addSample(studyId, `RT5-${run}`, GROUP_B);
+    sampleIds.s5 = unreleased;
+    await addField(unreleased, 'F1', 'approved', rowsWith(30, 30, 4));
+    // A = RT3 (56/70 CD81+) + RT1 (latest release: no CD81 on the 40 re-linked, 17 of F2's 113); B = RT4 (48/80)
+    const res = await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?groupA=${GROUP_A}&groupB=${GROUP_B}`);
+    expect(res.status).toBe(200);
+    const c = await res.json();
+    const codes = c.samples.map((s: { code: string }) => s.code);
+    expect(codes).toEqual(expect.arrayContaining([`RT1-${run}`, `RT3-${run}`, `RT4-${run}`]));
+    expect(codes).not.toContain(`RT5-${run}`);
+    const cd81 = c.markerComparisons.find((m: { marker: string }) => m.marker === 'CD81');
+    const f2Cd81 = S1_ROWS.slice(150).filter((v) => v.bits & 4).length;
+    expect([cd81.a.count, cd81.a.total, cd81.b.count, cd81.b.total]).toEqual([56 + f2Cd81, 70 + 153, 48, 80]);
+    expect(cd81.test).toBe('chi_square');
+    expect(cd81.pAdjusted).toBeGreaterThanOrEqual(cd81.pValue);
+    expect(c.sizeComparisons.map((s: { measure: string; nA: number; usedA: number }) => [s.measure, s.nA, s.usedA])).toEqual([['diameter_nm', 223, 223], ['height_nm', 223, 223]]);
+  });
+
+  it('reproduces a published Newcombe difference interval for two single-sample groups', async () => {
+    // 56/70 − 48/80: 0.0524 to 0.3339, Newcombe 1998b (Stat Med 17:873), Table II (a), method 10 (REFERENCES §7)
+    await q(`update samples set group_label = $2 where id = $1`, [sampleIds.s1, `rt-none-${run}`]);
+    const c = await (await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?groupA=${GROUP_A}&groupB=${GROUP_B}`)).json();
+    const cd81 = c.markerComparisons.find((m: { marker: string }) => m.marker === 'CD81');
+    expect([cd81.a.count, cd81.a.total, cd81.b.count, cd81.b.total]).toEqual([56, 70, 48, 80]);
+    expect(cd81.difference).toBeCloseTo(0.2, 12);
+    expect(cd81.differenceLower).toBeCloseTo(0.0524, 4);
+    expect(cd81.differenceUpper).toBeCloseTo(0.3339, 4);
+    const csv = await (await clients.collaborator.fetch(`/api/studies/${studyId}/comparison.csv?groupA=${GROUP_A}&groupB=${GROUP_B}`)).text();
+    expect(csv.split('\r\n')[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
+    expect(csv).toContain(`difference,${GROUP_A} - ${GROUP_B},,CD81,150,,0.2`);
+  });
+
+  it('collaborators cannot ask for unreleased data; a bad query is a 400 with a message', async () => {
+    expect((await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?source=current`)).status).toBe(403);
+    const bad = await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?groupA=${GROUP_A}`);
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).message).toContain('groupB');
+  });
+});
