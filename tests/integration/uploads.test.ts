@@ -25,7 +25,7 @@ async function upload(c: AppClient, bytes: Uint8Array) {
   const presign = await c.json('/api/uploads', 'POST', { studyId, fileName: 'x.tif', sizeBytes: bytes.length });
   expect(presign.status).toBe(201);
   const { uploadId, url } = await presign.json();
-  const put = await fetch(url, { method: 'PUT', body: bytes, headers: { 'content-type': 'image/tiff' } });
+  const put = await fetch(url, { method: 'PUT', body: Buffer.from(bytes), headers: { 'content-type': 'image/tiff' } });
   expect(put.status).toBe(200);
   const res = await c.json(`/api/uploads/${uploadId}/inspect`, 'POST', {});
   return { uploadId, res, body: await res.json() };

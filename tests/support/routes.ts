@@ -51,3 +51,9 @@ ROUTES.push(
   { file: 'fields/[id]/detection.ts', method: 'GET', path: '/api/fields/:field/detection', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
   { file: 'fields/[id]/tiles/[...path].ts', method: 'GET', path: '/api/fields/:field/tiles/height.dzi', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
 );
+
+ROUTES.push(
+  { file: 'fields/[id]/registration/index.ts', method: 'GET', path: '/api/fields/:field/registration', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'fields/[id]/registration/index.ts', method: 'POST', path: '/api/fields/:field/registration', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+  { file: 'fields/[id]/registration/auto.ts', method: 'POST', path: '/api/fields/:field/registration/auto', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+);

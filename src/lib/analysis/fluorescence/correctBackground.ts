@@ -102,15 +102,17 @@ export function correctBackground(raster: Raster, options: CorrectBackgroundOpti
     }
   }
 
-  // bilinear interpolation between tile centres; per-column weights are precomputed once
+  // bilinear interpolation between tile centres: per row, the levels are first interpolated along y on the grid
+  // (gridWidth values), then along x with per-column weights computed once
   const colIndex = new Int32Array(width);
-  const colWeight = new Float32Array(width);
+  const colWeight = new Float64Array(width);
   for (let x = 0; x < width; x++) {
     const g = Math.min(Math.max((x + 0.5) / tileW - 0.5, 0), gridWidth - 1);
     const i = Math.min(Math.floor(g), Math.max(0, gridWidth - 2));
     colIndex[x] = i;
     colWeight[x] = gridWidth > 1 ? g - i : 0;
   }
+  const rowLevels = new Float64Array(gridWidth + 1);
   const background = new Float32Array(width * height);
   const corrected = new Float32Array(width * height);
   for (let y = 0; y < height; y++) {
@@ -119,14 +121,13 @@ export function correctBackground(raster: Raster, options: CorrectBackgroundOpti
     const wy = gridHeight > 1 ? g - j : 0;
     const rowA = j * gridWidth;
     const rowB = (gridHeight > 1 ? j + 1 : j) * gridWidth;
+    for (let i = 0; i < gridWidth; i++) rowLevels[i] = gridCounts[rowA + i] + wy * (gridCounts[rowB + i] - gridCounts[rowA + i]);
+    rowLevels[gridWidth] = rowLevels[gridWidth - 1]; // a one-column grid reads past its end with weight 0
     const base = y * width;
     for (let x = 0; x < width; x++) {
       const i = colIndex[x];
-      const wx = colWeight[x];
-      const i2 = gridWidth > 1 ? i + 1 : i;
-      const top = gridCounts[rowA + i] + wx * (gridCounts[rowA + i2] - gridCounts[rowA + i]);
-      const bottom = gridCounts[rowB + i] + wx * (gridCounts[rowB + i2] - gridCounts[rowB + i]);
-      const b = top + wy * (bottom - top);
+      const a = rowLevels[i];
+      const b = a + colWeight[x] * (rowLevels[i + 1] - a);
       background[base + x] = b;
       corrected[base + x] = data[base + x] - cameraOffsetCounts - b;
     }

@@ -1,0 +1,233 @@
+/**
+ * Faults with the real services: PostgreSQL stopped and restarted under the running app, the object
+ * store unreachable during field creation, and a worker killed in the middle of an ingestion job.
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { spawn, type ChildProcess } from 'node:child_process';
+import { randomUUID } from 'node:crypto';
+import { createServer } from 'node:net';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import { tmpdir } from 'node:os';
+import type { APIContext } from 'astro';
+import { eq, inArray, sql } from 'drizzle-orm';
+import { signedIn } from '../support/client';
+import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { clusterDir, findBinDir, runPg } from '../../scripts/lib/postgres';
+import { startS3 } from '../../scripts/lib/s3';
+import { createDb, type Db } from '../../src/lib/db/client';
+import { fields, fieldFiles, samples, tileSets, users } from '../../src/lib/db/schema';
+import { createStorage, type Storage } from '../../src/lib/storage/client';
+import { listKeys, putBytes } from '../../src/lib/storage/objects';
+import { rawFileKey, stagingKey } from '../../src/lib/storage/keys';
+import { createField } from '../../src/lib/uploads/createField';
+import { FieldCreateRequest } from '../../src/lib/schemas/fields';
+import { handle } from '../../src/lib/http/respond';
+import { getBoss } from '../../src/lib/jobs/boss';
+import { QUEUES } from '../../src/lib/jobs/queues';
+import { inspectTiff } from '../../src/lib/imaging';
+import { makeDemoPair } from '../../fixtures/demoScene';
+
+const env = process.env as Record<string, string>;
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+let db: Db;
+
+/** What no reply may ever contain: stack frames, SQL, server paths. */
+function expectNoInternals(text: string) {
+  expect(text).not.toMatch(/\bat \S+ \(|node_modules|SELECT |\/work\/|\/tmp\//);
+}
+
+let sampleId: string;
+
+beforeAll(async () => {
+  db = createDb(env.DATABASE_URL, 2);
+  // a sample of its own in the demo study, so the demo samples' results stay as seeded
+  const [demo] = await db.select().from(samples).where(eq(samples.code, 'HCP-001'));
+  const [s] = await db.insert(samples).values({ studyId: demo.studyId, code: `FAULTS-${Date.now()}` }).returning();
+  sampleId = s.id;
+});
+afterAll(async () => {
+  await (await getBoss(env.DATABASE_URL)).stop({ graceful: false }).catch(() => undefined);
+  await db?.$client.end();
+});
+
+describe('PostgreSQL restarts while the app runs', () => {
+  const pgCtl = join(findBinDir()!, 'pg_ctl');
+  const pgdata = clusterDir(join(env.HEIGHTLIGHT_DATA_DIR, 'postgres'));
+  const start = () => runPg(pgCtl, ['-D', pgdata, '-l', join(pgdata, 'server.log'), '-w', '-t', '60', 'restart']);
+
+  it('answers 503 JSON during the outage and recovers without an app restart', async () => {
+    const c = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+    expect((await c.fetch('/api/studies')).status).toBe(200);
+    runPg(pgCtl, ['-D', pgdata, '-m', 'fast', '-w', 'stop']);
+    try {
+      for (const path of ['/api/studies', '/api/me']) {
+        const res = await c.fetch(path);
+        const text = await res.text();
+        expect(res.status, path).toBe(503);
+        expect(res.headers.get('content-type')).toContain('application/json');
+        const body = JSON.parse(text);
+        expect(body.error).toBe('service_unavailable');
+        expect(body.message).toMatch(/database is not reachable/);
+        expectNoInternals(text);
+      }
+    } finally {
+      // restart reuses the options the cluster was started with (postmaster.opts): port, socket folder
+      start();
+    }
+    let status = 0;
+    const until = Date.now() + 30_000;
+    while (Date.now() < until && status !== 200) {
+      status = (await c.fetch('/api/studies')).status;
+      if (status !== 200) await sleep(500);
+    }
+    expect(status).toBe(200);
+    const studies = (await (await c.fetch('/api/studies')).json()).studies;
+    expect(studies.length).toBeGreaterThan(0);
+  });
+});
+
+async function freePort(): Promise<number> {
+  return new Promise((res, rej) => {
+    const s = createServer();
+    s.once('error', rej);
+    s.listen(0, '127.0.0.1', () => {
+      const { port } = s.address() as { port: number };
+      s.close(() => res(port));
+    });
+  });
+}
+
+describe('the object store goes away during field creation', () => {
+  it('fails with a retryable 503, leaves no rows and no objects, and works once the store is back', async () => {
+    const port = await freePort();
+    const dir = mkdtempSync(join(tmpdir(), 'hl-s3-fault-'));
+    const settings = { port, directory: dir, bucket: 'fault', appOrigin: env.PUBLIC_URL };
+    let s3 = await startS3(settings);
+    const st: Storage = createStorage({ endpoint: `http://127.0.0.1:${port}`, region: 'us-east-1', bucket: 'fault', accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', forcePathStyle: true });
+    const limits = { maxUploadBytes: 2 ** 30, maxPixels: 2 ** 26, maxDecodedBytes: 2 ** 30 };
+    try {
+      const [bio] = await db.select().from(users).where(eq(users.email, DEMO.biologist));
+      const pair = makeDemoPair({ seed: 97, afmSizePx: 256, flSizePx: 96 });
+      const topo = randomUUID();
+      const fl = randomUUID();
+      await putBytes(st, stagingKey(bio.id, topo), pair.topographyTiff, 'image/tiff');
+      await putBytes(st, stagingKey(bio.id, fl), pair.fluorescenceTiff, 'image/tiff');
+      const name = `fault probe ${randomUUID().slice(0, 8)}`;
+      const body = FieldCreateRequest.parse({ sampleId, name, topographyUploadId: topo, fluorescenceUploadIds: [fl], settings: { objectiveNa: 1.4 } });
+
+      await s3.stop();
+      const route = handle(() => createField(db, st, bio.id, body, 3, limits).then((f) => Response.json(f, { status: 201 })));
+      const ctx = { request: new Request('http://127.0.0.1/api/fields', { method: 'POST' }) } as unknown as APIContext;
+      const res = await route(ctx);
+      const text = await res.text();
+      expect(res.status).toBe(503);
+      const err = JSON.parse(text);
+      expect(err.error).toBe('storage_unavailable');
+      expect(err.message).toBe('The file store is not reachable right now; nothing was saved. Try again in a moment.');
+      expectNoInternals(text);
+      expect(await db.select().from(fields).where(eq(fields.name, name))).toEqual([]);
+
+      // back up: nothing under fields/, the staged files are still there, and trying again works
+      s3 = await startS3(settings);
+      expect(await listKeys(st, 'fields/')).toEqual([]);
+      expect((await listKeys(st, 'staging/')).sort()).toEqual([stagingKey(bio.id, topo), stagingKey(bio.id, fl)].sort());
+      const again = await route(ctx);
+      expect(again.status).toBe(201);
+      const created = await again.json();
+      expect(created.name).toBe(name);
+      expect((await listKeys(st, `fields/${created.id}/`)).length).toBe(2);
+      await db.delete(fieldFiles).where(eq(fieldFiles.fieldId, created.id));
+      await db.delete(fields).where(eq(fields.id, created.id));
+    } finally {
+      await s3.stop();
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
+
+/** A demo-like field, inserted the way scripts/seedDemoFields.ts does. */
+async function insertDemoField(st: Storage, seed: number): Promise<string> {
+  const pair = makeDemoPair({ seed, positiveFractions: [0.5, 0.4, 0.3] });
+  const fieldId = randomUUID();
+  const topoId = randomUUID();
+  const flId = randomUUID();
+  await putBytes(st, rawFileKey(fieldId, topoId), pair.topographyTiff, 'image/tiff');
+  await putBytes(st, rawFileKey(fieldId, flId), pair.fluorescenceTiff, 'image/tiff');
+  const t = inspectTiff(pair.topographyTiff);
+  const f = inspectTiff(pair.fluorescenceTiff);
+  await db.transaction(async (tx) => {
+    await tx.insert(fields).values({
+      id: fieldId, sampleId, name: `worker kill ${seed}`, status: 'ingesting', afmPixelNm: pair.afmPixelNm, afmScanSizeNm: pair.afmPixelNm * t.width,
+      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'tapping', flPixelNm: pair.flPixelNm, objectiveNa: 1.4, exposureMs: 100,
+      channelEmissionNm: [520, 590, 670], afmWidthPx: t.width, afmHeightPx: t.height, flWidthPx: f.width, flHeightPx: f.height, progress: { stage: 'queued', fraction: 0 },
+    });
+    await tx.insert(fieldFiles).values([
+      { id: topoId, fieldId, kind: 'topography', objectKey: rawFileKey(fieldId, topoId), originalName: 'kill-height.tif', sizeBytes: pair.topographyTiff.length, meta: { pageCount: 1 } },
+      { id: flId, fieldId, kind: 'fluorescence', channelIndex: 0, objectKey: rawFileKey(fieldId, flId), originalName: 'kill-fluorescence.tif', sizeBytes: pair.fluorescenceTiff.length, meta: { pageCount: 3 } },
+    ]);
+  });
+  return fieldId;
+}
+
+type JobRow = { id: string; state: string; retry_count: number };
+const jobRows = async (ids: string[]) =>
+  (await db.execute(sql`SELECT id::text, state::text, retry_count FROM pgboss.job WHERE id = ANY(${ids}::uuid[])
+    UNION ALL SELECT id::text, state::text, retry_count FROM pgboss.archive WHERE id = ANY(${ids}::uuid[])`)).rows as JobRow[];
+
+describe('a worker is killed in the middle of a job', () => {
+  let extra: ChildProcess | undefined;
+  afterAll(() => { if (extra && extra.exitCode === null) extra.kill('SIGKILL'); });
+
+  it('the job is retried by the other worker and the field ends ready with one set of tiles', async () => {
+    // a second worker beside the one npm test runs
+    extra = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { env: process.env, stdio: ['ignore', 'pipe', 'inherit'] });
+    await new Promise<void>((res, rej) => {
+      const t = setTimeout(() => rej(new Error('the second worker did not start within 30 s')), 30_000);
+      extra!.stdout!.on('data', (d: Buffer) => { if (d.toString().includes('waiting for jobs')) { clearTimeout(t); res(); } });
+    });
+
+    const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
+    const ids = [await insertDemoField(st, 211), await insertDemoField(st, 223)];
+    const boss = await getBoss(env.DATABASE_URL);
+    const jobIds = [];
+    for (const id of ids) jobIds.push((await boss.send(QUEUES.ingestField, { fieldId: id }))!);
+
+    // Each worker takes one job at a time, so both jobs active at once means the second worker holds one.
+    const until = Date.now() + 30_000;
+    let both = false;
+    while (!both && Date.now() < until) {
+      both = (await jobRows(jobIds)).filter((j) => j.state === 'active').length === 2;
+      if (!both) await sleep(200);
+    }
+    expect(both, 'both jobs active at once').toBe(true);
+    // let it get into the work (progress past "queued") before the kill
+    const started = Date.now() + 20_000;
+    while (Date.now() < started) {
+      const rows = await db.select({ p: fields.progress }).from(fields).where(inArray(fields.id, ids));
+      if (rows.every((r) => r.p && (r.p as { stage: string }).stage !== 'queued')) break;
+      await sleep(100);
+    }
+    extra.kill('SIGKILL');
+    await new Promise((r) => extra!.once('exit', r));
+
+    // expiry (JOB_EXPIRE_SECONDS) + maintenance sweep + retry delay + a second ingestion
+    const done = Date.now() + 100_000;
+    let rows: { id: string; status: string }[] = [];
+    while (Date.now() < done) {
+      rows = await db.select({ id: fields.id, status: fields.status }).from(fields).where(inArray(fields.id, ids));
+      if (rows.every((r) => r.status !== 'ingesting')) break;
+      await sleep(1000);
+    }
+    expect(rows.map((r) => r.status)).toEqual(['ready', 'ready']);
+    const jobs = await jobRows(jobIds);
+    expect(jobs.filter((j) => j.state === 'completed').length).toBe(2);
+    expect(Math.max(...jobs.map((j) => j.retry_count))).toBeGreaterThanOrEqual(1);
+
+    // one set of tile_sets rows per field: height plus one per channel, no duplicates
+    for (const id of ids) {
+      const sets = await db.select({ layer: tileSets.layer }).from(tileSets).where(eq(tileSets.fieldId, id));
+      expect(sets.map((s) => s.layer).sort()).toEqual(['ch0', 'ch1', 'ch2', 'height']);
+    }
+  }, 180_000);
+});
