@@ -60,13 +60,14 @@ async function fill() {
      insert into vesicles (link_run_id, field_id, sample_id, index, x_afm_px, y_afm_px, height_nm, mean_height_nm, area_nm2,
                            diameter_nm, volume_nm3, circularity, marker_bits, markers)
      select r.link_run_id, r.field_id, r.sample_id, g.n, (g.n * 7) % 1024, (g.n * 13) % 1024,
-            h, h / 2, pi() * (d / 2) ^ 2, d, h * d * d / 3, 0.9,
-            (case when random() < 0.4 then 1 else 0 end) | (case when random() < 0.3 then 2 else 0 end) | (case when random() < 0.5 then 4 else 0 end),
+            g.h, g.h / 2, pi() * (g.d / 2) ^ 2, g.d, g.h * g.d * g.d / 3, 0.9,
+            (case when g.r1 < 0.4 then 1 else 0 end) | (case when g.r2 < 0.3 then 2 else 0 end) | (case when g.r3 < 0.5 then 4 else 0 end),
             '[{"intensity":120,"snr":5,"amplitude":100,"spotDistancePx":0.4},{"intensity":80,"snr":3,"amplitude":70,"spotDistancePx":null},{"intensity":200,"snr":8,"amplitude":180,"spotDistancePx":0.2}]'
-       from generate_series(0, $2::int - 1) g(n)
+       -- random() in a subquery's select list is drawn per row (in a lateral join without references it would be drawn once)
+       from (select n, (40 + random() * 160)::real as d, (3 + random() * 40)::real as h, random() as r1, random() as r2, random() as r3
+               from generate_series(0, $2::int - 1) n) g
        cross join nr
-       join runs r on r.k = g.n % nr.c
-       cross join lateral (select (40 + random() * 160)::real as d, (3 + random() * 40)::real as h) m`,
+       join runs r on r.k = g.n % nr.c`,
     [study.id, VESICLES],
   );
   await q(
@@ -77,6 +78,7 @@ async function fill() {
   );
   // what autovacuum would do after a bulk load: statistics and the visibility map for index-only scans
   await q(`vacuum analyze vesicles`);
+  await q(`analyze samples, fields, link_runs, releases, registrations`);
   console.log(`filled ${VESICLES.toLocaleString('en')} vesicles in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
   return study.id as string;
 }

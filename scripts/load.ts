@@ -1,0 +1,126 @@
+/**
+ * Load check (not a test): `npx tsx scripts/load.ts [--connections N] [--duration S] [--max-requests N] [--url URL]`.
+ * Signs in as the demo analyst and the demo collaborator, then drives each read route that exists with
+ * autocannon: the vesicle table (per-vesicle CSV of a sample), the field detection reply, a tile of the
+ * height map, and the study comparison (the results dashboard's API). Prints requests/s, p50/p95/p99
+ * latency and errors per route, and PASS/MISS against "no errors and p99 under 300 ms".
+ * Talks to 127.0.0.1/localhost only, and stops by itself: each route runs at most --duration seconds
+ * and --max-requests requests. Defaults are a quick check (10 connections, 5 s); the documented
+ * figure uses --connections 100 --duration 60 (docs/benchmarks.md, "Load").
+ */
+import { existsSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { and, eq } from 'drizzle-orm';
+import { createDb } from '../src/lib/db/client';
+import { fields, samples } from '../src/lib/db/schema';
+import { config } from '../src/lib/config';
+
+const P99_BUDGET_MS = 300;
+
+// autocannon ships no type declarations; the part used here, typed.
+interface AutocannonResult { errors: number; timeouts: number; non2xx: number; requests: { average: number; total: number } }
+interface AutocannonInstance extends PromiseLike<AutocannonResult> {
+  on(event: 'response', fn: (client: unknown, statusCode: number, resBytes: number, responseTimeMs: number) => void): void;
+}
+const autocannon = createRequire(import.meta.url)('autocannon') as (opts: Record<string, unknown>) => AutocannonInstance;
+
+function flag(name: string, fallback: string): string {
+  const i = process.argv.indexOf(`--${name}`);
+  return i >= 0 && process.argv[i + 1] ? process.argv[i + 1] : fallback;
+}
+
+const base = flag('url', process.env.HEIGHTLIGHT_APP_URL ?? config().PUBLIC_URL).replace(/\/$/, '');
+const connections = Number(flag('connections', '10'));
+const durationS = Number(flag('duration', '5'));
+const maxRequests = Number(flag('max-requests', '200000'));
+const password = flag('password', process.env.DEMO_PASSWORD ?? 'vesicle-demo-2026');
+
+/** Signs in through Auth.js's credentials flow, as the sign-in form does; returns the cookie header. */
+async function signIn(email: string): Promise<string> {
+  const jar = new Map<string, string>();
+  const keep = (res: Response) => {
+    for (const c of res.headers.getSetCookie()) {
+      const [pair] = c.split(';');
+      const i = pair.indexOf('=');
+      jar.set(pair.slice(0, i), pair.slice(i + 1));
+    }
+  };
+  const cookie = () => [...jar].map(([k, v]) => `${k}=${v}`).join('; ');
+  const csrf = await fetch(`${base}/api/auth/csrf`);
+  keep(csrf);
+  const { csrfToken } = await csrf.json();
+  const res = await fetch(`${base}/api/auth/callback/credentials`, {
+    method: 'POST',
+    redirect: 'manual',
+    headers: { 'content-type': 'application/x-www-form-urlencoded', 'x-auth-return-redirect': '1', cookie: cookie(), origin: base },
+    body: new URLSearchParams({ email, password, csrfToken, callbackUrl: `${base}/` }),
+  });
+  keep(res);
+  if (![...jar.keys()].some((k) => k.includes('session-token'))) throw new Error(`sign-in of ${email} failed (status ${res.status}): is the demo seeded?`);
+  return cookie();
+}
+
+const percentile = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : NaN);
+
+interface Outcome { name: string; reqPerS: number; p50: number; p95: number; p99: number; requests: number; errors: number; pass: boolean }
+
+/** One route under load; exact percentiles from every response time (autocannon reports p97.5, not p95). */
+async function drive(name: string, path: string, cookie: string): Promise<Outcome> {
+  const times: number[] = [];
+  const instance = autocannon({ url: base + path, connections, duration: durationS, amount: maxRequests, timeout: 10, headers: { cookie } });
+  instance.on('response', (_client, _status, _bytes, ms) => times.push(ms));
+  const r = await instance;
+  times.sort((a, b) => a - b);
+  const errors = r.errors + r.timeouts + r.non2xx;
+  const o = { name, reqPerS: r.requests.average, p50: percentile(times, 50), p95: percentile(times, 95), p99: percentile(times, 99), requests: r.requests.total, errors };
+  return { ...o, pass: errors === 0 && o.p99 < P99_BUDGET_MS && o.requests > 0 };
+}
+
+async function main() {
+  const host = new URL(base).hostname;
+  if (!['127.0.0.1', 'localhost', '::1', '[::1]'].includes(host)) throw new Error(`refusing to load ${base}: only 127.0.0.1 or localhost`);
+  // a processed demo field and its sample, read from the database the app uses
+  const db = createDb(config().DATABASE_URL, 1);
+  const [row] = await db.select({ fieldId: fields.id, sampleId: samples.id, studyId: samples.studyId, width: fields.afmWidthPx })
+    .from(fields).innerJoin(samples, eq(samples.id, fields.sampleId)).where(and(eq(fields.status, 'ready'))).limit(1);
+  await db.$client.end();
+  if (!row) throw new Error('no processed field: start the app with the demo (npm start) and let the worker ingest it');
+
+  const analyst = await signIn('analyst@demo.heightlight.test');
+  const collaborator = await signIn('collaborator@demo.heightlight.test');
+  // deepest Deep Zoom level of the height map (level = ceil(log2(max side)))
+  const level = Math.ceil(Math.log2(row.width ?? 1));
+  const targets = [
+    { name: 'vesicle table (CSV)', file: 'samples/[id]/vesicles.csv.ts', path: `/api/samples/${row.sampleId}/vesicles.csv?source=current`, cookie: analyst },
+    { name: 'field detection', file: 'fields/[id]/detection.ts', path: `/api/fields/${row.fieldId}/detection`, cookie: analyst },
+    { name: 'height tile', file: 'fields/[id]/tiles/[...path].ts', path: `/api/fields/${row.fieldId}/tiles/height_files/${level}/0_0.png`, cookie: analyst },
+    { name: 'dashboard (comparison)', file: 'studies/[id]/comparison.ts', path: `/api/studies/${row.studyId}/comparison`, cookie: collaborator },
+  ].filter((t) => existsSync(`src/pages/api/${t.file}`));
+
+  console.log(`load: ${base}, ${connections} connections, ${durationS} s per route (at most ${maxRequests} requests each)`);
+  const out: Outcome[] = [];
+  for (const t of targets) {
+    // one request first: a route that fails outright is reported, not hammered
+    const probe = await fetch(base + t.path, { headers: { cookie: t.cookie } });
+    await probe.arrayBuffer();
+    if (!probe.ok) {
+      console.log(`${t.name}: ${t.path} answered ${probe.status}; skipped`);
+      out.push({ name: t.name, reqPerS: 0, p50: NaN, p95: NaN, p99: NaN, requests: 1, errors: 1, pass: false });
+      continue;
+    }
+    out.push(await drive(t.name, t.path, t.cookie));
+  }
+  const f = (n: number) => (Number.isFinite(n) ? n.toFixed(0) : '-');
+  console.log('\nroute                     req/s   p50 ms  p95 ms  p99 ms  requests  errors  verdict');
+  for (const o of out) {
+    console.log(`${o.name.padEnd(24)} ${f(o.reqPerS).padStart(6)} ${f(o.p50).padStart(8)} ${f(o.p95).padStart(7)} ${f(o.p99).padStart(7)} ${String(o.requests).padStart(9)} ${String(o.errors).padStart(7)}  ${o.pass ? 'PASS' : 'MISS'}`);
+  }
+  const all = out.length > 0 && out.every((o) => o.pass);
+  console.log(`\n${all ? 'PASS' : 'MISS'}: no errors and p99 under ${P99_BUDGET_MS} ms on every route`);
+  process.exit(all ? 0 : 1);
+}
+
+main().catch((e) => {
+  console.error(`load: ${(e as Error).message}`);
+  process.exit(2);
+});
