@@ -36,7 +36,8 @@ async function bucketState(st: Storage): Promise<'missing' | 'empty' | 'has obje
     if ((e as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404) return 'missing';
     throw e;
   }
-  const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, MaxKeys: 1 }));
+  // no MaxKeys: s3rver answers MaxKeys=1 with an internal error
+  const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket }));
   return (page.KeyCount ?? page.Contents?.length ?? 0) > 0 ? 'has objects' : 'empty';
 }
 

@@ -34,7 +34,7 @@ afterAll(async () => { await browser?.close(); });
 async function watch(page: Page) {
   const violations: string[] = [];
   page.on('console', (m) => {
-    if (m.type() === 'error' && /Content Security Policy|Refused to/i.test(m.text())) violations.push(m.text());
+    if (m.type() === 'error' && /Content Security Policy|Refused to/i.test(m.text())) violations.push(`${new URL(page.url()).pathname}: ${m.text()}`);
   });
   await page.addInitScript(() => {
     document.addEventListener('securitypolicyviolation', (e) => console.error(`Refused to load (Content Security Policy ${e.violatedDirective}): ${e.blockedURI}`));

@@ -57,3 +57,10 @@ ROUTES.push(
   { file: 'fields/[id]/registration/index.ts', method: 'POST', path: '/api/fields/:field/registration', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
   { file: 'fields/[id]/registration/auto.ts', method: 'POST', path: '/api/fields/:field/registration/auto', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
 );
+
+ROUTES.push(
+  { file: 'fields/[id]/link.ts', method: 'POST', path: '/api/fields/:field/link', allowed: ['admin', 'analyst'], studyScoped: true },
+  { file: 'fields/[id]/review.ts', method: 'POST', path: '/api/fields/:field/review', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+  { file: 'vesicles/index.ts', method: 'GET', path: '/api/vesicles?fieldId=:field', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'vesicles/export.csv.ts', method: 'GET', path: '/api/vesicles/export.csv?sampleId=:sample', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+);

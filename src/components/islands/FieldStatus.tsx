@@ -11,17 +11,18 @@ const WORDS: Record<string, string> = {
 export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: string; initial: Status; canRetry: boolean }) {
   const [s, setS] = useState(initial);
   const [msg, setMsg] = useState<string | null>(null);
+  const working = s.status === 'ingesting' || s.status === 'uploading' || (s.progress != null && s.progress.fraction < 1);
   useEffect(() => {
-    if (s.status !== 'ingesting' && s.status !== 'uploading') return;
+    if (!working) return;
     const t = setInterval(async () => {
       const r = await fetch(`/api/fields/${fieldId}`);
       if (!r.ok) return;
       const next = (await r.json()).field as Status;
       setS(next);
-      if (next.status === 'ready') window.location.reload();
+      if (next.status !== initial.status || (next.progress?.fraction ?? 1) >= 1) window.location.reload();
     }, 1500);
     return () => clearInterval(t);
-  }, [s.status, fieldId]);
+  }, [working, fieldId]);
 
   async function retry() {
     const r = await fetch(`/api/fields/${fieldId}/retry`, { method: 'POST' });
@@ -36,7 +37,7 @@ export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: s
         <div className="font-semibold">{WORDS[s.status] ?? s.status}</div>
         {s.status === 'failed' && canRetry && <button className="btn btn-quiet" onClick={retry}>Retry processing</button>}
       </div>
-      {(s.status === 'ingesting' || s.status === 'uploading') && (
+      {working && (
         <div className="mt-2">
           <div className="h-2 bg-mica-100 rounded" role="progressbar" aria-valuenow={Math.round((s.progress?.fraction ?? 0) * 100)} aria-valuemin={0} aria-valuemax={100}>
             <div className="h-2 bg-tip-500 rounded transition-all" style={{ width: `${(s.progress?.fraction ?? 0) * 100}%` }} />
@@ -44,7 +45,7 @@ export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: s
           <div className="text-xs text-mica-600 mt-1">{s.progress?.stage ?? 'queued'} · {Math.round((s.progress?.fraction ?? 0) * 100)}%</div>
         </div>
       )}
-      {s.status === 'failed' && <p className="notice notice-error mt-2" role="alert">{s.failureReason}</p>}
+      {s.failureReason && <p className="notice notice-error mt-2" role="alert">{s.failureReason}</p>}
       {msg && <p className="notice notice-error mt-2">{msg}</p>}
     </div>
   );

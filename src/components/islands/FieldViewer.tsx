@@ -98,6 +98,25 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
     };
   }, [fieldId, mode]);
 
+  // a row chosen in the vesicle table: centre and zoom on it in the height map
+  useEffect(() => {
+    const onFocus = (e: Event) => {
+      const { x, y, fieldId: f } = (e as CustomEvent<{ x: number; y: number; fieldId: string }>).detail;
+      if (f !== fieldId) return;
+      if (mode !== 'height') setMode('height');
+      const v = viewer.current;
+      const item = v?.world.getItemAt(0);
+      if (!v || !item) return;
+      const r = 40;
+      const tl = item.imageToViewportCoordinates(x + 0.5 - r, y + 0.5 - r);
+      const br = item.imageToViewportCoordinates(x + 0.5 + r, y + 0.5 + r);
+      v.viewport.fitBounds(new OpenSeadragon.Rect(tl.x, tl.y, br.x - tl.x, br.y - tl.y));
+      host.current?.scrollIntoView({ behavior: 'smooth', block: 'center' });
+    };
+    window.addEventListener('heightlight:focus-vesicle', onFocus);
+    return () => window.removeEventListener('heightlight:focus-vesicle', onFocus);
+  }, [fieldId, mode]);
+
   useEffect(() => {
     const v = viewer.current;
     if (!v || mode !== 'fluorescence') return;

@@ -7,3 +7,9 @@ export async function enqueueIngest(fieldId: string) {
   const boss = await getBoss(config().DATABASE_URL);
   return boss.send(QUEUES.ingestField, { fieldId }, { singletonKey: `ingest:${fieldId}` });
 }
+
+/** Queues linking of a field's vesicles to marker calls. */
+export async function enqueueLink(fieldId: string) {
+  const boss = await getBoss(config().DATABASE_URL);
+  return boss.send(QUEUES.linkField, { fieldId }, { singletonKey: `link:${fieldId}` });
+}

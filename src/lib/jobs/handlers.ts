@@ -2,6 +2,7 @@ import type PgBoss from 'pg-boss';
 import { eq, and } from 'drizzle-orm';
 import { QUEUES } from './queues';
 import { ingestField, PermanentJobError } from './ingestField';
+import { linkField } from './linkField';
 import { getDb } from '../db/client';
 import { getStorage } from '../storage/client';
 import { config } from '../config';
@@ -39,6 +40,17 @@ async function notifyFieldReady(fieldId: string) {
 /** Registers the worker's job handlers. */
 export async function registerHandlers(boss: PgBoss) {
   const c = config();
+  const decodeLimits = { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES };
+  await boss.work<{ fieldId: string }>(QUEUES.linkField, { batchSize: 1 }, async ([job]) => {
+    const started = Date.now();
+    try {
+      const r = await linkField({ db: await getDb(), st: await getStorage(), decodeLimits }, job.data.fieldId);
+      console.log(`[worker] linked field ${job.data.fieldId} in ${Date.now() - started} ms`, r?.vesicles);
+    } catch (e) {
+      console.error(`[worker] linking ${job.data.fieldId} failed:`, (e as Error).message);
+      if (!(e instanceof PermanentJobError || e instanceof ImagingError)) throw e;
+    }
+  });
   await boss.work<{ fieldId: string }>(QUEUES.ingestField, { batchSize: 1 }, async ([job]) => {
     const started = Date.now();
     try {

@@ -30,7 +30,7 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
       <section className="card">
         <h2>Marker-positive fraction per sample</h2>
         <p className="text-sm text-mica-600 mt-1">Dots: fraction of vesicles positive; lines: 95% Wilson interval. {data.samples.length} sample(s).</p>
-        {data.samples.length === 0 ? <p className="text-sm mt-3">No results yet.</p> : <FractionsPlot samples={data.samples} />}
+        {data.samples.length === 0 ? <p className="text-sm mt-3">No results yet.</p> : <FractionsPlot samples={data.samples} markers={data.panel.map((c) => c.marker)} />}
       </section>
       <section className="card">
         <h2>Compare two groups</h2>

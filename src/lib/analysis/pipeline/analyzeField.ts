@@ -145,6 +145,8 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       volumeNm3: v.volumeNm3,
       areaNm2: v.projectedAreaNm2,
       circularity: v.circularity,
+      meanHeightNm: v.meanHeightNm,
+      cap: v.cap ? { baseRadiusNm: v.cap.baseRadiusNm, contactAngleDeg: v.cap.contactAngleDeg, volumeEquivalentDiameterNm: v.cap.volumeEquivalentDiameterNm } : null,
       outOfFrame: link.outOfFrame,
       phenotype: link.phenotype,
       markers: calls,

@@ -3,5 +3,5 @@ export { fieldStages } from './fieldStages';
 export { mergeSpots } from './mergeSpots';
 export { parseFiducialCsv } from './parseFiducialCsv';
 export { refineFiducialPairs, type RefineFiducialPairsOptions } from './refineFiducialPairs';
-export { vesicleCsv } from './vesicleCsv';
+export { vesicleCsv, vesicleCsvHeader, vesicleCsvRow } from './vesicleCsv';
 export type * from './types';

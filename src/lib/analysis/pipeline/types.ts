@@ -133,6 +133,10 @@ export interface VesicleRecord {
   readonly areaNm2: number;
   /** 4πA/P² (dimensionless). */
   readonly circularity: number;
+  /** Mean height over the footprint (nm). */
+  readonly meanHeightNm: number;
+  /** Spherical-cap model (tip-corrected when a tip radius was given); null when the cap is degenerate. */
+  readonly cap: { readonly baseRadiusNm: number; readonly contactAngleDeg: number; readonly volumeEquivalentDiameterNm: number } | null;
   /** True when the vesicle maps outside at least one channel's frame. */
   readonly outOfFrame: boolean;
   /** e.g. "CD9+ CD63- CD81?" (? = outside that frame). */

@@ -18,23 +18,33 @@ const GEOMETRY_COLUMNS = [
  * @see RFC 4180 (quoting of fields that hold commas, quotes or line breaks)
  */
 export function vesicleCsv(records: readonly VesicleRecord[], markers: readonly string[]): string {
-  const header = [...GEOMETRY_COLUMNS, ...markers.flatMap((m) => [`${m}_intensity`, m]), 'out_of_frame', 'phenotype'];
-  const lines = [header.map(csvField).join(',')];
-  for (const r of records) {
-    const cells = [
-      fixed(r.xAfmPx, 3), fixed(r.yAfmPx, 3), fixed(r.xFlPx, 3), fixed(r.yFlPx, 3),
-      fixed(r.heightNm, 2), fixed(r.diameterNm, 2), fixed(r.volumeNm3, 0), fixed(r.areaNm2, 0), fixed(r.circularity, 3),
-    ];
-    for (const m of markers) {
-      const call = r.markers[m];
-      if (!call) throw new RangeError(`record ${r.index} has no call for marker ${m}`);
-      cells.push(call.intensityCounts === null ? '' : fixed(call.intensityCounts, 1));
-      cells.push(call.positive === null ? '' : call.positive ? '1' : '0');
-    }
-    cells.push(r.outOfFrame ? '1' : '0', r.phenotype);
-    lines.push(cells.map(csvField).join(','));
-  }
+  const lines = [vesicleCsvHeader(markers)];
+  for (const r of records) lines.push(vesicleCsvRow(r, markers));
   return `${lines.join('\n')}\n`;
+}
+
+/**
+ * The header line of {@link vesicleCsv}, with `extra` columns appended (the web export adds the
+ * field, sample and transform identifiers). No line break.
+ */
+export function vesicleCsvHeader(markers: readonly string[], extra: readonly string[] = []): string {
+  return [...GEOMETRY_COLUMNS, ...markers.flatMap((m) => [`${m}_intensity`, m]), 'out_of_frame', 'phenotype', ...extra].map(csvField).join(',');
+}
+
+/** One data line of {@link vesicleCsv} (no line break), with `extra` values appended. */
+export function vesicleCsvRow(r: VesicleRecord, markers: readonly string[], extra: readonly string[] = []): string {
+  const cells = [
+    fixed(r.xAfmPx, 3), fixed(r.yAfmPx, 3), fixed(r.xFlPx, 3), fixed(r.yFlPx, 3),
+    fixed(r.heightNm, 2), fixed(r.diameterNm, 2), fixed(r.volumeNm3, 0), fixed(r.areaNm2, 0), fixed(r.circularity, 3),
+  ];
+  for (const m of markers) {
+    const call = r.markers[m];
+    if (!call) throw new RangeError(`record ${r.index} has no call for marker ${m}`);
+    cells.push(call.intensityCounts === null ? '' : fixed(call.intensityCounts, 1));
+    cells.push(call.positive === null ? '' : call.positive ? '1' : '0');
+  }
+  cells.push(r.outOfFrame ? '1' : '0', r.phenotype, ...extra);
+  return cells.map(csvField).join(',');
 }
 
 function fixed(v: number, digits: number): string {

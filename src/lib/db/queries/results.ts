@@ -189,7 +189,10 @@ export async function getSampleResults(
            select field_id, count(*)::int as n${markerCols ? ', ' + markerCols : ''}
              from vesicles where link_run_id = any($2::uuid[]) group by field_id
          ) v on v.field_id = f.id
-        where f.sample_id = $1 order by f.name, f.id`,
+        where f.sample_id = $1
+          -- only fields in the selection: a collaborator must not learn of fields added after the release
+          and exists (select 1 from link_runs lr where lr.field_id = f.id and lr.id = any($2::uuid[]))
+        order by f.name, f.id`,
       [sample.id, ids],
     ),
     rows<{ n: number }>(db, `select count(distinct field_id)::int as n from link_runs where id = any($1::uuid[])`, [ids]),
@@ -366,6 +369,20 @@ export async function getStudyComparison(
     });
   }
   return { study, source, panel, groups, samples, groupA, groupB, markerComparisons, sizeComparisons };
+}
+
+/** Group labels of the samples that have data in `source` (cheap: no vesicle rows read). */
+export async function listResultGroups(db: Db, studyId: string, source: ResultSource): Promise<string[]> {
+  const r = await rows<{ g: string }>(
+    db,
+    `select distinct s.group_label as g from samples s where s.study_id = $1 and exists (${
+      source === 'released'
+        ? 'select 1 from releases r where r.sample_id = s.id'
+        : 'select 1 from fields f join link_runs lr on lr.field_id = f.id and lr.current where f.sample_id = s.id'
+    }) order by 1`,
+    [studyId],
+  );
+  return r.map((x) => x.g);
 }
 
 /** Samples with at least one release in the studies the user belongs to (admins: all), newest first. */

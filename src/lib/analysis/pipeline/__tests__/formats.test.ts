@@ -3,7 +3,7 @@ import { mergeSpots, parseFiducialCsv, vesicleCsv, type VesicleRecord } from '..
 
 const record = (over: Partial<VesicleRecord> = {}): VesicleRecord => ({
   index: 0, xAfmPx: 10.12345, yAfmPx: 20, xFlPx: 1.5, yFlPx: -0.0001, heightNm: 12.345, diameterNm: 80.5,
-  volumeNm3: 41234.6, areaNm2: 5089.4, circularity: 0.98765, outOfFrame: false, phenotype: 'CD9+ CD63-',
+  volumeNm3: 41234.6, areaNm2: 5089.4, circularity: 0.98765, meanHeightNm: 6.1, cap: null, outOfFrame: false, phenotype: 'CD9+ CD63-',
   markers: {
     CD9: { intensityCounts: 512.25, intensitySnr: 9, amplitudeCounts: 600, spotDistancePx: 0.2, positive: true },
     CD63: { intensityCounts: -3.04, intensitySnr: -0.1, amplitudeCounts: 0, spotDistancePx: null, positive: false },

@@ -1,0 +1,54 @@
+import { useState } from 'react';
+
+interface Review { decision: string; comment: string; reviewedAt: string; reviewer: string | null }
+interface Props { fieldId: string; status: string; version: number; canAnalyse: boolean; reviews: Review[]; summary: Record<string, unknown> | null }
+
+/** Linking, approval and send-back of a field, with the record of earlier reviews. */
+export default function ReviewPanel({ fieldId, status, version, canAnalyse, reviews, summary }: Props) {
+  const [comment, setComment] = useState('');
+  const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
+  const [busy, setBusy] = useState(false);
+
+  async function post(path: string, body?: unknown) {
+    setBusy(true);
+    const r = await fetch(path, { method: 'POST', headers: { 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
+    const data = await r.json();
+    setBusy(false);
+    if (!r.ok) return setMsg({ ok: false, text: data.message });
+    window.location.reload();
+  }
+  const positive = (summary?.positiveByMarker ?? {}) as Record<string, number>;
+
+  return (
+    <div className="card text-sm space-y-3" data-testid="review-panel">
+      <h2>Linking and review</h2>
+      {summary && (
+        <dl className="grid grid-cols-2 gap-y-1">
+          <dt className="text-mica-600">Vesicles</dt><dd>{String(summary.nbVesicles)}</dd>
+          {Object.entries(positive).map(([m, k]) => <><dt key={m} className="text-mica-600">{m}+</dt><dd key={`${m}v`}>{k}</dd></>)}
+          <dt className="text-mica-600">Outside the frame</dt><dd>{String(summary.nbOutOfFrame)}</dd>
+          <dt className="text-mica-600">No marker</dt><dd>{String(summary.nbVesiclesWithoutMarker)}</dd>
+        </dl>
+      )}
+      {canAnalyse && ['registered', 'linked'].includes(status) && (
+        <button type="button" className="btn w-full justify-center" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/link`)}>{status === 'linked' ? 'Link again' : 'Link vesicles to markers'}</button>
+      )}
+      {canAnalyse && ['linked', 'approved'].includes(status) && (
+        <div className="space-y-2">
+          <label className="field-label" htmlFor="review-comment">Comment {status === 'approved' ? '(required to send back)' : ''}</label>
+          <textarea id="review-comment" className="input" rows={2} value={comment} onChange={(e) => setComment(e.target.value)} />
+          <div className="flex gap-2">
+            {status === 'linked' && <button type="button" className="btn" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/review`, { decision: 'approved', comment, expectedVersion: version })}>Approve field</button>}
+            <button type="button" className="btn btn-quiet" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/review`, { decision: 'sent_back', comment, expectedVersion: version })}>Send back</button>
+          </div>
+        </div>
+      )}
+      {msg && <p className={`notice ${msg.ok ? 'notice-ok' : 'notice-error'}`} role="alert">{msg.text}</p>}
+      {reviews.length > 0 && (
+        <ul className="space-y-1 border-t border-mica-100 pt-2">
+          {reviews.map((r, i) => <li key={i}><strong>{r.decision === 'approved' ? 'Approved' : 'Sent back'}</strong> by {r.reviewer ?? '–'} · {r.reviewedAt.slice(0, 16).replace('T', ' ')} UTC{r.comment && <>: “{r.comment}”</>}</li>)}
+        </ul>
+      )}
+    </div>
+  );
+}

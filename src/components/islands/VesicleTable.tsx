@@ -1,0 +1,114 @@
+import { useMemo, useState } from 'react';
+import { QueryClient, QueryClientProvider, useQuery, keepPreviousData } from '@tanstack/react-query';
+import { useReactTable, getCoreRowModel, flexRender, createColumnHelper, type SortingState } from '@tanstack/react-table';
+import { api } from '../../lib/api-client/http';
+import { VesiclePage } from '../../lib/schemas/vesicles';
+
+type Row = VesiclePage['rows'][number];
+interface Props { fieldId?: string; sampleId?: string }
+
+const col = createColumnHelper<Row>();
+const n = (v: number | null | undefined, d = 1) => (v == null || !Number.isFinite(v) ? '–' : v.toFixed(d));
+const SORTABLE = new Set(['index', 'heightNm', 'diameterNm', 'volumeNm3', 'phenotype']);
+
+function Table({ fieldId, sampleId }: Props) {
+  const [page, setPage] = useState(0);
+  const [sorting, setSorting] = useState<SortingState>([{ id: 'index', desc: false }]);
+  const [filters, setFilters] = useState({ minHeightNm: '', maxHeightNm: '', minDiameterNm: '', maxDiameterNm: '', phenotype: '' });
+  const params = new URLSearchParams({
+    ...(fieldId ? { fieldId } : { sampleId: sampleId! }),
+    page: String(page), pageSize: '50', sort: sorting[0]?.id ?? 'index', dir: sorting[0]?.desc ? 'desc' : 'asc',
+    ...Object.fromEntries(Object.entries(filters).filter(([, v]) => v !== '')),
+  });
+  const q = useQuery({
+    queryKey: ['vesicles', params.toString()],
+    queryFn: ({ signal }) => api(`/api/vesicles?${params}`, VesiclePage, { signal }),
+    placeholderData: keepPreviousData,
+  });
+  const markers = q.data?.markers ?? [];
+  const columns = useMemo(() => [
+    col.accessor('index', { header: '#', cell: (c) => c.getValue() + 1 }),
+    col.accessor('heightNm', { header: 'Height (nm)', cell: (c) => n(c.getValue()) }),
+    col.accessor('diameterNm', { header: 'Diameter (nm)', cell: (c) => n(c.getValue()) }),
+    col.accessor('volumeNm3', { header: 'Volume (nm³)', cell: (c) => Math.round(c.getValue()).toLocaleString('en') }),
+    col.accessor('sphereDiameterNm', { header: 'Sphere-equiv. diameter (nm)', cell: (c) => n(c.getValue()) }),
+    ...markers.map((m, i) => col.display({
+      id: `m${i}`,
+      header: `${m} (counts)`,
+      cell: (c) => {
+        const k = c.row.original.markers[i];
+        const pos = c.row.original.phenotype.split(' ').includes(`${m}+`);
+        return <span className={pos ? 'text-cap-600 font-semibold' : 'text-mica-600'}>{n(k?.intensity, 0)} {k?.intensity == null ? '' : pos ? '+' : '−'}</span>;
+      },
+    })),
+    col.accessor('phenotype', { header: 'Phenotype' }),
+    col.accessor('outOfFrame', { header: 'Outside frame', cell: (c) => (c.getValue() ? 'yes' : '') }),
+  ], [markers.join(',')]);
+
+  const table = useReactTable({
+    data: q.data?.rows ?? [],
+    columns,
+    manualSorting: true,
+    manualPagination: true,
+    state: { sorting },
+    onSortingChange: (u) => { setSorting(u); setPage(0); },
+    getCoreRowModel: getCoreRowModel(),
+  });
+  const total = q.data?.total ?? 0;
+  const pages = Math.max(1, Math.ceil(total / 50));
+  const setF = (k: keyof typeof filters) => (e: { target: { value: string } }) => { setFilters({ ...filters, [k]: e.target.value }); setPage(0); };
+  const focus = (r: Row) => window.dispatchEvent(new CustomEvent('heightlight:focus-vesicle', { detail: { x: r.xAfmPx, y: r.yAfmPx, fieldId: r.fieldId } }));
+
+  return (
+    <div className="space-y-3">
+      <div className="flex flex-wrap gap-3 items-end text-sm" aria-label="Filters">
+        <label>Height from (nm)<input className="input w-24" inputMode="decimal" value={filters.minHeightNm} onChange={setF('minHeightNm')} aria-label="Minimum height (nm)" /></label>
+        <label>to<input className="input w-24" inputMode="decimal" value={filters.maxHeightNm} onChange={setF('maxHeightNm')} aria-label="Maximum height (nm)" /></label>
+        <label>Diameter from (nm)<input className="input w-24" inputMode="decimal" value={filters.minDiameterNm} onChange={setF('minDiameterNm')} aria-label="Minimum diameter (nm)" /></label>
+        <label>to<input className="input w-24" inputMode="decimal" value={filters.maxDiameterNm} onChange={setF('maxDiameterNm')} aria-label="Maximum diameter (nm)" /></label>
+        <label>Phenotype
+          <select className="input w-auto" value={filters.phenotype} onChange={setF('phenotype')} aria-label="Phenotype">
+            <option value="">all</option>
+            {(q.data?.phenotypes ?? []).map((p) => <option key={p.phenotype} value={p.phenotype}>{p.phenotype} ({p.n})</option>)}
+          </select>
+        </label>
+        <a className="btn btn-quiet ml-auto" href={`/api/vesicles/export.csv?${new URLSearchParams(Object.fromEntries([...params].filter(([k]) => !['page', 'pageSize', 'sort', 'dir'].includes(k))))}`} download>Download CSV</a>
+      </div>
+      {q.error && <p className="notice notice-error" role="alert">{(q.error as Error).message}</p>}
+      <div className="overflow-x-auto card p-0">
+        <table className="data-table w-full text-sm" data-testid="vesicle-table">
+          <thead>
+            {table.getHeaderGroups().map((hg) => (
+              <tr key={hg.id}>
+                {hg.headers.map((h) => (
+                  <th key={h.id} className={SORTABLE.has(h.column.id) ? 'cursor-pointer select-none' : ''} onClick={SORTABLE.has(h.column.id) ? h.column.getToggleSortingHandler() : undefined}>
+                    {flexRender(h.column.columnDef.header, h.getContext())}{{ asc: ' ▲', desc: ' ▼' }[h.column.getIsSorted() as string] ?? ''}
+                  </th>
+                ))}
+              </tr>
+            ))}
+          </thead>
+          <tbody>
+            {table.getRowModel().rows.map((r) => (
+              <tr key={r.id} className="hover:bg-tip-50 cursor-pointer" onClick={() => focus(r.original)}>
+                {r.getVisibleCells().map((c) => <td key={c.id}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>)}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      <div className="flex items-center gap-3 text-sm">
+        <button type="button" className="btn btn-quiet" disabled={page === 0} onClick={() => setPage(page - 1)}>Previous</button>
+        <span data-testid="vesicle-count">Page {page + 1} of {pages} · {total.toLocaleString('en')} vesicles{q.isFetching ? ' · loading…' : ''}</span>
+        <button type="button" className="btn btn-quiet" disabled={page + 1 >= pages} onClick={() => setPage(page + 1)}>Next</button>
+      </div>
+    </div>
+  );
+}
+
+const client = new QueryClient({ defaultOptions: { queries: { staleTime: 10_000, retry: 1 } } });
+
+/** The per-vesicle table of a field or a sample: server-side paging, sorting and filtering. */
+export default function VesicleTable(props: Props) {
+  return <QueryClientProvider client={client}><Table {...props} /></QueryClientProvider>;
+}

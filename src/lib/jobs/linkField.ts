@@ -1,0 +1,101 @@
+/**
+ * The linking job: each vesicle of the field, mapped through its latest registration, gets an
+ * intensity, SNR, joint amplitude and positive/negative call per marker, and a phenotype. Results
+ * are saved with the settings and transform version that produced them. Idempotent: a re-run
+ * replaces the field's current results in one transaction (runs frozen by a release are kept).
+ */
+import { asc, desc, eq, inArray, sql } from 'drizzle-orm';
+import type { Db } from '../db/client';
+import { fields, fieldFiles, samples, markerChannels, registrations, linkRuns, vesicles, releases } from '../db/schema';
+import type { Storage } from '../storage/client';
+import { getBytes } from '../storage/objects';
+import { decodeInWorker } from '../imaging';
+import { analyzeField } from '../analysis/pipeline';
+import { setFieldProgress } from './progress';
+import { controlThresholds } from './controlThresholds';
+import { PermanentJobError, type IngestDeps } from './ingestField';
+
+const BATCH = 1000;
+
+export async function linkField(deps: IngestDeps, fieldId: string) {
+  const { db, st } = deps;
+  const [field] = await db.select().from(fields).where(eq(fields.id, fieldId));
+  if (!field) return;
+  const [sample] = await db.select().from(samples).where(eq(samples.id, field.sampleId));
+  const panel = await db.select().from(markerChannels).where(eq(markerChannels.studyId, sample.studyId)).orderBy(asc(markerChannels.channelIndex));
+  const [reg] = await db.select().from(registrations).where(eq(registrations.fieldId, fieldId)).orderBy(desc(registrations.version)).limit(1);
+  const progress = (stage: string, f: number) => setFieldProgress(db, fieldId, stage, f);
+  try {
+    if (!reg) throw new PermanentJobError('The field has no saved registration: register it before linking.');
+    const files = await db.select().from(fieldFiles).where(eq(fieldFiles.fieldId, fieldId)).orderBy(asc(fieldFiles.channelIndex));
+    await progress('reading files', 0.02);
+    const decode = async (key: string) => decodeInWorker(await getBytes(st, key), deps.decodeLimits, { timeoutMs: 120_000, maxHeapMb: 4096 });
+    const topo = await decode(files.find((f) => f.kind === 'topography')!.objectKey);
+    const frames = [];
+    for (const f of files.filter((x) => x.kind === 'fluorescence')) frames.push(...(await decode(f.objectKey)).pages);
+    const markers = frames.map((_, c) => panel[c]?.marker ?? `ch${c + 1}`);
+    const controls = sample.controlKind === 'none' ? await controlThresholds(db, sample.studyId, markers) : {};
+    const thresholdCountsByMarker = Object.fromEntries(Object.entries(controls).map(([m, t]) => [m, t.thresholdCounts]));
+
+    // analyzeField is synchronous: its stage reports are written in order once it returns
+    // (the bar moves reading → analysing → saving), never after the final state.
+    const stages: [string, number][] = [];
+    await progress('linking: analysing', 0.1);
+    const result = analyzeField(
+      {
+        heightNm: topo.pages[0], afmPixelNm: field.afmPixelNm!, flPixelNm: field.flPixelNm!, numericalAperture: field.objectiveNa ?? 1.4,
+        channels: frames.map((raster, c) => ({ marker: markers[c], raster, emissionNm: field.channelEmissionNm[c] ?? panel[c]?.emissionNm ?? 600 })),
+        fiducialPairs: reg.pairs, thresholdCountsByMarker,
+      },
+      {
+        tipRadiusNm: field.tipRadiusNm ?? 0, snapRadiusNm: 0,
+        onProgress: (stage, f) => stages.push([stage, f]),
+      },
+    );
+
+    for (const [stage, f] of stages.filter(([, f]) => f === 1)) await progress(`linking: ${stage} done`, 0.1 + 0.75 * ((['level', 'detect', 'measure', 'spots', 'register', 'link', 'summarise'].indexOf(stage) + f) / 7));
+    await progress('saving results', 0.9);
+    const settings = {
+      registrationVersion: reg.version,
+      thresholdRule: Object.fromEntries(markers.map((m) => [m, controls[m] ? `control samples: mean + 3 SD of ${controls[m].nbControls} control vesicles` : 'background apertures: mean + 3 SD'])),
+      thresholds: Object.fromEntries(markers.map((m) => [m, result.summary.channels[m]?.thresholdCounts ?? null])),
+      k: 3,
+      markers,
+    };
+    await db.transaction(async (tx) => {
+      const frozen = (await tx.select({ ids: releases.linkRunIds }).from(releases)).flatMap((r) => r.ids);
+      const old = await tx.select({ id: linkRuns.id }).from(linkRuns).where(eq(linkRuns.fieldId, fieldId));
+      const deletable = old.map((o) => o.id).filter((id) => !frozen.includes(id));
+      if (deletable.length) await tx.delete(linkRuns).where(inArray(linkRuns.id, deletable));
+      // what is left of older runs is frozen by releases: kept, but no longer current
+      await tx.update(linkRuns).set({ current: false }).where(eq(linkRuns.fieldId, fieldId));
+      const [run] = await tx.insert(linkRuns).values({ fieldId, registrationId: reg.id, settings, summary: result.summary as unknown as Record<string, unknown>, current: true }).returning();
+      const rows = result.records.map((r) => {
+        let bits = 0;
+        const calls = markers.map((m, i) => {
+          const c = r.markers[m];
+          if (c?.positive) bits |= 1 << i;
+          return { intensity: c?.intensityCounts ?? NaN, snr: c?.intensitySnr ?? NaN, amplitude: c?.amplitudeCounts ?? NaN, spotDistancePx: c?.spotDistancePx ?? null };
+        });
+        return {
+          linkRunId: run.id, fieldId, sampleId: sample.id, index: r.index, xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: r.xFlPx, yFlPx: r.yFlPx,
+          heightNm: r.heightNm, meanHeightNm: r.meanHeightNm, areaNm2: r.areaNm2, diameterNm: r.diameterNm, volumeNm3: r.volumeNm3, circularity: r.circularity,
+          capRadiusNm: r.cap?.baseRadiusNm ?? null, contactAngleDeg: r.cap?.contactAngleDeg ?? null, sphereDiameterNm: r.cap?.volumeEquivalentDiameterNm ?? null,
+          outOfFrame: r.outOfFrame, markerBits: bits, phenotype: r.phenotype,
+          // JSON has no NaN: a vesicle outside a frame has null values there
+          markers: calls.map((c) => ({ intensity: Number.isFinite(c.intensity) ? c.intensity : null, snr: Number.isFinite(c.snr) ? c.snr : null, amplitude: Number.isFinite(c.amplitude) ? c.amplitude : null, spotDistancePx: c.spotDistancePx })) as never,
+        };
+      });
+      for (let i = 0; i < rows.length; i += BATCH) await tx.insert(vesicles).values(rows.slice(i, i + BATCH));
+      await tx.update(fields).set({ status: 'linked', failureReason: null, progress: { stage: 'done', fraction: 1 }, version: sql`${fields.version} + 1`, updatedAt: sql`now()` }).where(eq(fields.id, fieldId));
+    });
+    return { vesicles: result.records.length, phenotypes: result.summary.phenotypeCounts };
+  } catch (e) {
+    // failing the link keeps the registration: the field stays "registered" with the reason shown
+    const reason = e instanceof PermanentJobError ? e.message : `Linking failed: ${(e as Error).message}`;
+    await db.update(fields).set({ status: 'registered', failureReason: reason, progress: null, version: sql`${fields.version} + 1` }).where(eq(fields.id, fieldId));
+    throw e;
+  }
+}
+
+

@@ -1,0 +1,58 @@
+import type { APIRoute } from 'astro';
+import { asc, eq } from 'drizzle-orm';
+import { handle } from '../../../lib/http/respond';
+import { parseQuery } from '../../../lib/http/parse';
+import { requireUser } from '../../../lib/auth/session';
+import { requireScopeAction } from '../../../lib/auth/scopeAccess';
+import { getDb } from '../../../lib/db/client';
+import { vesicles, linkRuns, registrations } from '../../../lib/db/schema';
+import { vesicleFilter } from '../../../lib/db/queries/vesicles';
+import { listPanel } from '../../../lib/db/queries/studies';
+import { vesicleCsvHeader, vesicleCsvRow } from '../../../lib/analysis/pipeline';
+import { VesicleQuery } from '../../../lib/schemas/vesicles';
+
+const PAGE = 2000;
+
+/**
+ * Per-vesicle CSV of a field or a sample, streamed page by page (keyset on id) so a sample of any
+ * size never sits whole in memory. Same columns as the command line, plus field, sample and transform.
+ */
+export const GET = handle(async (ctx) => {
+  requireUser(ctx.locals);
+  const q = parseQuery(ctx.url, VesicleQuery);
+  const db = await getDb();
+  const { studyId, sampleCode } = await requireScopeAction(db, ctx.locals, q, 'study.read', 'export vesicle tables');
+  const markers = (await listPanel(db, studyId)).map((p) => p.marker);
+  const where = vesicleFilter(q);
+  const enc = new TextEncoder();
+  let lastId = 0;
+  const stream = new ReadableStream<Uint8Array>({
+    start(c) {
+      c.enqueue(enc.encode(`# Research use only. Not for diagnosis or treatment decisions.\n${vesicleCsvHeader(markers, ['field_id', 'sample_code', 'transform_version'])}\n`));
+    },
+    async pull(c) {
+      const { gt, and } = await import('drizzle-orm');
+      const rows = await db
+        .select({ v: vesicles, regVersion: registrations.version })
+        .from(vesicles)
+        .innerJoin(linkRuns, eq(linkRuns.id, vesicles.linkRunId))
+        .leftJoin(registrations, eq(registrations.id, linkRuns.registrationId))
+        .where(and(where, gt(vesicles.id, lastId)))
+        .orderBy(asc(vesicles.id))
+        .limit(PAGE);
+      if (!rows.length) return c.close();
+      lastId = rows[rows.length - 1].v.id;
+      const text = rows.map(({ v, regVersion }) => vesicleCsvRow({
+        index: v.index, xAfmPx: v.xAfmPx, yAfmPx: v.yAfmPx, xFlPx: v.xFlPx ?? NaN, yFlPx: v.yFlPx ?? NaN, heightNm: v.heightNm, diameterNm: v.diameterNm,
+        volumeNm3: v.volumeNm3, areaNm2: v.areaNm2, circularity: v.circularity, meanHeightNm: v.meanHeightNm, cap: null, outOfFrame: v.outOfFrame, phenotype: v.phenotype,
+        markers: Object.fromEntries(markers.map((m, i) => [m, {
+          intensityCounts: v.markers[i]?.intensity ?? null, intensitySnr: v.markers[i]?.snr ?? null, amplitudeCounts: v.markers[i]?.amplitude ?? null,
+          spotDistancePx: v.markers[i]?.spotDistancePx ?? null, positive: v.markers[i]?.intensity == null ? null : (v.markerBits & (1 << i)) !== 0,
+        }])),
+      }, markers, [v.fieldId, sampleCode, String(regVersion ?? '')])).join('\n');
+      c.enqueue(enc.encode(text + '\n'));
+    },
+  });
+  const name = `vesicles-${sampleCode}${q.fieldId ? '-field' : ''}.csv`.replace(/[^A-Za-z0-9._-]/g, '_');
+  return new Response(stream, { headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${name}"`, 'cache-control': 'no-store' } });
+}) satisfies APIRoute;

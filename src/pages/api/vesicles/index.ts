@@ -1,0 +1,19 @@
+import type { APIRoute } from 'astro';
+import { handle } from '../../../lib/http/respond';
+import { parseQuery } from '../../../lib/http/parse';
+import { requireUser } from '../../../lib/auth/session';
+import { requireScopeAction } from '../../../lib/auth/scopeAccess';
+import { getDb } from '../../../lib/db/client';
+import { pageVesicles } from '../../../lib/db/queries/vesicles';
+import { listPanel } from '../../../lib/db/queries/studies';
+import { VesicleQuery } from '../../../lib/schemas/vesicles';
+
+/** One page of the vesicle table of a field or a sample (current linking), sorted and filtered on the server. */
+export const GET = handle(async (ctx) => {
+  requireUser(ctx.locals);
+  const q = parseQuery(ctx.url, VesicleQuery);
+  const db = await getDb();
+  const { studyId } = await requireScopeAction(db, ctx.locals, q, 'study.read', 'see vesicle tables');
+  const [page, panel] = await Promise.all([pageVesicles(db, q), listPanel(db, studyId)]);
+  return Response.json({ ...page, markers: panel.map((p) => p.marker) });
+}) satisfies APIRoute;

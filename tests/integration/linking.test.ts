@@ -1,0 +1,117 @@
+/**
+ * Linking through the job worker on a demo field whose truth is known: marker calls against the
+ * generator's truth, idempotent re-runs, streamed CSV, and approval with optimistic concurrency.
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { eq, count } from 'drizzle-orm';
+import { signedIn, type AppClient } from '../support/client';
+import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { demoField } from '../support/demoField';
+import { makeDemoPair } from '../../fixtures/demoScene';
+import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
+import { applyAffine } from '../../src/lib/analysis/geometry';
+import { createDb, type Db } from '../../src/lib/db/client';
+import { vesicles, linkRuns } from '../../src/lib/db/schema';
+
+let analyst: AppClient;
+let admin: AppClient;
+let db: Db;
+let fieldId: string;
+const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-ISO')!;
+const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
+
+async function waitFor(status: string, timeoutMs = 90_000) {
+  const until = Date.now() + timeoutMs;
+  while (Date.now() < until) {
+    const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    if (f.status === status && (f.progress?.fraction ?? 1) >= 1) return f;
+    if (f.failureReason) throw new Error(f.failureReason);
+    await new Promise((r) => setTimeout(r, 500));
+  }
+  throw new Error(`field did not reach ${status}`);
+}
+
+beforeAll(async () => {
+  analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+  admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+  db = createDb(process.env.DATABASE_URL!, 2);
+  fieldId = await demoField(spec.code);
+  const beads = truth.truth.filter((t) => t.kind === 'bead');
+  const pairs = beads.map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
+  const versions = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;
+  const save = await analyst.json(`/api/fields/${fieldId}/registration`, 'POST', { basedOnVersion: versions[0]?.version ?? 0, pairs });
+  expect(save.status).toBe(201);
+});
+afterAll(async () => { await db.$client.end(); });
+
+describe('linking a field', () => {
+  it('links every vesicle with calls that match the truth, and a re-run leaves the same rows', async () => {
+    expect((await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status).toBe(202);
+    await waitFor('linked');
+    const page = await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&pageSize=500`)).json();
+    const nbTrueVesicles = truth.truth.filter((t) => t.kind === 'vesicle').length;
+    expect(page.total).toBeGreaterThanOrEqual(Math.floor(0.95 * nbTrueVesicles));
+    expect(page.total).toBeLessThanOrEqual(nbTrueVesicles);
+    expect(page.markers).toEqual(['CD9', 'CD63', 'CD81']);
+
+    // match each row to the nearest true vesicle and compare calls (generator positives carry ≥ 350 photons over 100/px)
+    let right = 0;
+    let total = 0;
+    for (const r of page.rows) {
+      const t = truth.truth.map((tt, i) => ({ i, d: Math.hypot(tt.xPx - r.xAfmPx, tt.yPx - r.yAfmPx) })).sort((a, b) => a.d - b.d)[0];
+      expect(t.d).toBeLessThan(1);
+      for (let m = 0; m < 3; m++) {
+        if (r.outOfFrame) continue;
+        total++;
+        if (r.phenotype.split(' ')[m]?.endsWith('+') === truth.calls[t.i][m]) right++;
+      }
+    }
+    expect(right / total).toBeGreaterThanOrEqual(0.95);
+
+    const rowsBefore = (await db.select({ n: count() }).from(vesicles).where(eq(vesicles.fieldId, fieldId)))[0].n;
+    expect((await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status).toBe(202);
+    await new Promise((r) => setTimeout(r, 1000));
+    await waitFor('linked');
+    const rowsAfter = (await db.select({ n: count() }).from(vesicles).where(eq(vesicles.fieldId, fieldId)))[0].n;
+    expect(rowsAfter).toBe(rowsBefore);
+    expect((await db.select({ n: count() }).from(linkRuns).where(eq(linkRuns.fieldId, fieldId)))[0].n).toBe(1);
+  });
+
+  it('pages, sorts and filters on the server', async () => {
+    const all = await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&sort=heightNm&dir=desc&pageSize=10`)).json();
+    expect(all.rows).toHaveLength(10);
+    for (let i = 1; i < 10; i++) expect(all.rows[i - 1].heightNm).toBeGreaterThanOrEqual(all.rows[i].heightNm);
+    const tall = await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&minHeightNm=20&pageSize=500`)).json();
+    expect(tall.rows.every((r: { heightNm: number }) => r.heightNm >= 20)).toBe(true);
+    expect(tall.total).toBeLessThan(all.total);
+    const bad = await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&sort=password`);
+    expect(bad.status).toBe(400);
+  });
+
+  it('exports the per-vesicle CSV with unit-suffixed columns and the identifiers', async () => {
+    const res = await analyst.fetch(`/api/vesicles/export.csv?fieldId=${fieldId}`);
+    expect(res.headers.get('content-type')).toContain('text/csv');
+    const lines = (await res.text()).trim().split('\n');
+    expect(lines[0]).toMatch(/^# Research use only/);
+    const header = lines[1].split(',');
+    for (const c of ['x_afm_px', 'y_afm_px', 'height_nm', 'diameter_nm', 'volume_nm3', 'CD9_intensity', 'CD9', 'CD63', 'CD81', 'field_id', 'sample_code', 'transform_version']) expect(header).toContain(c);
+    const total = (await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}`)).json()).total;
+    expect(lines.length - 2).toBe(total);
+    const first = lines[2].split(',');
+    expect(first[header.indexOf('field_id')]).toBe(fieldId);
+    expect(['0', '1', '']).toContain(first[header.indexOf('CD9')]);
+  });
+
+  it('approval: two reviewers at once, exactly one succeeds; the other gets 409', async () => {
+    const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    const [a, b] = await Promise.all([
+      analyst.json(`/api/fields/${fieldId}/review`, 'POST', { decision: 'approved', comment: 'clean field', expectedVersion: f.version }),
+      admin.json(`/api/fields/${fieldId}/review`, 'POST', { decision: 'approved', comment: '', expectedVersion: f.version }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const after = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    expect(after.status).toBe('approved');
+    const sendBackNoComment = await analyst.json(`/api/fields/${fieldId}/review`, 'POST', { decision: 'sent_back', expectedVersion: after.version });
+    expect(sendBackNoComment.status).toBe(400);
+  });
+});
