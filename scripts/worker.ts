@@ -6,6 +6,12 @@ import { getBoss } from '../src/lib/jobs/boss';
 import { registerHandlers } from '../src/lib/jobs/handlers';
 import { config } from '../src/lib/config';
 
+// A database restart can reject a queue call nobody awaits (pg-boss bookkeeping): log it and keep
+// working; pg-boss reconnects and retries the job when its lease expires.
+process.on('unhandledRejection', (reason) => {
+  console.error('[worker] unhandled rejection (continuing):', reason instanceof Error ? reason.message : reason);
+});
+
 async function main() {
   const boss = await getBoss(config().DATABASE_URL);
   await registerHandlers(boss);

@@ -75,6 +75,8 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
 
     await progress('saving', 0.97);
     await db.transaction(async (tx) => {
+      // one writer per field at a time (a retried job may overlap its first run)
+      await tx.execute(sql`select id from fields where id = ${fieldId} for update`);
       await tx.delete(tileSets).where(eq(tileSets.fieldId, fieldId));
       for (const l of layers) {
         await tx.insert(tileSets).values({ fieldId, layer: l.layer, prefix: l.prefix, widthPx: l.width, heightPx: l.height, tileSize: TILE_SIZE, overlap: TILE_OVERLAP, format: 'png', display: l.display });

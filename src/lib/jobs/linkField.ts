@@ -63,6 +63,8 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       markers,
     };
     await db.transaction(async (tx) => {
+      // one writer per field at a time: a job retried while its first run still finishes waits here
+      await tx.execute(sql`select id from fields where id = ${fieldId} for update`);
       const frozen = (await tx.select({ ids: releases.linkRunIds }).from(releases)).flatMap((r) => r.ids);
       const old = await tx.select({ id: linkRuns.id }).from(linkRuns).where(eq(linkRuns.fieldId, fieldId));
       const deletable = old.map((o) => o.id).filter((id) => !frozen.includes(id));

@@ -1,3 +1,4 @@
+import './zodConfig';
 /** Request and reply shapes for uploads and fields, shared by the upload island and the routes. */
 import { z } from 'zod';
 

@@ -1,3 +1,4 @@
+import './zodConfig';
 import { z } from 'zod';
 import { MIN_PASSWORD_LENGTH_CLIENT } from './limits';
 

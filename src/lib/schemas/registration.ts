@@ -1,3 +1,4 @@
+import './zodConfig';
 import { z } from 'zod';
 
 const Pt = z.object({ x: z.number().finite().min(-1e6).max(1e6), y: z.number().finite().min(-1e6).max(1e6) });
