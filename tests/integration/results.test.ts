@@ -216,12 +216,12 @@ describe('released results', () => {
 
   it('two simultaneous releases: exactly one gets the next version, the other 409', async () => {
     const [a, b] = await Promise.all([
-      clients.analyst.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' }),
-      clients.biologist.fetch(`/api/samples/${sampleIds.s1}/release`, { method: 'POST' }),
+      clients.analyst.json(`/api/samples/${sampleIds.s1}/release`, 'POST', { expectedVersion: 2 }),
+      clients.biologist.json(`/api/samples/${sampleIds.s1}/release`, 'POST', { expectedVersion: 2 }),
     ]);
     expect([a.status, b.status].sort()).toEqual([201, 409]);
     const loser = a.status === 409 ? a : b;
-    expect((await loser.json()).message).toContain('at the same moment');
+    expect((await loser.json()).message).toContain('in the meantime');
     expect((await q<{ version: number }>(`select version from releases where sample_id = $1 order by version`, [sampleIds.s1])).map((r) => r.version)).toEqual([1, 2, 3]);
   });
 });

@@ -99,7 +99,7 @@ export type ReleaseOutcome =
  * every field is approved and has a current link run. Two simultaneous calls race on the unique
  * (sample_id, version): the loser gets `version_taken` instead of a duplicate release.
  */
-export async function createRelease(db: Db, sampleId: string, releasedBy: string): Promise<ReleaseOutcome> {
+export async function createRelease(db: Db, sampleId: string, releasedBy: string, expectedVersion?: number): Promise<ReleaseOutcome> {
   const [state] = await rows<{ total: number; notApproved: number; withoutRun: number }>(
     db,
     `select count(*)::int as total,
@@ -113,13 +113,17 @@ export async function createRelease(db: Db, sampleId: string, releasedBy: string
   if (state.withoutRun > 0) return { ok: false, reason: 'no_link_runs', fieldsWithout: state.withoutRun };
   const linkRunIds = await getCurrentLinkRunIds(db, sampleId);
   try {
+    // With expectedVersion (the latest release the person saw), the insert happens only if nobody
+    // released since: optimistic concurrency, settled by the unique (sample, version) index on a race.
     const [row] = await rows<{ id: string; version: number; releasedAt: Date }>(
       db,
       `insert into releases (sample_id, version, link_run_ids, released_by)
        select $1, coalesce(max(version), 0) + 1, $2::jsonb, $3 from releases where sample_id = $1
+       having $4::int is null or coalesce(max(version), 0) = $4::int
        returning id, version, released_at as "releasedAt"`,
-      [sampleId, JSON.stringify(linkRunIds), releasedBy],
+      [sampleId, JSON.stringify(linkRunIds), releasedBy, expectedVersion ?? null],
     );
+    if (!row) return { ok: false, reason: 'version_taken' };
     return { ok: true, release: { id: row.id, version: row.version, releasedAt: row.releasedAt.toISOString(), linkRunIds } };
   } catch (err) {
     if ((err as { code?: string }).code === '23505') return { ok: false, reason: 'version_taken' };
