@@ -11,6 +11,7 @@ import type { Storage } from '../storage/client';
 import { getBytes } from '../storage/objects';
 import { decodeInWorker } from '../imaging';
 import { analyzeField } from '../analysis/pipeline';
+import { summariseLinkRun } from '../db/queries/linkRunSummaries';
 import { setFieldProgress } from './progress';
 import { controlThresholds } from './controlThresholds';
 import { PermanentJobError, type IngestDeps } from './ingestField';
@@ -89,6 +90,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
         };
       });
       for (let i = 0; i < rows.length; i += BATCH) await tx.insert(vesicles).values(rows.slice(i, i + BATCH));
+      await summariseLinkRun(tx, run.id);
       await tx.update(fields).set({ status: 'linked', failureReason: null, progress: { stage: 'done', fraction: 1 }, version: sql`${fields.version} + 1`, updatedAt: sql`now()` }).where(eq(fields.id, fieldId));
     });
     return { vesicles: result.records.length, phenotypes: result.summary.phenotypeCounts };

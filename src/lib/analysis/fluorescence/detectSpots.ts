@@ -44,6 +44,9 @@ export interface DetectSpotsOptions {
   /**
    * Solver of the 'gaussian' refinement. 'lean' is {@link fitSpotGaussian}; 'ml-levenberg-marquardt' calls that
    * package per spot. Same model, bounds and plausibility checks; kept to cross-check the lean solver.
+   * Why the lean solver earns its place (npm run bench, docs/benchmarks.md, standard field, ~1900 spots per 2048²
+   * channel): detection of three channels takes 0.83–1.08 s with it against 2.2–3.1 s with the package (median of 3 runs × 5),
+   * and the two agree to 4.5·10⁻⁴ px and 0.06 % of the integrated counts on 99 % of the 5741 spots.
    * @default 'lean'
    */
   solver?: 'lean' | 'ml-levenberg-marquardt';

@@ -1,8 +1,9 @@
 /**
  * Released results: releases of a sample, and the per-sample and per-study aggregates shown to
- * collaborators. Every number is computed by PostgreSQL (aggregates over the vesicle rows of the
- * selected link runs, served by `vesicles_link_run_results_index`); vesicle rows reach Node only
- * in the streamed per-vesicle export and as a bounded, thinned sample for the rank-sum test.
+ * collaborators. Every number is computed by PostgreSQL: counts and histograms are sums over the
+ * per-link-run summaries (linkRunSummaries.ts), quartiles aggregate the sample's vesicle rows
+ * (served by `vesicles_link_run_results_index`). Vesicle rows reach Node only in the streamed
+ * per-vesicle export and, for groups of at most {@link MAX_RANK_SAMPLE} vesicles, for the rank-sum test.
  */
 import type { Db } from '../client';
 import type { SessionUser } from '../../auth/permissions';
@@ -13,11 +14,13 @@ import type {
   SampleMarkerRow, SampleResults, SizeComparison, StudyComparison,
 } from '../../reporting/types';
 import { benjaminiHochberg, compareProportions, mannWhitneyU } from '../../analysis/stats';
+import { DIAMETER_BINS, HEIGHT_BINS, SIZE_BINS_PER_NM, mannWhitneyUBinned, type BinnedPair } from './linkRunSummaries';
 
-/** Histogram ranges: fixed so that samples and releases can be compared bin by bin. */
-export const DIAMETER_BINS = { lowNm: 0, highNm: 500, bins: 50 } as const;
-export const HEIGHT_BINS = { lowNm: 0, highNm: 100, bins: 50 } as const;
-/** Most vesicles per group entering the Mann–Whitney test (keeps the transfer and the test bounded). */
+export { DIAMETER_BINS, HEIGHT_BINS };
+/**
+ * Groups up to this many vesicles enter the Mann–Whitney test with their exact values (read from the
+ * vesicle rows); larger groups use every vesicle's binned value (SIZE_BINS_PER_NM) from the summaries.
+ */
 export const MAX_RANK_SAMPLE = 5000;
 
 type Panel = { channelIndex: number; marker: string }[];
@@ -26,14 +29,16 @@ async function rows<T>(db: Db, text: string, params: unknown[] = []): Promise<T[
   return (await db.$client.query(text, params)).rows as T[];
 }
 
-/** `count(*) filter (...)` per panel channel; channel indexes are integers from the DB, never user text. */
-function markerCountColumns(panel: Panel, alias = ''): string {
+/** Bit of a panel channel in `marker_bits`; channel indexes are integers from the DB, never user text. */
+function channelBit(channelIndex: number): number {
+  if (!Number.isInteger(channelIndex) || channelIndex < 0 || channelIndex > 30) throw new RangeError(`channel index ${channelIndex} out of 0…30`);
+  return 2 ** channelIndex;
+}
+
+/** Marker-positive counts per panel channel, summed over link_run_phenotypes rows aliased `alias`. */
+function markerSumColumns(panel: Panel, alias: string): string {
   return panel
-    .map((c) => {
-      const bit = 2 ** c.channelIndex;
-      if (!Number.isInteger(bit) || c.channelIndex < 0 || c.channelIndex > 30) throw new RangeError(`channel index ${c.channelIndex} out of 0…30`);
-      return `count(*) filter (where ${alias}marker_bits & ${bit} <> 0)::int as p${c.channelIndex}`;
-    })
+    .map((c) => `coalesce(sum(${alias}.n) filter (where ${alias}.marker_bits & ${channelBit(c.channelIndex)} <> 0), 0)::int as p${c.channelIndex}`)
     .join(', ');
 }
 
@@ -153,30 +158,26 @@ export async function getSampleResults(
 ): Promise<SampleResults> {
   const panel = await getPanel(db, sample.studyId);
   const ids = selection.linkRunIds;
-  const markerCols = markerCountColumns(panel);
   const D = DIAMETER_BINS;
   const H = HEIGHT_BINS;
-  const [[totals], phen, hist, fieldRows, [fa]] = await Promise.all([
-    rows<Record<string, number | number[] | null>>(
+  const [[quartiles], phen, hist, fieldRows, [fa]] = await Promise.all([
+    // quartiles need the values themselves; everything else comes from the link runs' summaries
+    rows<{ dq: number[] | null; hq: number[] | null }>(
       db,
-      `select count(*)::int as n${markerCols ? ', ' + markerCols : ''},
-              percentile_cont(array[0.25, 0.5, 0.75]) within group (order by diameter_nm) as dq,
+      `select percentile_cont(array[0.25, 0.5, 0.75]) within group (order by diameter_nm) as dq,
               percentile_cont(array[0.25, 0.5, 0.75]) within group (order by height_nm) as hq
          from vesicles where link_run_id = any($1::uuid[])`,
       [ids],
     ),
     rows<{ bits: number; n: number }>(
       db,
-      `select marker_bits as bits, count(*)::int as n from vesicles where link_run_id = any($1::uuid[]) group by 1 order by 2 desc, 1`,
+      `select marker_bits as bits, sum(n)::int as n from link_run_phenotypes where link_run_id = any($1::uuid[]) group by 1 order by 2 desc, 1`,
       [ids],
     ),
-    rows<{ m: 'd' | 'h'; bits: number; b: number; n: number }>(
+    rows<{ m: 'diameter_nm' | 'height_nm'; bits: number; b: number; n: number }>(
       db,
-      `select 'd' as m, marker_bits as bits, width_bucket(diameter_nm, ${D.lowNm}, ${D.highNm}, ${D.bins}) as b, count(*)::int as n
-         from vesicles where link_run_id = any($1::uuid[]) group by 2, 3
-       union all
-       select 'h', marker_bits, width_bucket(height_nm, ${H.lowNm}, ${H.highNm}, ${H.bins}), count(*)::int
-         from vesicles where link_run_id = any($1::uuid[]) group by 2, 3`,
+      `select measure as m, marker_bits as bits, bucket as b, sum(n)::int as n
+         from link_run_histograms where link_run_id = any($1::uuid[]) group by 1, 2, 3`,
       [ids],
     ),
     rows<Record<string, unknown>>(
@@ -190,8 +191,9 @@ export async function getSampleResults(
             where field_id = f.id order by version desc limit 1
          ) r on true
          left join (
-           select field_id, count(*)::int as n${markerCols ? ', ' + markerCols : ''}
-             from vesicles where link_run_id = any($2::uuid[]) group by field_id
+           select lr.field_id, sum(p.n)::int as n${panel.length ? ', ' + markerSumColumns(panel, 'p') : ''}
+             from link_runs lr join link_run_phenotypes p on p.link_run_id = lr.id
+            where lr.id = any($2::uuid[]) group by lr.field_id
          ) v on v.field_id = f.id
         where f.sample_id = $1
           -- only fields in the selection: a collaborator must not learn of fields added after the release
@@ -202,12 +204,12 @@ export async function getSampleResults(
     rows<{ n: number }>(db, `select count(distinct field_id)::int as n from link_runs where id = any($1::uuid[])`, [ids]),
   ]);
 
-  const n = totals.n as number;
+  const n = phen.reduce((t, p) => t + p.n, 0);
   const markerNames = panel.map((c) => c.marker);
   const markers: MarkerFraction[] = panel.map((c) => ({
     channelIndex: c.channelIndex,
     marker: c.marker,
-    ...estimateProportion(totals[`p${c.channelIndex}`] as number, n),
+    ...estimateProportion(phen.reduce((t, p) => t + (p.bits & channelBit(c.channelIndex) ? p.n : 0), 0), n),
   }));
   const phenotypes: PhenotypeCount[] = phen.map((p) => ({ bits: p.bits, label: phenotypeLabel(p.bits, markerNames), ...estimateProportion(p.n, n) }));
 
@@ -216,7 +218,7 @@ export async function getSampleResults(
   const diameterBy: Record<string, ReturnType<typeof emptyHistogram>> = {};
   const heightBy: Record<string, ReturnType<typeof emptyHistogram>> = {};
   for (const r of hist) {
-    const [overall, by, spec] = r.m === 'd' ? [diameter, diameterBy, D] : [height, heightBy, H];
+    const [overall, by, spec] = r.m === 'diameter_nm' ? [diameter, diameterBy, D] : [height, heightBy, H];
     addToHistogram(overall, r.b, r.n);
     addToHistogram((by[r.bits] ??= emptyHistogram(spec)), r.b, r.n);
   }
@@ -246,8 +248,8 @@ export async function getSampleResults(
     vesicles: n,
     markers,
     phenotypes,
-    diameter: { ...quart(totals.dq), histogram: diameter, byPhenotype: diameterBy },
-    height: { ...quart(totals.hq), histogram: height, byPhenotype: heightBy },
+    diameter: { ...quart(quartiles.dq), histogram: diameter, byPhenotype: diameterBy },
+    height: { ...quart(quartiles.hq), histogram: height, byPhenotype: heightBy },
     fields,
   };
 }
@@ -274,21 +276,34 @@ function median(sorted: number[]): number | null {
   return sorted.length % 2 ? sorted[m] : (sorted[m - 1] + sorted[m]) / 2;
 }
 
-/**
- * Values of one group for the rank-sum test. At most about {@link MAX_RANK_SAMPLE} rows come back:
- * rows are thinned by a hash of their own measurements, so the same data always give the same
- * sample (and p-value), with no ordering of the whole group.
- */
-async function groupSizes(db: Db, studyId: string, source: ResultSource, group: string, total: number) {
-  const stride = Math.max(1, Math.ceil(total / MAX_RANK_SAMPLE));
+/** Every vesicle's diameter and height of a small group (callers check the group has ≤ MAX_RANK_SAMPLE). */
+async function groupSizes(db: Db, studyId: string, source: ResultSource, group: string) {
   return rows<{ d: number; h: number }>(
     db,
     `with sel as (${selectionCte(source)})
      select v.diameter_nm as d, v.height_nm as h
        from sel join vesicles v on v.link_run_id = sel.link_run_id
-      where sel.group_label = $2 and (hashfloat4(v.diameter_nm) # hashfloat4(v.height_nm)) % $3 = 0`,
-    [studyId, group, stride],
+      where sel.group_label = $2`,
+    [studyId, group],
   );
+}
+
+/** Fine size bins of both groups from the summaries, per measure, sorted by value (see SIZE_BINS_PER_NM). */
+async function groupSizeBins(db: Db, studyId: string, source: ResultSource, groupA: string, groupB: string) {
+  const r = await rows<{ m: 'diameter_nm' | 'height_nm'; bin: number; a: number; b: number }>(
+    db,
+    `with sel as (${selectionCte(source)})
+     select b.measure as m, b.bin,
+            coalesce(sum(b.n) filter (where sel.group_label = $2), 0)::int as a,
+            coalesce(sum(b.n) filter (where sel.group_label = $3), 0)::int as b
+       from sel join link_run_size_bins b on b.link_run_id = sel.link_run_id
+      where sel.group_label in ($2, $3)
+      group by 1, 2 order by 1, 2`,
+    [studyId, groupA, groupB],
+  );
+  const out: Record<'diameter_nm' | 'height_nm', BinnedPair[]> = { diameter_nm: [], height_nm: [] };
+  for (const x of r) out[x.m].push({ value: x.bin / SIZE_BINS_PER_NM[x.m], countA: x.a, countB: x.b });
+  return out;
 }
 
 /**
@@ -309,9 +324,9 @@ export async function getStudyComparison(
     db,
     `with sel as (${selectionCte(source)}),
           agg as (
-            select runs.link_run_id, count(v.link_run_id)::int as n${panel.length ? ', ' + markerCountColumns(panel, 'v.') : ''}
+            select runs.link_run_id, coalesce(sum(p.n), 0)::int as n${panel.length ? ', ' + markerSumColumns(panel, 'p') : ''}
               from (select distinct link_run_id from sel) runs
-              left join vesicles v on v.link_run_id = runs.link_run_id
+              left join link_run_phenotypes p on p.link_run_id = runs.link_run_id
              group by runs.link_run_id)
      select sel.sample_id as "sampleId", sel.code, sel.group_label as "groupLabel", max(sel.version) as "releaseVersion",
             sum(agg.n)::int as n${panel.map((c) => `, sum(agg.p${c.channelIndex})::int as p${c.channelIndex}`).join('')}
@@ -357,9 +372,24 @@ export async function getStudyComparison(
     const adjusted = benjaminiHochberg(tested.map((r) => r.pValue as number));
     markerComparisons = raw.map((r) => ({ ...r, pAdjusted: r.pValue === null ? null : adjusted[tested.indexOf(r)] }));
 
+    if (a.total > MAX_RANK_SAMPLE || b.total > MAX_RANK_SAMPLE) {
+      // every vesicle, binned: U is exact for the binned values (ties count ½, tie-corrected variance)
+      const bins = await groupSizeBins(db, study.id, source, groupA, groupB);
+      sizeComparisons = (['diameter_nm', 'height_nm'] as const).map((measure) => {
+        const mw = a.total && b.total ? mannWhitneyUBinned(bins[measure]) : null;
+        const med = (key: 'countA' | 'countB', total: number) => (total ? mannWhitneyUBinned(bins[measure].map((x) => ({ ...x, countA: x[key], countB: 1 }))) : null);
+        return {
+          measure, nA: a.total, nB: b.total, usedA: a.total, usedB: b.total,
+          medianA: mw?.medianA ?? med('countA', a.total)?.medianA ?? null,
+          medianB: mw?.medianB ?? med('countB', b.total)?.medianA ?? null,
+          uStatistic: mw?.uStatistic ?? null, pValue: mw?.pValue ?? null, method: mw?.method ?? null,
+        };
+      });
+      return { study, source, panel, groups, samples, groupA, groupB, markerComparisons, sizeComparisons };
+    }
     const [va, vb] = await Promise.all([
-      a.total ? groupSizes(db, study.id, source, groupA, a.total) : Promise.resolve([]),
-      b.total ? groupSizes(db, study.id, source, groupB, b.total) : Promise.resolve([]),
+      a.total ? groupSizes(db, study.id, source, groupA) : Promise.resolve([]),
+      b.total ? groupSizes(db, study.id, source, groupB) : Promise.resolve([]),
     ]);
     sizeComparisons = (['diameter_nm', 'height_nm'] as const).map((measure) => {
       const key = measure === 'diameter_nm' ? 'd' : 'h';

@@ -1,10 +1,11 @@
-import { pgTable, pgEnum, uuid, text, timestamp, integer, real, jsonb, bigserial, boolean, index, unique } from 'drizzle-orm/pg-core';
+import { pgTable, pgEnum, uuid, text, timestamp, integer, real, jsonb, bigserial, boolean, index, unique, primaryKey } from 'drizzle-orm/pg-core';
 import { users } from './users';
 import { fields } from './fields';
 import { samples } from './studies';
 
 export const transformModelEnum = pgEnum('transform_model', ['affine', 'similarity']);
 export const reviewDecisionEnum = pgEnum('review_decision', ['approved', 'sent_back']);
+export const sizeMeasureEnum = pgEnum('size_measure', ['diameter_nm', 'height_nm']);
 
 /** Every saved registration of a field is kept; the highest version is the accepted one. */
 export const registrations = pgTable(
@@ -82,6 +83,52 @@ export const vesicles = pgTable(
     // phenotype, histograms, group samples) run as index-only scans without touching the wide rows.
     index('vesicles_link_run_results_index').on(t.linkRunId, t.markerBits, t.diameterNm, t.heightNm),
   ],
+);
+
+/*
+ * Summaries of one link run's vesicles, written once in the transaction that writes the vesicles
+ * (src/lib/db/queries/linkRunSummaries.ts). Link runs never change after that, so the sums are exact
+ * and the study-wide dashboard reads a few rows per run instead of every vesicle. The primary keys
+ * start with link_run_id, which also serves as the index on that foreign key.
+ */
+
+/** Vesicle count per phenotype bitmask (marker-positive counts and combinations follow from it). */
+export const linkRunPhenotypes = pgTable(
+  'link_run_phenotypes',
+  {
+    linkRunId: uuid().notNull().references(() => linkRuns.id, { onDelete: 'cascade' }),
+    markerBits: integer().notNull(),
+    n: integer().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.linkRunId, t.markerBits] })],
+);
+
+/** Dashboard histogram counts per phenotype: `bucket` is PostgreSQL's width_bucket over the dashboard's bin edges. */
+export const linkRunHistograms = pgTable(
+  'link_run_histograms',
+  {
+    linkRunId: uuid().notNull().references(() => linkRuns.id, { onDelete: 'cascade' }),
+    measure: sizeMeasureEnum().notNull(),
+    markerBits: integer().notNull(),
+    bucket: integer().notNull(),
+    n: integer().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.linkRunId, t.measure, t.markerBits, t.bucket] })],
+);
+
+/**
+ * Fine size bins for the group rank-sum test: `bin` = round(value × bins per nm), so the bin's
+ * value is bin / (bins per nm) (see SIZE_BINS_PER_NM in linkRunSummaries.ts).
+ */
+export const linkRunSizeBins = pgTable(
+  'link_run_size_bins',
+  {
+    linkRunId: uuid().notNull().references(() => linkRuns.id, { onDelete: 'cascade' }),
+    measure: sizeMeasureEnum().notNull(),
+    bin: integer().notNull(),
+    n: integer().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.linkRunId, t.measure, t.bin] })],
 );
 
 export const fieldReviews = pgTable(
