@@ -10,6 +10,7 @@ import {
   getChecklistInput, getCurrentLinkRunIds, getLatestRelease, getSampleContext, getSampleResults, getStudyComparison,
   listReleasedSamples, pageVesicles,
 } from '../src/lib/db/queries/results';
+import { summariseLinkRun } from '../src/lib/db/queries/linkRunSummaries';
 
 const VESICLES = Number(process.env.VESICLES ?? 1_000_000);
 const SAMPLES = 50;
@@ -70,6 +71,12 @@ async function fill() {
        join runs r on r.k = g.n % nr.c`,
     [study.id, VESICLES],
   );
+  // the linking job summarises each run in the transaction that writes its vesicles; same helper here
+  const tSum = performance.now();
+  const runs = await q(`select lr.id from link_runs lr join fields f on f.id = lr.field_id join samples s on s.id = f.sample_id where s.study_id = $1`, [study.id]);
+  for (const r of runs) await summariseLinkRun(db, r.id);
+  const sumMs = performance.now() - tSum;
+  console.log(`summarised ${runs.length} link runs in ${(sumMs / 1000).toFixed(1)} s (${(sumMs / runs.length).toFixed(1)} ms per run of ~${Math.round(VESICLES / runs.length)} vesicles)`);
   await q(
     `insert into releases (sample_id, version, link_run_ids)
      select f.sample_id, 1, jsonb_agg(lr.id) from link_runs lr join fields f on f.id = lr.field_id join samples s on s.id = f.sample_id
@@ -78,7 +85,7 @@ async function fill() {
   );
   // what autovacuum would do after a bulk load: statistics and the visibility map for index-only scans
   await q(`vacuum analyze vesicles`);
-  await q(`analyze samples, fields, link_runs, releases, registrations`);
+  await q(`analyze samples, fields, link_runs, releases, registrations, link_run_phenotypes, link_run_histograms, link_run_size_bins`);
   console.log(`filled ${VESICLES.toLocaleString('en')} vesicles in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
   return study.id as string;
 }
@@ -111,7 +118,7 @@ async function main() {
   const c0 = await time('study fractions per sample (50 samples)', () => getStudyComparison(db, study, 'released', null, null));
   console.log(`     → ${c0.samples.length} samples, ${c0.samples.reduce((t, s) => t + s.vesicles, 0)} vesicles`);
   const c = await time('study comparison A vs B (+ Mann-Whitney)', () => getStudyComparison(db, study, 'released', 'group A', 'group B'));
-  console.log(`     → CD9 p = ${c.markerComparisons[0].pValue?.toPrecision(3)}, diameter U on ${c.sizeComparisons[0].usedA} + ${c.sizeComparisons[0].usedB} vesicles`);
+  console.log(`     → CD9 p = ${c.markerComparisons[0].pValue?.toPrecision(3)}, diameter U on ${c.sizeComparisons[0].usedA} + ${c.sizeComparisons[0].usedB} vesicles, p = ${c.sizeComparisons[0].pValue?.toPrecision(3)}`);
   await time('study comparison (unreleased preview)', () => getStudyComparison(db, study, 'current', 'group A', 'group B'));
   await time('reporting checklist input', () => getChecklistInput(db, studyId));
   await time('released samples list', () => listReleasedSamples(db, admin));

@@ -35,6 +35,8 @@ describe('sign-in in Chromium', () => {
   it('shows a clear message for a wrong password and stays on the sign-in page', async () => {
     const page = await browser.newPage();
     await page.goto(`${APP_URL}/signin`);
+    // without JavaScript the form must not put the password into the address (a GET)
+    expect(await page.locator('form[aria-label="Sign in"]').getAttribute('method')).toBe('post');
     await page.getByLabel('E-mail').fill(DEMO.analyst);
     await page.getByLabel('Password').fill('not-the-password');
     await page.getByRole('button', { name: 'Sign in' }).click();

@@ -35,7 +35,7 @@ export default function PeopleAdmin() {
 
   return (
     <div className="space-y-6">
-      <form onSubmit={invite} className="card grid gap-3 md:grid-cols-4 items-end" aria-label="Invite a person">
+      <form method="post" onSubmit={invite} className="card grid gap-3 md:grid-cols-4 items-end" aria-label="Invite a person">
         <div><label className="field-label" htmlFor="inv-name">Name</label><input className="input" id="inv-name" name="name" required /></div>
         <div><label className="field-label" htmlFor="inv-email">E-mail</label><input className="input" id="inv-email" name="email" type="email" required /></div>
         <div><label className="field-label" htmlFor="inv-role">Role</label>

@@ -36,7 +36,7 @@ export default function SampleForm({ studyId }: { studyId: string }) {
   );
 
   return (
-    <form onSubmit={handleSubmit(onSubmit)} className="grid gap-3 md:grid-cols-4 items-start" aria-label="Record a sample">
+    <form method="post" onSubmit={handleSubmit(onSubmit)} className="grid gap-3 md:grid-cols-4 items-start" aria-label="Record a sample">
       <div className="md:col-span-1">
         {field('code', 'Sample code (de-identified)', 'e.g. HCP-017')}
         {check.identifying && (

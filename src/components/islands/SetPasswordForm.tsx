@@ -28,7 +28,7 @@ export default function SetPasswordForm({ token }: { token: string }) {
     );
   }
   return (
-    <form onSubmit={onSubmit} className="space-y-4" aria-label="Choose a password">
+    <form method="post" onSubmit={onSubmit} className="space-y-4" aria-label="Choose a password">
       <div>
         <label className="field-label" htmlFor="password">New password (at least {MIN_PASSWORD_LENGTH_CLIENT} characters)</label>
         <input className="input" id="password" name="password" type="password" autoComplete="new-password" required />

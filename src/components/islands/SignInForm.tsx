@@ -38,7 +38,7 @@ export default function SignInForm({ next }: { next: string }) {
   }
 
   return (
-    <form onSubmit={onSubmit} className="space-y-4" aria-label="Sign in">
+    <form method="post" onSubmit={onSubmit} className="space-y-4" aria-label="Sign in">
       <div>
         <label className="field-label" htmlFor="email">E-mail</label>
         <input className="input" id="email" name="email" type="email" autoComplete="username" required />

@@ -140,7 +140,7 @@ export default function UploadFields({ studies }: { studies: StudyOption[] }) {
   if (!studies.length) return <p className="card">You are not a biologist in any study yet. An administrator adds you to a study.</p>;
 
   return (
-    <form onSubmit={handleSubmit(onSubmit)} className="space-y-6" aria-label="Upload fields">
+    <form method="post" onSubmit={handleSubmit(onSubmit)} className="space-y-6" aria-label="Upload fields">
       <section className="card grid gap-4 md:grid-cols-3">
         <div className="md:col-span-3">
           <label className="field-label" htmlFor="study">Study</label>

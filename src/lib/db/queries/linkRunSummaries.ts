@@ -76,11 +76,17 @@ export interface MannWhitneyUBinnedResult {
   readonly z: number;
   readonly nA: number;
   readonly nB: number;
-  readonly medianA: number | null;
-  readonly medianB: number | null;
 }
 
-function binnedMedian(bins: readonly BinnedPair[], key: 'countA' | 'countB', total: number): number | null {
+/**
+ * Median of one group's binned values (the mean of the two middle ones for an even count).
+ *
+ * @param bins - bins sorted by ascending value
+ * @param key - which group
+ * @returns the median in the bins' unit, or null when the group is empty
+ */
+export function binnedMedian(bins: readonly BinnedPair[], key: 'countA' | 'countB'): number | null {
+  const total = bins.reduce((t, b) => t + b[key], 0);
   if (total === 0) return null;
   const at = (rank: number) => {
     let seen = 0;
@@ -96,11 +102,10 @@ function binnedMedian(bins: readonly BinnedPair[], key: 'countA' | 'countB', tot
 /**
  * Two-sided Mann–Whitney U test on binned values, with mid-ranks for each bin (ties count ½) and
  * the tie-corrected variance. It gives exactly what `mannWhitneyU(a, b, { exact: false })` gives on
- * the values replaced by their bin values, in O(bins) instead of sorting every value; medians are
- * those of the binned values.
+ * the values replaced by their bin values, in O(bins) instead of sorting every value.
  *
  * @param bins - bins sorted by ascending value, with the count of each group
- * @returns U for group A, the normal-approximation p-value (continuity-corrected), z and the medians
+ * @returns U for group A, the normal-approximation p-value (continuity-corrected) and z
  * @throws RangeError when a group is empty or bins are not sorted
  * @see H. B. Mann, D. R. Whitney, Ann. Math. Stat. 18(1), 1947; M. Hollander, D. A. Wolfe, Nonparametric Statistical Methods, 1973
  */
@@ -128,8 +133,5 @@ export function mannWhitneyUBinned(bins: readonly BinnedPair[]): MannWhitneyUBin
   const diff = u - mean;
   const z = sd > 0 ? (diff - Math.sign(diff) * 0.5) / sd : 0;
   const pValue = Math.min(1, 2 * Math.min(normalCdf(z), 1 - normalCdf(z)));
-  return {
-    uStatistic: u, pValue, method: 'normal', z, nA, nB,
-    medianA: binnedMedian(bins, 'countA', nA), medianB: binnedMedian(bins, 'countB', nB),
-  };
+  return { uStatistic: u, pValue, method: 'normal', z, nA, nB };
 }

@@ -14,7 +14,7 @@ import type {
   SampleMarkerRow, SampleResults, SizeComparison, StudyComparison,
 } from '../../reporting/types';
 import { benjaminiHochberg, compareProportions, mannWhitneyU } from '../../analysis/stats';
-import { DIAMETER_BINS, HEIGHT_BINS, SIZE_BINS_PER_NM, mannWhitneyUBinned, type BinnedPair } from './linkRunSummaries';
+import { DIAMETER_BINS, HEIGHT_BINS, SIZE_BINS_PER_NM, binnedMedian, mannWhitneyUBinned, type BinnedPair } from './linkRunSummaries';
 
 export { DIAMETER_BINS, HEIGHT_BINS };
 /**
@@ -377,11 +377,9 @@ export async function getStudyComparison(
       const bins = await groupSizeBins(db, study.id, source, groupA, groupB);
       sizeComparisons = (['diameter_nm', 'height_nm'] as const).map((measure) => {
         const mw = a.total && b.total ? mannWhitneyUBinned(bins[measure]) : null;
-        const med = (key: 'countA' | 'countB', total: number) => (total ? mannWhitneyUBinned(bins[measure].map((x) => ({ ...x, countA: x[key], countB: 1 }))) : null);
         return {
           measure, nA: a.total, nB: b.total, usedA: a.total, usedB: b.total,
-          medianA: mw?.medianA ?? med('countA', a.total)?.medianA ?? null,
-          medianB: mw?.medianB ?? med('countB', b.total)?.medianA ?? null,
+          medianA: binnedMedian(bins[measure], 'countA'), medianB: binnedMedian(bins[measure], 'countB'),
           uStatistic: mw?.uStatistic ?? null, pValue: mw?.pValue ?? null, method: mw?.method ?? null,
         };
       });
