@@ -5,31 +5,16 @@
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { embeddedSettings } from './lib/env';
 import { startServices } from './lib/services';
-import { createDb } from '../src/lib/db/client';
-import { seedDemoFields } from './seedDemoFields';
-import { createStorage } from '../src/lib/storage/client';
-import { getBoss } from '../src/lib/jobs/boss';
-import { QUEUES } from '../src/lib/jobs/queues';
-import { seed, DEMO_USERS, DEMO_PASSWORD } from './seed';
+import { DEMO_USERS, DEMO_PASSWORD } from './seed';
+import { seedAll } from './lib/seedAll';
 
 const log = (m: string) => console.log(`[heightlight] ${m}`);
-
-/** Demo fields: files into the bucket and ingestion jobs into the queue (processed by the worker). */
-async function seedFields(db: ReturnType<typeof createDb>, env: Record<string, string>) {
-  const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
-  const boss = await getBoss(env.DATABASE_URL);
-  const created = await seedDemoFields(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }));
-  if (created.length) log(`queued ${created.length} demo field(s) for processing`);
-}
 
 async function main() {
   const s = embeddedSettings('start');
   Object.assign(process.env, s.env);
   const services = await startServices(s, log);
-  const db = createDb(s.env.DATABASE_URL, 2);
-  await seed(db);
-  await seedFields(db, s.env);
-  await db.$client.end();
+  await seedAll(s.env, log);
   log('demo data seeded');
 
   if (process.env.HEIGHTLIGHT_SKIP_BUILD !== '1') {

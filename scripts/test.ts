@@ -8,12 +8,7 @@ import { rmSync, existsSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { embeddedSettings } from './lib/env';
 import { startServices } from './lib/services';
-import { createDb } from '../src/lib/db/client';
-import { seedDemoFields } from './seedDemoFields';
-import { createStorage } from '../src/lib/storage/client';
-import { getBoss } from '../src/lib/jobs/boss';
-import { QUEUES } from '../src/lib/jobs/queues';
-import { seed } from './seed';
+import { seedAll } from './lib/seedAll';
 
 const log = (m: string) => console.log(`[test] ${m}`);
 
@@ -41,14 +36,6 @@ async function waitForHttp(url: string, timeoutMs: number) {
   throw new Error(`the app did not answer at ${url} within ${timeoutMs / 1000} s`);
 }
 
-/** Demo fields: files into the bucket and ingestion jobs into the queue (processed by the worker). */
-async function seedFields(db: ReturnType<typeof createDb>, env: Record<string, string>) {
-  const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
-  const boss = await getBoss(env.DATABASE_URL);
-  const created = await seedDemoFields(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }));
-  if (created.length) log(`queued ${created.length} demo field(s) for processing`);
-}
-
 async function main() {
   process.env.HEIGHTLIGHT_DATA_DIR ??= resolve('.test-data');
   rmSync(process.env.HEIGHTLIGHT_DATA_DIR, { recursive: true, force: true });
@@ -62,10 +49,7 @@ async function main() {
   try {
     ensureChromium();
     services = await startServices(s, log);
-    const db = createDb(s.env.DATABASE_URL, 2);
-    await seed(db);
-    await seedFields(db, s.env);
-    await db.$client.end();
+    await seedAll(s.env, log);
 
     // Skipping the type check is for quick local iterations only; CI always runs it.
     if (process.env.HEIGHTLIGHT_SKIP_TYPECHECK !== '1' || process.env.CI) {

@@ -1,13 +1,17 @@
 import type { Raster } from '../types';
 
+/** Tap pairs summed per pass over a row; wider kernels take several passes, narrower ones pad with zero weights. */
+const PAIRS = 6;
+
 /**
  * Gaussian blur streamed row by row: calls `emit(y, row)` for y = 0 … height−1 in order, with `row` the blurred
  * row y (float64). Separable, edges replicated, kernel cut at 3σ (99.7 % of the weight) and normalised to sum 1.
  *
- * Only 2·radius + 1 horizontally blurred rows are kept (a ring), and each input row is blurred once, so the working
- * set stays in cache; each pass accumulates a whole row per tap pair in a float64 buffer, which V8 compiles to
- * tight loops. Callers that need neighbouring rows (a Laplacian) can rely on the last three emitted rows staying
- * valid: `row` cycles through three buffers.
+ * Only 2·radius + 1 horizontally blurred rows are kept (a float32 ring), and each input row is blurred once, so the
+ * working set stays in cache. Both passes add mirrored taps before multiplying and sum six tap pairs per pass over
+ * a row ({@link addPairs}), which V8 compiles to one straight loop body with the weights in registers: about 1.6×
+ * faster than a loop over taps per pixel (npm run bench, docs/benchmarks.md). Callers that need neighbouring rows
+ * (a Laplacian) can rely on the last three emitted rows staying valid: `row` cycles through three buffers.
  *
  * @param raster - input image (any unit); not modified
  * @param sigmaPx - Gaussian SD (px), > 0
@@ -19,21 +23,27 @@ export function blurRows(raster: Raster, sigmaPx: number, emit: (y: number, row:
     throw new RangeError(`sigmaPx must be a finite positive number, got ${sigmaPx}`);
   }
   const { width, height, data } = raster;
-  // half kernel: half[0] is the centre tap, half[j] the weight at ±j
+  // half kernel: half[0] is the centre tap, half[j] the weight at ±j; zero from radius + 1 to reach
   const radius = Math.max(1, Math.ceil(3 * sigmaPx));
-  const half = new Float64Array(radius + 1);
+  const nbChunks = Math.ceil(radius / PAIRS);
+  const reach = nbChunks * PAIRS;
+  const half = new Float64Array(reach + 1);
   let sum = 0;
   for (let j = 0; j <= radius; j++) {
     half[j] = Math.exp((-j * j) / (2 * sigmaPx * sigmaPx));
     sum += j === 0 ? half[j] : 2 * half[j];
   }
   for (let j = 0; j <= radius; j++) half[j] /= sum;
+  const c = half[0];
 
   const ringRows = 2 * radius + 1;
-  const ring = new Float64Array(ringRows * width);
-  const padded = new Float64Array(width + 2 * radius);
+  const ring = new Float32Array(ringRows * width);
+  const padded = new Float32Array(width + 2 * reach);
+  const acc = new Float64Array(width);
   const outRows = [new Float64Array(width), new Float64Array(width), new Float64Array(width)];
-  const c = half[0];
+  const lo = new Int32Array(PAIRS);
+  const hi = new Int32Array(PAIRS);
+  const weights = new Float64Array(PAIRS);
   let lastBlurred = -1;
   for (let y = 0; y < height; y++) {
     // horizontal blur of the input rows row y needs, each once
@@ -41,29 +51,49 @@ export function blurRows(raster: Raster, sigmaPx: number, emit: (y: number, row:
     while (lastBlurred < need) {
       const k = ++lastBlurred;
       const src = k * width;
-      for (let x = 0; x < width; x++) padded[x + radius] = data[src + x];
-      for (let x = 0; x < radius; x++) {
-        padded[x] = data[src];
-        padded[radius + width + x] = data[src + width - 1];
+      padded.set(data.subarray(src, src + width), reach);
+      padded.fill(data[src], 0, reach);
+      padded.fill(data[src + width - 1], reach + width);
+      for (let x = 0; x < width; x++) acc[x] = c * padded[x + reach];
+      for (let chunk = 0; chunk < nbChunks; chunk++) {
+        for (let i = 0; i < PAIRS; i++) {
+          const j = chunk * PAIRS + i + 1;
+          weights[i] = half[j];
+          lo[i] = reach - j;
+          hi[i] = reach + j;
+        }
+        addPairs(acc, padded, lo, hi, weights, width);
       }
-      const dst = (k % ringRows) * width;
-      for (let x = 0; x < width; x++) {
-        let acc = c * padded[x + radius];
-        for (let j = 1; j <= radius; j++) acc += half[j] * (padded[x + radius - j] + padded[x + radius + j]);
-        ring[dst + x] = acc;
-      }
+      ring.set(acc, (k % ringRows) * width);
     }
 
-    // vertical blur
+    // vertical blur; taps beyond the radius have weight 0 and read the centre row
     const row = outRows[y % 3];
     const mid = (y % ringRows) * width;
     for (let x = 0; x < width; x++) row[x] = c * ring[mid + x];
-    for (let j = 1; j <= radius; j++) {
-      const w = half[j];
-      const up = (Math.max(0, y - j) % ringRows) * width;
-      const down = (Math.min(height - 1, y + j) % ringRows) * width;
-      for (let x = 0; x < width; x++) row[x] += w * (ring[up + x] + ring[down + x]);
+    for (let chunk = 0; chunk < nbChunks; chunk++) {
+      for (let i = 0; i < PAIRS; i++) {
+        const j = chunk * PAIRS + i + 1;
+        weights[i] = half[j];
+        lo[i] = j > radius ? mid : (Math.max(0, y - j) % ringRows) * width;
+        hi[i] = j > radius ? mid : (Math.min(height - 1, y + j) % ringRows) * width;
+      }
+      addPairs(row, ring, lo, hi, weights, width);
     }
     emit(y, row);
+  }
+}
+
+/** out[x] += Σᵢ weights[i]·(src[lo[i] + x] + src[hi[i] + x]) for x < n, i < 6: the six pairs unrolled. */
+function addPairs(
+  out: Float64Array, src: Float32Array, lo: Int32Array, hi: Int32Array, weights: Float64Array, n: number,
+): void {
+  const [w1, w2, w3, w4, w5, w6] = weights;
+  const [a1, a2, a3, a4, a5, a6] = lo;
+  const [b1, b2, b3, b4, b5, b6] = hi;
+  for (let x = 0; x < n; x++) {
+    out[x] +=
+      w1 * (src[a1 + x] + src[b1 + x]) + w2 * (src[a2 + x] + src[b2 + x]) + w3 * (src[a3 + x] + src[b3 + x]) +
+      w4 * (src[a4 + x] + src[b4 + x]) + w5 * (src[a5 + x] + src[b5 + x]) + w6 * (src[a6 + x] + src[b6 + x]);
   }
 }

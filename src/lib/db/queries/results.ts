@@ -288,22 +288,22 @@ async function groupSizes(db: Db, studyId: string, source: ResultSource, group: 
   );
 }
 
-/** Fine size bins of both groups from the summaries, per measure, sorted by value (see SIZE_BINS_PER_NM). */
-async function groupSizeBins(db: Db, studyId: string, source: ResultSource, groupA: string, groupB: string) {
-  const r = await rows<{ m: 'diameter_nm' | 'height_nm'; bin: number; a: number; b: number }>(
+/** Fine bins of one measure for both groups from the summaries, sorted by value (see SIZE_BINS_PER_NM). */
+async function groupSizeBins(
+  db: Db, studyId: string, source: ResultSource, groupA: string, groupB: string, measure: 'diameter_nm' | 'height_nm',
+): Promise<BinnedPair[]> {
+  const r = await rows<{ bin: number; a: number; b: number }>(
     db,
     `with sel as (${selectionCte(source)})
-     select b.measure as m, b.bin,
+     select b.bin,
             coalesce(sum(b.n) filter (where sel.group_label = $2), 0)::int as a,
             coalesce(sum(b.n) filter (where sel.group_label = $3), 0)::int as b
-       from sel join link_run_size_bins b on b.link_run_id = sel.link_run_id
+       from sel join link_run_size_bins b on b.link_run_id = sel.link_run_id and b.measure = $4
       where sel.group_label in ($2, $3)
-      group by 1, 2 order by 1, 2`,
-    [studyId, groupA, groupB],
+      group by 1 order by 1`,
+    [studyId, groupA, groupB, measure],
   );
-  const out: Record<'diameter_nm' | 'height_nm', BinnedPair[]> = { diameter_nm: [], height_nm: [] };
-  for (const x of r) out[x.m].push({ value: x.bin / SIZE_BINS_PER_NM[x.m], countA: x.a, countB: x.b });
-  return out;
+  return r.map((x) => ({ value: x.bin / SIZE_BINS_PER_NM[measure], countA: x.a, countB: x.b }));
 }
 
 /**
@@ -374,12 +374,15 @@ export async function getStudyComparison(
 
     if (a.total > MAX_RANK_SAMPLE || b.total > MAX_RANK_SAMPLE) {
       // every vesicle, binned: U is exact for the binned values (ties count ½, tie-corrected variance)
-      const bins = await groupSizeBins(db, study.id, source, groupA, groupB);
-      sizeComparisons = (['diameter_nm', 'height_nm'] as const).map((measure) => {
-        const mw = a.total && b.total ? mannWhitneyUBinned(bins[measure]) : null;
+      // one query per measure: they run side by side on two pool connections
+      const measures = ['diameter_nm', 'height_nm'] as const;
+      const binsBy = await Promise.all(measures.map((m) => groupSizeBins(db, study.id, source, groupA, groupB, m)));
+      sizeComparisons = measures.map((measure, i) => {
+        const bins = binsBy[i];
+        const mw = a.total && b.total ? mannWhitneyUBinned(bins) : null;
         return {
           measure, nA: a.total, nB: b.total, usedA: a.total, usedB: b.total,
-          medianA: binnedMedian(bins[measure], 'countA'), medianB: binnedMedian(bins[measure], 'countB'),
+          medianA: binnedMedian(bins, 'countA'), medianB: binnedMedian(bins, 'countB'),
           uStatistic: mw?.uStatistic ?? null, pValue: mw?.pValue ?? null, method: mw?.method ?? null,
         };
       });

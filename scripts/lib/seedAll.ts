@@ -1,0 +1,21 @@
+/** The whole demo seed, as `npm start` and `npm test` both run it: people, study, samples and fields. */
+import { createDb } from '../../src/lib/db/client';
+import { createStorage } from '../../src/lib/storage/client';
+import { getBoss } from '../../src/lib/jobs/boss';
+import { QUEUES } from '../../src/lib/jobs/queues';
+import { seed } from '../seed';
+import { seedDemoFields } from '../seedDemoFields';
+
+export async function seedAll(env: Record<string, string>, log: (m: string) => void) {
+  const db = createDb(env.DATABASE_URL, 2);
+  try {
+    await seed(db);
+    // demo field files go into the bucket; their ingestion is queued for the worker
+    const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
+    const boss = await getBoss(env.DATABASE_URL);
+    const created = await seedDemoFields(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }));
+    if (created.length) log(`queued ${created.length} demo field(s) for processing`);
+  } finally {
+    await db.$client.end();
+  }
+}
