@@ -4,7 +4,7 @@ import { auditLog } from './db/schema';
 export type AuditAction =
   | 'sign_in.succeeded' | 'sign_in.failed' | 'sign_in.blocked'
   | 'user.invited' | 'user.password_set' | 'user.password_reset_requested' | 'user.role_changed' | 'user.deactivated'
-  | 'study.created' | 'membership.changed'
+  | 'study.created' | 'membership.changed' | 'panel.changed'
   | 'sample.created' | 'field.uploaded' | 'field.upload_failed'
   | 'registration.saved' | 'field.approved' | 'field.sent_back' | 'sample.released';
 

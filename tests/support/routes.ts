@@ -64,3 +64,7 @@ ROUTES.push(
   { file: 'vesicles/index.ts', method: 'GET', path: '/api/vesicles?fieldId=:field', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
   { file: 'vesicles/export.csv.ts', method: 'GET', path: '/api/vesicles/export.csv?sampleId=:sample', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
 );
+
+ROUTES.push(
+  { file: 'studies/[id]/panel.ts', method: 'PUT', path: '/api/studies/:study/panel', allowed: ['admin', 'biologist'], studyScoped: true, body: {} },
+);

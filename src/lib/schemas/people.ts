@@ -33,3 +33,13 @@ export const StudyCreateRequest = z.object({
 });
 
 export const MembershipRequest = z.object({ userId: z.uuid(), role: MemberRoleSchema.nullable() });
+
+export const PanelChannel = z.object({
+  marker: z.string().trim().min(1, 'Name the marker').max(40).regex(/^[A-Za-z0-9+._-]+$/, 'Use letters, digits, + . _ - only (it names CSV columns)'),
+  antibodyClone: z.string().trim().max(80).default(''),
+  fluorophore: z.string().trim().max(80).default(''),
+  excitationNm: z.number().min(200).max(1200).nullable().default(null),
+  emissionNm: z.number().min(200).max(1200).nullable().default(null),
+});
+export const PanelRequest = z.object({ channels: z.array(PanelChannel).min(1, 'Give at least one channel').max(16) })
+  .refine((p) => new Set(p.channels.map((c) => c.marker.toLowerCase())).size === p.channels.length, 'Each marker may appear once');

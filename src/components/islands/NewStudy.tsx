@@ -1,0 +1,22 @@
+import { useState, type FormEvent } from 'react';
+
+/** Admin: create a study, then open it to add members and the marker panel. */
+export default function NewStudy() {
+  const [msg, setMsg] = useState<string | null>(null);
+  async function submit(e: FormEvent<HTMLFormElement>) {
+    e.preventDefault();
+    const f = new FormData(e.currentTarget);
+    const res = await fetch('/api/studies', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ name: f.get('name'), description: f.get('description') }) });
+    const body = await res.json();
+    if (res.ok) window.location.href = `/studies/${body.id}`;
+    else setMsg(body.message);
+  }
+  return (
+    <form method="post" onSubmit={submit} className="card grid gap-3 md:grid-cols-[1fr_2fr_auto] items-end" aria-label="New study">
+      <div><label className="field-label" htmlFor="ns-name">Study name</label><input id="ns-name" name="name" className="input" required maxLength={200} /></div>
+      <div><label className="field-label" htmlFor="ns-desc">Description</label><input id="ns-desc" name="description" className="input" maxLength={5000} /></div>
+      <button className="btn" type="submit">Create study</button>
+      {msg && <p className="notice notice-error md:col-span-3">{msg}</p>}
+    </form>
+  );
+}
