@@ -59,6 +59,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     const settings = {
       registrationVersion: reg.version,
       thresholdRule: Object.fromEntries(markers.map((m) => [m, controls[m] ? `control samples: mean + 3 SD of ${controls[m].nbControls} control vesicles` : 'background apertures: mean + 3 SD'])),
+      thresholdMethod: markers.map((m) => `${m}: ${controls[m] ? 'mean + 3 SD of control-sample vesicles' : 'mean + 3 SD of background apertures'}`).join('; '),
       thresholds: Object.fromEntries(markers.map((m) => [m, result.summary.channels[m]?.thresholdCounts ?? null])),
       k: 3,
       markers,

@@ -33,11 +33,20 @@ export function robustSigma(
   if (mask) for (let i = 0; i < mask.length; i++) selected += mask[i] !== 0 ? 1 : 0;
   else selected = values.length;
   const stride = selected > maxSamples ? Math.ceil(selected / maxSamples) : 1;
+  // keep every stride-th selected sample; a countdown instead of a modulo per pixel (same samples, faster)
   let n = 0;
-  let seen = 0;
-  for (let i = 0; i < values.length; i++) {
-    if (mask && mask[i] === 0) continue;
-    if (seen++ % stride === 0) buf[n++] = values[i];
+  let skip = 0;
+  if (mask) {
+    for (let i = 0; i < values.length; i++) {
+      if (mask[i] === 0) continue;
+      if (skip === 0) {
+        buf[n++] = values[i];
+        skip = stride;
+      }
+      skip--;
+    }
+  } else {
+    for (let i = 0; i < values.length; i += stride) buf[n++] = values[i];
   }
   if (n === 0) return { median: Number.NaN, robustSigma: Number.NaN, nbSamples: 0 };
   const median = medianOfScratch(buf, n);
