@@ -7,6 +7,7 @@ import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { readFileSync } from 'node:fs';
 import type { Browser } from 'playwright-core';
 import { createDb, type Db } from '../../src/lib/db/client';
+import { summariseLinkRun } from '../../src/lib/db/queries/linkRunSummaries';
 import { launch, signInAs, screenshot } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
@@ -33,6 +34,7 @@ async function releaseDemoSample(sampleId: string, n: number, cd9Every: number) 
        from generate_series(1, $4::int) i`,
     [lr.id, f.id, sampleId, n, cd9Every],
   );
+  await summariseLinkRun(db, lr.id);
   await q(`insert into releases (sample_id, version, link_run_ids) values ($1, 1, $2::jsonb)`, [sampleId, JSON.stringify([lr.id])]);
 }
 
