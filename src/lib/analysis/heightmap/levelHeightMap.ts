@@ -62,7 +62,7 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
   const previous = new Float32Array(n);
   const scratch = new Float32Array(n);
   const dilationTmp = new Uint8Array(n);
-  const lastRow = new Int32Array(width);
+  const colCount = new Int32Array(width);
   const rowValid = new Uint8Array(height).fill(1);
   const rowBuf = new Float32Array(width); // Float32 like every buffer given to selectKth: one element kind keeps it fast
   let coefficients: Float64Array = new Float64Array(basis.length);
@@ -94,7 +94,7 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
       }
     }
     const first = robustSigma(residual, undefined, scratch, ROBUST_MAX_SAMPLES);
-    dilateAbove(residual, first.median + exclusionK * Math.max(first.robustSigma, MIN_SIGMA_NM), width, height, exclusionDilationPx, excluded, dilationTmp, lastRow);
+    dilateAbove(residual, first.median + exclusionK * Math.max(first.robustSigma, MIN_SIGMA_NM), width, height, exclusionDilationPx, excluded, dilationTmp, colCount);
     let nbStart = 0;
     for (let i = 0; i < n; i++) nbStart += background[i] = 1 - excluded[i];
     if (nbStart < Math.max(3 * basis.length, 16)) background.fill(1);
@@ -132,7 +132,7 @@ export function levelHeightMap(raster: Raster, options: LevelHeightMapOptions = 
     // robust scale of the background, new exclusion mask
     ({ median, robustSigma: sigma } = robustSigma(residual, background, scratch, ROBUST_MAX_SAMPLES));
     const cut = median + exclusionK * Math.max(sigma, MIN_SIGMA_NM);
-    dilateAbove(residual, cut, width, height, exclusionDilationPx, excluded, dilationTmp, lastRow);
+    dilateAbove(residual, cut, width, height, exclusionDilationPx, excluded, dilationTmp, colCount);
     let changes = 0;
     let nbBackground = 0;
     let sumShift2 = 0;
@@ -373,49 +373,49 @@ function medianInPlace(buf: Float32Array, m: number): number {
 }
 
 /**
- * out = (values > cut) dilated by a (2r+1)² square. Separable, and both passes read memory in row
- * order: the vertical pass keeps, per column, the last row where the horizontal result was set.
+ * out = (values > cut) dilated by a (2r+1)² square. Separable, both passes in row order and without
+ * data-dependent branches: a pixel is set when the count of flagged pixels in its window is non-zero,
+ * and the counts slide along the row, then down the columns (one counter per column).
  * Own kernel rather than image-js morphology: it fuses the float threshold with the dilation and
  * reuses buffers, with no image object per levelling pass.
  */
 function dilateAbove(
   values: Float32Array, cut: number, width: number, height: number, r: number,
-  out: Uint8Array, tmp: Uint8Array, lastRow: Int32Array,
+  out: Uint8Array, tmp: Uint8Array, colCount: Int32Array,
 ): void {
-  // horizontal
-  for (let y = 0; y < height; y++) {
-    const row = y * width;
-    let last = -1e9;
-    for (let x = 0; x < width; x++) {
-      if (values[row + x] > cut) last = x;
-      tmp[row + x] = x - last <= r ? 1 : 0;
-    }
-    if (r === 0) continue;
-    last = 1e9;
-    for (let x = width - 1; x >= 0; x--) {
-      if (values[row + x] > cut) last = x;
-      if (last - x <= r) tmp[row + x] = 1;
-    }
-  }
   if (r === 0) {
-    out.set(tmp);
+    for (let i = 0; i < width * height; i++) out[i] = values[i] > cut ? 1 : 0;
     return;
   }
-  // vertical, downwards then upwards
-  lastRow.fill(-1e9);
+  // horizontal: flags[x + r + 1] = (values > cut) for pixel x, zero outside the row
+  const flags = new Uint8Array(width + 2 * r + 1);
   for (let y = 0; y < height; y++) {
     const row = y * width;
+    for (let x = 0; x < width; x++) flags[x + r + 1] = values[row + x] > cut ? 1 : 0;
+    let count = 0;
+    for (let k = 0; k <= 2 * r; k++) count += flags[k];
     for (let x = 0; x < width; x++) {
-      if (tmp[row + x]) lastRow[x] = y;
-      out[row + x] = y - lastRow[x] <= r ? 1 : 0;
+      count += flags[x + 2 * r + 1] - flags[x];
+      tmp[row + x] = count > 0 ? 1 : 0;
     }
   }
-  lastRow.fill(1e9);
-  for (let y = height - 1; y >= 0; y--) {
+  // vertical: colCount[x] = flagged rows within ±r of row y in column x; rows outside the map add zeros
+  const zeros = new Uint8Array(width);
+  colCount.fill(0);
+  for (let y = 0; y < Math.min(r, height); y++) {
     const row = y * width;
+    for (let x = 0; x < width; x++) colCount[x] += tmp[row + x];
+  }
+  for (let y = 0; y < height; y++) {
+    const row = y * width;
+    const enter = y + r < height ? tmp : zeros;
+    const enterAt = y + r < height ? (y + r) * width : 0;
+    const leave = y - r - 1 >= 0 ? tmp : zeros;
+    const leaveAt = y - r - 1 >= 0 ? (y - r - 1) * width : 0;
     for (let x = 0; x < width; x++) {
-      if (tmp[row + x]) lastRow[x] = y;
-      if (lastRow[x] - y <= r) out[row + x] = 1;
+      const c = colCount[x] + enter[enterAt + x] - leave[leaveAt + x];
+      colCount[x] = c;
+      out[row + x] = c > 0 ? 1 : 0;
     }
   }
 }

@@ -6,3 +6,5 @@ export { mannWhitneyU, type MannWhitneyUOptions, type MannWhitneyUResult } from 
 export { newcombeDifference, type NewcombeDifferenceResult } from './newcombeDifference';
 export { wilsonInterval, type WilsonIntervalResult } from './wilsonInterval';
 export type { Alternative, Table2x2 } from './types';
+export { mannWhitneyUBinned, binnedMedian } from './mannWhitneyUBinned';
+export type { BinnedPair, MannWhitneyUBinnedResult } from './mannWhitneyUBinned';
