@@ -5,9 +5,12 @@
  * 2048 × 2048 16-bit fluorescence channels), runs every stage several times and prints median and minimum wall time,
  * megapixels per second and sampled memory, then compares the stages OpenCV's JavaScript build also has
  * (@techstark/opencv-js 4.5.2, dev dependency; single-threaded wasm) and image-js 1.7 (16-bit blur, for the record).
+ * Before each timed run the heap is collected and the script pauses SETTLE_MS so that freeing the previous run's
+ * buffers is not billed to the stage.
  *
  * One core: the analysis runs on Node's main thread only; where `taskset` exists the script re-runs itself pinned to
- * one CPU so that V8's helper threads share that core too. BENCH_RUNS sets the repetitions (default 5).
+ * one CPU so that V8's helper threads share that core too. BENCH_RUNS sets the repetitions (default 5),
+ * BENCH_WARMUP the untimed calls before them (default 3).
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
@@ -16,6 +19,7 @@ import os from 'node:os';
 import { Image } from 'image-js';
 import {
   aperturePhotometry,
+  blurRows,
   correctBackground,
   detectSpots,
   gaussianBlur,
@@ -38,6 +42,7 @@ if (process.env.HL_BENCH_PINNED === undefined && process.platform === 'linux' &&
 }
 
 const RUNS = Math.max(1, Number(process.env.BENCH_RUNS ?? 5));
+const WARMUP = Math.max(1, Number(process.env.BENCH_WARMUP ?? 3));
 const MB = 1024 * 1024;
 const gc = (globalThis as { gc?: () => void }).gc ?? (() => undefined);
 
@@ -89,14 +94,26 @@ interface Row {
 
 const rows: Row[] = [];
 
+/**
+ * After a forced collection V8 frees the large buffers of the previous run on helper threads, which share the one
+ * pinned core: without a pause that work lands in whichever stage is timed next (a 16 ms stage then read 130 ms).
+ */
+const SETTLE_MS = 50;
+const settle = () => new Promise<void>((resolve) => setTimeout(resolve, SETTLE_MS));
+
 /** Times `fn` RUNS times after one warm-up, sampling memory right after each run (before collection). */
-function bench<T>(stage: string, megapixels: number, fn: () => T, note?: string): T {
-  let result = fn(); // warm-up: JIT compilation is not part of a stage's steady cost
+async function bench<T>(stage: string, megapixels: number, fn: () => T, note?: string): Promise<T> {
+  // warm-up: JIT compilation is not part of a stage's steady cost. One call is not enough: V8 compiles each long
+  // loop on its own (on-stack replacement) and drops that code when it reaches lines it has not run yet, so a stage
+  // needs a few calls before its code stays optimised
+  let result = fn();
+  for (let w = 1; w < WARMUP; w++) result = fn();
   const times: number[] = [];
   let rssMb = 0;
   let heapMb = 0;
   for (let r = 0; r < RUNS; r++) {
     gc();
+    await settle();
     const t0 = performance.now();
     result = fn();
     times.push(performance.now() - t0);
@@ -155,7 +172,7 @@ async function main() {
       ? `single-threaded: analysis on Node's main thread, process pinned to CPU ${process.env.HL_BENCH_PINNED} (taskset)`
       : "single-threaded: analysis on Node's main thread (taskset not available, process not pinned)",
   );
-  console.log(`runs per stage: ${RUNS} after one warm-up; load average now ${os.loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+  console.log(`runs per stage: ${RUNS} after ${WARMUP} warm-up calls, each run after a collection and a ${SETTLE_MS} ms pause; load average now ${os.loadavg().map((l) => l.toFixed(2)).join(' ')}`);
 
   let t0 = performance.now();
   const field = makeStandardField();
@@ -165,7 +182,7 @@ async function main() {
   const fieldMp = afmMp + 3 * flMp;
 
   // the whole field as the pipeline runs it (lean fit), first so that its peak memory is its own
-  bench('WHOLE FIELD (height + 3 channels + photometry)', fieldMp, () => {
+  await bench('WHOLE FIELD (height + 3 channels + photometry)', fieldMp, () => {
     const lev = levelHeightMap(field.heights);
     const th = selectThreshold(lev.levelled, { method: 'robust', k: 3, backgroundMask: lev.backgroundMask });
     const det = detectVesicles(lev.levelled, { thresholdNm: th.thresholdNm });
@@ -182,39 +199,39 @@ async function main() {
   const pipelinePeakRssMb = process.resourceUsage().maxRSS / 1024;
 
   // height map stages
-  const levelling = bench('height: level (plane + rows)', afmMp, () => levelHeightMap(field.heights));
-  const threshold = bench('height: threshold (robust)', afmMp, () =>
+  const levelling = await bench('height: level (plane + rows)', afmMp, () => levelHeightMap(field.heights));
+  const threshold = await bench('height: threshold (robust)', afmMp, () =>
     selectThreshold(levelling.levelled, { method: 'robust', k: 3, backgroundMask: levelling.backgroundMask }),
   );
-  const detection = bench('height: detect (watershed + stats)', afmMp, () =>
+  const detection = await bench('height: detect (watershed + stats)', afmMp, () =>
     detectVesicles(levelling.levelled, { thresholdNm: threshold.thresholdNm }),
   );
   const measureOptions = { thresholdNm: Math.max(0, threshold.thresholdNm) };
-  bench(`height: measure ${detection.vesicles.length + detection.fiducialCandidates.length} regions`, afmMp, () =>
+  await bench(`height: measure ${detection.vesicles.length + detection.fiducialCandidates.length} regions`, afmMp, () =>
     [...detection.vesicles, ...detection.fiducialCandidates].map((r) =>
       measureVesicle(levelling.levelled, detection.labels, r, AFM_PIXEL_NM, measureOptions),
     ),
   );
 
   // fluorescence stages, all three channels per run
-  const corrected = bench('fluor ×3: background', 3 * flMp, () =>
+  const corrected = await bench('fluor ×3: background', 3 * flMp, () =>
     field.channels.map((c) => correctBackground(c.raster, { cameraOffsetCounts: CAMERA_OFFSET })),
   );
-  bench('fluor ×3: LoG only (part of detect)', 3 * flMp, () =>
+  await bench('fluor ×3: LoG only (part of detect)', 3 * flMp, () =>
     field.channels.map((c, i) => laplacianOfGaussian(corrected[i].corrected, c.sigmaPx)),
   );
-  const spots = bench('fluor ×3: detect + lean Gaussian fit', 3 * flMp, () =>
+  const spots = await bench('fluor ×3: detect + lean Gaussian fit', 3 * flMp, () =>
     field.channels.map((c, i) => detectSpots(corrected[i].corrected, { sigmaPx: c.sigmaPx, background: corrected[i].background })),
   );
-  const spotsLm = bench('fluor ×3: detect + ml-levenberg-marquardt fit', 3 * flMp, () =>
+  const spotsLm = await bench('fluor ×3: detect + ml-levenberg-marquardt fit', 3 * flMp, () =>
     field.channels.map((c, i) =>
       detectSpots(corrected[i].corrected, { sigmaPx: c.sigmaPx, background: corrected[i].background, solver: 'ml-levenberg-marquardt' }),
     ),
   );
-  bench('fluor ×3: detect + centroid only', 3 * flMp, () =>
+  await bench('fluor ×3: detect + centroid only', 3 * flMp, () =>
     field.channels.map((c, i) => detectSpots(corrected[i].corrected, { sigmaPx: c.sigmaPx, refine: 'centroid' })),
   );
-  bench('fluor ×3: aperture photometry, 500 points', 3 * flMp, () =>
+  await bench('fluor ×3: aperture photometry, 500 points', 3 * flMp, () =>
     field.channels.map((c) => field.photometryPoints.map((p) => aperturePhotometry(c.raster, p, { sigmaPx: c.sigmaPx }))),
   );
 
@@ -240,16 +257,22 @@ async function main() {
   const sigma = field.channels[1].sigmaPx;
   const ksize = 2 * Math.max(1, Math.ceil(3 * sigma)) + 1; // our kernel's support: ±3σ
   const flFloat = corrected[1].corrected;
-  const ours = bench(`blur 2048² float32, σ=${sigma.toFixed(2)} px: ours`, flMp, () => gaussianBlur(flFloat, sigma));
+  const ours = await bench(`blur 2048² float32, σ=${sigma.toFixed(2)} px: ours`, flMp, () => gaussianBlur(flFloat, sigma));
+  // the same kernel writing into one reused buffer, as cv.GaussianBlur writes into its reused dst: separates the
+  // kernel from the cost of a fresh 16 MB result (allocation and first-touch page faults)
+  const reused = new Float32Array(FL_SIZE * FL_SIZE);
+  await bench(`blur 2048² float32: ours (blurRows) into a reused buffer`, flMp, () =>
+    blurRows(flFloat, sigma, (y, row) => reused.set(row, y * FL_SIZE)),
+  );
   const src = cv.matFromArray(FL_SIZE, FL_SIZE, cv.CV_32F, flFloat.data);
   const dst = new cv.Mat();
   const size = new cv.Size(ksize, ksize);
-  bench(`blur 2048² float32: cv.GaussianBlur ${ksize}×${ksize}`, flMp, () => cv.GaussianBlur(src, dst, size, sigma, sigma, cv.BORDER_REPLICATE));
+  await bench(`blur 2048² float32: cv.GaussianBlur ${ksize}×${ksize}`, flMp, () => cv.GaussianBlur(src, dst, size, sigma, sigma, cv.BORDER_REPLICATE));
   const cvBlur = dst.data32F as Float32Array;
   let blurDiff = 0;
   for (let i = 0; i < cvBlur.length; i++) blurDiff = Math.max(blurDiff, Math.abs(cvBlur[i] - ours.data[i]));
   const img16 = new Image(FL_SIZE, FL_SIZE, { bitDepth: 16, colorModel: 'GREY', data: Uint16Array.from(field.channels[1].raster.data) });
-  bench(`blur 2048² uint16: image-js gaussianBlur ${ksize}×${ksize}`, flMp, () =>
+  await bench(`blur 2048² uint16: image-js gaussianBlur ${ksize}×${ksize}`, flMp, () =>
     img16.gaussianBlur({ sigma, size: ksize, borderType: 'replicate' }),
   );
 
@@ -260,7 +283,7 @@ async function main() {
   const labels = new cv.Mat();
   const stats = new cv.Mat();
   const centroids = new cv.Mat();
-  const nbCv = bench('components 1024² mask: cv.connectedComponentsWithStats', afmMp, () =>
+  const nbCv = await bench('components 1024² mask: cv.connectedComponentsWithStats', afmMp, () =>
     cv.connectedComponentsWithStats(mask, labels, stats, centroids, 8, cv.CV_32S),
   ) as number;
   const detectRow = rowOf('height: detect (watershed + stats)');

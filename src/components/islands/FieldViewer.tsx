@@ -28,6 +28,9 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
   const [visible, setVisible] = useState<Record<string, boolean>>(Object.fromEntries(channels.map((c) => [c.layer, true])));
   const [gain, setGain] = useState<Record<string, number>>(Object.fromEntries(channels.map((c) => [c.layer, 1])));
   const [scale, setScale] = useState<{ px: number; label: string } | null>(null);
+  // display only: brightness and contrast of the rendered view (the data are not changed)
+  const [brightness, setBrightness] = useState(1);
+  const [contrast, setContrast] = useState(1);
   const [readout, setReadout] = useState<string>('Move the pointer over the image');
   const shown = mode === 'height' ? (height ? [height] : []) : channels;
   const pixelNm = mode === 'height' ? afmPixelNm : flPixelNm;
@@ -143,13 +146,19 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
         ))}
       </div>
       <div className="relative">
-        <div ref={host} className="w-full h-[560px] bg-black rounded-lg" data-testid="field-viewer" />
+        <div ref={host} className="w-full h-[560px] bg-black rounded-lg" data-testid="field-viewer" style={{ filter: `brightness(${brightness}) contrast(${contrast})` }} />
         {scale && (
           <div className="absolute left-3 bottom-3 text-white text-xs" data-testid="scale-bar">
             <div style={{ width: scale.px }} className="h-1.5 bg-white rounded-sm" />
             <div className="mt-1 drop-shadow">{scale.label}</div>
           </div>
         )}
+      </div>
+      <div className="flex flex-wrap gap-4 items-center text-sm text-mica-600">
+        <label className="inline-flex items-center gap-2">Brightness <input type="range" min={0.5} max={4} step={0.1} value={brightness} onChange={(e) => setBrightness(Number(e.target.value))} /></label>
+        <label className="inline-flex items-center gap-2">Contrast <input type="range" min={0.5} max={3} step={0.1} value={contrast} onChange={(e) => setContrast(Number(e.target.value))} /></label>
+        <button type="button" className="underline" onClick={() => { setBrightness(1); setContrast(1); }}>reset display</button>
+        <span className="text-xs text-mica-400">Display only; read-outs show the stored values.</span>
       </div>
       <div className="flex flex-wrap justify-between gap-4 items-center text-sm">
         <div className="font-mono text-mica-600" data-testid="readout">{readout}</div>

@@ -35,99 +35,24 @@ export function detectVesicles(levelled: Raster, options: DetectVesiclesOptions)
   const n = width * height;
   const labels = new Int32Array(n);
 
-  // foreground
+  // foreground, listed in raster order in the front of `labels` (filled with labels only at the end), so the
+  // passes below touch foreground pixels only
+  const foreground = labels;
   let m = 0;
   let hMax = -Infinity;
   for (let i = 0; i < n; i++) {
     const h = data[i];
     if (h > thresholdNm) {
-      m++;
+      foreground[m++] = i;
       if (h > hMax) hMax = h;
     }
   }
   const emptyDiagnostics = { thresholdNm, nbForegroundPx: m, nbRegions: 0, nbSplits: 0, nbDroppedEdge: 0, nbDroppedSmall: 0, nbDroppedLow: 0 };
   if (m === 0) return { labels, width, height, vesicles: [], fiducialCandidates: [], diagnostics: emptyDiagnostics };
 
-  // order foreground by height, descending: counting sort on heights quantised to NB_LEVELS steps
-  // between the threshold and the maximum (ties in raster order). Linear time; the quantisation step
-  // (range/65 536, e.g. 0.006 nm for a 400 nm bead) is far below AFM noise.
-  const range = hMax - thresholdNm || 1;
-  const scale = (NB_LEVELS - 1) / range;
-  const starts = new Int32Array(NB_LEVELS + 1);
-  for (let i = 0; i < n; i++) {
-    const h = data[i];
-    if (h > thresholdNm) starts[Math.floor((hMax - h) * scale) + 1]++;
-  }
-  for (let b = 0; b < NB_LEVELS; b++) starts[b + 1] += starts[b];
-  const order = new Int32Array(m);
-  for (let i = 0; i < n; i++) {
-    const h = data[i];
-    if (h > thresholdNm) order[starts[Math.floor((hMax - h) * scale)]++] = i;
-  }
+  const order = orderByHeight(data, labels, m, thresholdNm, hMax);
 
-  // flood; a basin's id is the rank of its peak, so the root of a set is its highest peak
-  const idOf = new Int32Array(n).fill(-1);
-  const parent = new Int32Array(m);
-  const component = new Int32Array(m); // union of everything that touched: connected components
-  const find = (arr: Int32Array, i: number): number => {
-    while (arr[i] !== i) {
-      arr[i] = arr[arr[i]];
-      i = arr[i];
-    }
-    return i;
-  };
-  const roots = new Int32Array(8);
-  const minSep2 = minSeparationPx * minSeparationPx;
-  for (let r = 0; r < m; r++) {
-    const p = order[r];
-    idOf[p] = r;
-    const x = p % width;
-    const y = (p - x) / width;
-    let nbRoots = 0;
-    let bestHeight = -Infinity;
-    let bestRoot = -1;
-    for (let k = 0; k < 8; k++) {
-      const qx = x + NEIGHBOUR_DX[k];
-      const qy = y + NEIGHBOUR_DY[k];
-      if (qx < 0 || qy < 0 || qx >= width || qy >= height) continue;
-      const q = qy * width + qx;
-      const id = idOf[q];
-      if (id < 0 || q === p) continue;
-      const root = find(parent, id);
-      if (data[q] > bestHeight) {
-        bestHeight = data[q];
-        bestRoot = root;
-      }
-      let seen = false;
-      for (let s = 0; s < nbRoots; s++) if (roots[s] === root) seen = true;
-      if (!seen) roots[nbRoots++] = root;
-    }
-    if (nbRoots === 0) {
-      parent[r] = r;
-      component[r] = r;
-      continue;
-    }
-    let oldest = roots[0];
-    for (let s = 1; s < nbRoots; s++) if (roots[s] < oldest) oldest = roots[s];
-    const oldestPeak = order[oldest];
-    const ox = oldestPeak % width;
-    const oy = (oldestPeak - ox) / width;
-    for (let s = 0; s < nbRoots; s++) {
-      const root = roots[s];
-      if (root === oldest) continue;
-      const cRoot = find(component, root);
-      const cOld = find(component, oldest);
-      if (cRoot !== cOld) component[Math.max(cRoot, cOld)] = Math.min(cRoot, cOld);
-      const peak = order[root];
-      const px = peak % width;
-      const py = (peak - px) / width;
-      const prominence = data[peak] - data[p];
-      const d2 = (px - ox) * (px - ox) + (py - oy) * (py - oy);
-      if (prominence < minProminenceNm || d2 < minSep2) parent[root] = oldest;
-    }
-    parent[r] = find(parent, bestRoot);
-    component[r] = find(component, oldest);
-  }
+  const { parent, component } = flood(data, width, height, order, minProminenceNm, minSeparationPx);
 
   // region statistics, indexed by root rank
   const area = new Int32Array(m);
@@ -192,4 +117,103 @@ export function detectVesicles(levelled: Raster, options: DetectVesiclesOptions)
       nbDroppedEdge, nbDroppedSmall, nbDroppedLow,
     },
   };
+}
+
+/**
+ * Foreground pixels (listed in raster order in foreground[0..m), which is cleared on return) ordered by height,
+ * descending, ties in raster order.
+ */
+function orderByHeight(data: Float32Array, foreground: Int32Array, m: number, thresholdNm: number, hMax: number): Int32Array {
+  // order foreground by height, descending: counting sort on heights quantised to NB_LEVELS steps
+  // between the threshold and the maximum (ties in raster order). Linear time; the quantisation step
+  // (range/65 536, e.g. 0.006 nm for a 400 nm bead) is far below AFM noise.
+  const range = hMax - thresholdNm || 1;
+  const scale = (NB_LEVELS - 1) / range;
+  const starts = new Int32Array(NB_LEVELS + 1);
+  for (let k = 0; k < m; k++) starts[Math.floor((hMax - data[foreground[k]]) * scale) + 1]++;
+  for (let b = 0; b < NB_LEVELS; b++) starts[b + 1] += starts[b];
+  const order = new Int32Array(m);
+  for (let k = 0; k < m; k++) {
+    const i = foreground[k];
+    order[starts[Math.floor((hMax - data[i]) * scale)]++] = i;
+  }
+  foreground.fill(0, 0, m);
+  return order;
+}
+
+/**
+ * Priority flood of the foreground in `order`: returns, per rank, the union–find parents of basins (merged by
+ * the prominence and separation rules) and of connected components.
+ */
+function flood(
+  data: Float32Array, width: number, height: number, order: Int32Array, minProminenceNm: number, minSeparationPx: number,
+): { parent: Int32Array; component: Int32Array } {
+  const n = width * height;
+  const m = order.length;
+  // flood; a basin's id is the rank of its peak, so the root of a set is its highest peak
+  const idOf = new Int32Array(n); // rank + 1 of each flooded pixel, 0 before it is reached
+  const parent = new Int32Array(m);
+  const component = new Int32Array(m); // union of everything that touched: connected components
+  const roots = new Int32Array(8);
+  const minSep2 = minSeparationPx * minSeparationPx;
+  for (let r = 0; r < m; r++) {
+    const p = order[r];
+    idOf[p] = r + 1;
+    const x = p % width;
+    const y = (p - x) / width;
+    let nbRoots = 0;
+    let bestHeight = -Infinity;
+    let bestRoot = -1;
+    for (let k = 0; k < 8; k++) {
+      const qx = x + NEIGHBOUR_DX[k];
+      const qy = y + NEIGHBOUR_DY[k];
+      if (qx < 0 || qy < 0 || qx >= width || qy >= height) continue;
+      const q = qy * width + qx;
+      const id = idOf[q] - 1;
+      if (id < 0 || q === p) continue;
+      const root = find(parent, id);
+      if (data[q] > bestHeight) {
+        bestHeight = data[q];
+        bestRoot = root;
+      }
+      let seen = false;
+      for (let s = 0; s < nbRoots; s++) if (roots[s] === root) seen = true;
+      if (!seen) roots[nbRoots++] = root;
+    }
+    if (nbRoots === 0) {
+      parent[r] = r;
+      component[r] = r;
+      continue;
+    }
+    let oldest = roots[0];
+    for (let s = 1; s < nbRoots; s++) if (roots[s] < oldest) oldest = roots[s];
+    const oldestPeak = order[oldest];
+    const ox = oldestPeak % width;
+    const oy = (oldestPeak - ox) / width;
+    for (let s = 0; s < nbRoots; s++) {
+      const root = roots[s];
+      if (root === oldest) continue;
+      const cRoot = find(component, root);
+      const cOld = find(component, oldest);
+      if (cRoot !== cOld) component[Math.max(cRoot, cOld)] = Math.min(cRoot, cOld);
+      const peak = order[root];
+      const px = peak % width;
+      const py = (peak - px) / width;
+      const prominence = data[peak] - data[p];
+      const d2 = (px - ox) * (px - ox) + (py - oy) * (py - oy);
+      if (prominence < minProminenceNm || d2 < minSep2) parent[root] = oldest;
+    }
+    parent[r] = find(parent, bestRoot);
+    component[r] = find(component, oldest);
+  }
+  return { parent, component };
+}
+
+/** Root of i in a union–find forest, halving the path on the way. */
+function find(arr: Int32Array, i: number): number {
+  while (arr[i] !== i) {
+    arr[i] = arr[arr[i]];
+    i = arr[i];
+  }
+  return i;
 }
