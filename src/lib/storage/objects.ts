@@ -67,3 +67,9 @@ export async function listKeys(st: Storage, prefix: string): Promise<string[]> {
   } while (token);
   return out;
 }
+
+/** Bytes [start, endExclusive) of an object (an HTTP Range request). */
+export async function getRange(st: Storage, key: string, start: number, endExclusive: number): Promise<Uint8Array> {
+  const r = await st.s3.send(new GetObjectCommand({ Bucket: st.bucket, Key: key, Range: `bytes=${start}-${endExclusive - 1}` }));
+  return r.Body!.transformToByteArray();
+}

@@ -5,7 +5,8 @@
 import { randomUUID } from 'node:crypto';
 import type { Storage } from '../storage/client';
 import { stagingKey } from '../storage/keys';
-import { getBytes, headSize, deleteObject, presignPut } from '../storage/objects';
+import { getRange, headSize, deleteObject, presignPut } from '../storage/objects';
+import { sparseTiffBytes } from './sparseTiffBytes';
 import { inspectTiff, ImagingError, type TiffMetadata } from '../imaging';
 import { HttpError } from '../http/errors';
 import type { InspectReply } from '../schemas/fields';
@@ -22,7 +23,7 @@ export async function createStagedUpload(st: Storage, userId: string, sizeBytes:
 }
 
 /**
- * Reads a staged file's TIFF structure (no pixel decoding). A bad file is deleted and answered with
+ * Reads a staged file's TIFF structure (no pixel decoding, no pixel bytes fetched). A bad file is deleted and answered with
  * 422 and a message for the person who uploaded it; a missing one with 404.
  */
 export async function inspectStagedUpload(st: Storage, userId: string, uploadId: string, limits: UploadLimits): Promise<{ reply: InspectReply; meta: TiffMetadata; key: string }> {
@@ -33,7 +34,8 @@ export async function inspectStagedUpload(st: Storage, userId: string, uploadId:
     await deleteObject(st, key);
     throw new HttpError(413, 'too_large', 'The file is larger than the upload limit.');
   }
-  const bytes = await getBytes(st, key);
+  // only the file's structure is read (ranged requests), never its pixels: memory stays flat for large uploads
+  const bytes = await sparseTiffBytes(size, (start, end) => getRange(st, key, start, end));
   try {
     const meta = inspectTiff(bytes, { maxFileBytes: limits.maxUploadBytes, maxPixels: limits.maxPixels, maxDecodedBytes: limits.maxDecodedBytes });
     return {

@@ -9,8 +9,8 @@ const PAIRS = 6;
  *
  * Only 2·radius + 1 horizontally blurred rows are kept (a float32 ring), and each input row is blurred once, so the
  * working set stays in cache. Both passes add mirrored taps before multiplying and sum six tap pairs per pass over
- * a row ({@link addPairs}), which V8 compiles to one straight loop body with the weights in registers: about 1.6×
- * faster than a loop over taps per pixel (npm run bench, docs/benchmarks.md). Callers that need neighbouring rows
+ * a row ({@link addPairs}), which V8 compiles to one straight loop body with the weights in registers: 1.2–1.7×
+ * faster than a loop over taps per pixel on 2048² frames (docs/benchmarks.md). Callers that need neighbouring rows
  * (a Laplacian) can rely on the last three emitted rows staying valid: `row` cycles through three buffers.
  *
  * @param raster - input image (any unit); not modified
