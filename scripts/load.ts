@@ -10,7 +10,7 @@
  */
 import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { and, eq } from 'drizzle-orm';
+import { eq, inArray, sql } from 'drizzle-orm';
 import { createDb } from '../src/lib/db/client';
 import { fields, samples } from '../src/lib/db/schema';
 import { config } from '../src/lib/config';
@@ -67,7 +67,9 @@ interface Outcome { name: string; reqPerS: number; p50: number; p95: number; p99
 /** One route under load; exact percentiles from every response time (autocannon reports p97.5, not p95). */
 async function drive(name: string, path: string, cookie: string): Promise<Outcome> {
   const times: number[] = [];
-  const instance = autocannon({ url: base + path, connections, duration: durationS, amount: maxRequests, timeout: 10, headers: { cookie } });
+  // autocannon ignores `duration` when `amount` is set, so the request cap applies only when asked for
+  const limit = process.argv.includes('--max-requests') ? { amount: maxRequests } : { duration: durationS };
+  const instance = autocannon({ url: base + path, connections, ...limit, timeout: 10, headers: { cookie } });
   instance.on('response', (_client, _status, _bytes, ms) => times.push(ms));
   const r = await instance;
   times.sort((a, b) => a - b);
@@ -82,7 +84,7 @@ async function main() {
   // a processed demo field and its sample, read from the database the app uses
   const db = createDb(config().DATABASE_URL, 1);
   const [row] = await db.select({ fieldId: fields.id, sampleId: samples.id, studyId: samples.studyId, width: fields.afmWidthPx })
-    .from(fields).innerJoin(samples, eq(samples.id, fields.sampleId)).where(and(eq(fields.status, 'ready'))).limit(1);
+    .from(fields).innerJoin(samples, eq(samples.id, fields.sampleId)).where(inArray(fields.status, ['approved', 'linked', 'registered', 'ready'])).orderBy(sql`array_position(array['approved','linked','registered','ready']::field_status[], ${fields.status})`).limit(1);
   await db.$client.end();
   if (!row) throw new Error('no processed field: start the app with the demo (npm start) and let the worker ingest it');
 
@@ -91,10 +93,11 @@ async function main() {
   // deepest Deep Zoom level of the height map (level = ceil(log2(max side)))
   const level = Math.ceil(Math.log2(row.width ?? 1));
   const targets = [
-    { name: 'vesicle table (CSV)', file: 'samples/[id]/vesicles.csv.ts', path: `/api/samples/${row.sampleId}/vesicles.csv?source=current`, cookie: analyst },
+    { name: 'vesicle table (page of 50, sorted by height)', file: 'vesicles/index.ts', path: `/api/vesicles?sampleId=${row.sampleId}&page=0&pageSize=50&sort=heightNm&dir=desc`, cookie: analyst },
     { name: 'field detection', file: 'fields/[id]/detection.ts', path: `/api/fields/${row.fieldId}/detection`, cookie: analyst },
     { name: 'height tile', file: 'fields/[id]/tiles/[...path].ts', path: `/api/fields/${row.fieldId}/tiles/height_files/${level}/0_0.png`, cookie: analyst },
     { name: 'dashboard (comparison)', file: 'studies/[id]/comparison.ts', path: `/api/studies/${row.studyId}/comparison`, cookie: collaborator },
+    { name: 'dashboard (sample results)', file: 'samples/[id]/results.ts', path: `/api/samples/${row.sampleId}/results?source=current`, cookie: analyst },
   ].filter((t) => existsSync(`src/pages/api/${t.file}`));
 
   console.log(`load: ${base}, ${connections} connections, ${durationS} s per route (at most ${maxRequests} requests each)`);

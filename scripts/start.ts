@@ -23,7 +23,7 @@ async function main() {
     if (b.status !== 0) throw new Error('astro build failed');
   }
   const children: ChildProcess[] = [];
-  children.push(spawn(process.execPath, ['dist/server/entry.mjs'], { stdio: 'inherit', env: process.env }));
+  children.push(spawn(process.execPath, ['scripts/serve.mjs'], { stdio: 'inherit', env: process.env }));
   children.push(spawn('npx', ['tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
 
   let stopping = false;

@@ -4,16 +4,24 @@
  * admin takes effect at once.
  */
 import { eq, and } from 'drizzle-orm';
-import { getSession } from 'auth-astro/server';
+import { getToken } from '@auth/core/jwt';
 import type { Db } from '../db/client';
 import { users, studyMembers, studies } from '../db/schema';
 import { HttpError, unauthorized, forbidden } from '../http/errors';
 import { canInStudy, type Action, type MemberRole, type Role, type SessionUser } from './permissions';
 
-/** Reads the session cookie and loads the active user it names, or null. */
+/**
+ * Reads the session cookie and loads the active user it names, or null. The encrypted session token
+ * is decoded directly (Auth.js's own getToken) rather than through a full internal session request,
+ * which halves the cost of every signed-in request; sessions therefore end 12 h after sign-in.
+ */
 export async function loadSessionUser(db: Db, request: Request): Promise<SessionUser | null> {
-  const session = await getSession(request);
-  const id = (session?.user as { id?: string } | undefined)?.id;
+  const cookie = request.headers.get('cookie') ?? '';
+  if (!cookie.includes('session-token')) return null;
+  // behind TLS Auth.js names the cookie __Secure-authjs.session-token (the proxy may speak http to us)
+  const secureCookie = cookie.includes('__Secure-authjs.session-token');
+  const token = await getToken({ req: request, secret: process.env.AUTH_SECRET ?? '', secureCookie }).catch(() => null);
+  const id = typeof token?.uid === 'string' ? token.uid : null;
   if (!id) return null;
   const [row] = await db
     .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active })
