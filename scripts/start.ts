@@ -24,14 +24,21 @@ async function main() {
   }
   const children: ChildProcess[] = [];
   children.push(spawn(process.execPath, ['scripts/serve.mjs'], { stdio: 'inherit', env: process.env }));
-  children.push(spawn('npx', ['tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
+  // the worker runs under node itself (not through npx) so that stopping it reaches the process
+  children.push(spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
 
   let stopping = false;
   const stop = async () => {
     if (stopping) return;
     stopping = true;
     log('stopping ...');
-    for (const c of children) c.kill('SIGTERM');
+    // children first (the worker finishes its job's bookkeeping), then the services they use
+    await Promise.all(children.map((c) => new Promise<void>((res) => {
+      if (c.exitCode !== null || c.signalCode !== null) return res();
+      const t = setTimeout(() => { c.kill('SIGKILL'); res(); }, 10_000);
+      c.once('exit', () => { clearTimeout(t); res(); });
+      c.kill('SIGTERM');
+    })));
     await services.stop();
     process.exit(0);
   };
