@@ -5,6 +5,8 @@
 import { getBoss } from '../src/lib/jobs/boss';
 import { registerHandlers } from '../src/lib/jobs/handlers';
 import { config } from '../src/lib/config';
+import { getStorage } from '../src/lib/storage/client';
+import { deleteOlderThan } from '../src/lib/storage/objects';
 
 // A database restart can reject a queue call nobody awaits (pg-boss bookkeeping): log it and keep
 // working; pg-boss reconnects and retries the job when its lease expires.
@@ -16,6 +18,17 @@ async function main() {
   const boss = await getBoss(config().DATABASE_URL);
   await registerHandlers(boss);
   console.log('[worker] waiting for jobs');
+  // uploads staged but never confirmed (the browser closed, a rejected field) are swept after a day
+  const sweep = async () => {
+    try {
+      const n = await deleteOlderThan(await getStorage(), 'staging/', new Date(Date.now() - 24 * 3600 * 1000));
+      if (n) console.log(`[worker] removed ${n} abandoned staged upload(s)`);
+    } catch (e) {
+      console.error('[worker] staging sweep failed:', (e as Error).message);
+    }
+  };
+  void sweep();
+  setInterval(sweep, 3600 * 1000).unref();
   const stop = async () => {
     await boss.stop({ graceful: true, timeout: 10_000 }).catch(() => undefined);
     process.exit(0);

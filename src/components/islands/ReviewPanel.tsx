@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { Fragment, useState } from 'react';
 
 interface Review { decision: string; comment: string; reviewedAt: string; reviewer: string | null }
 interface Props { fieldId: string; status: string; version: number; canAnalyse: boolean; reviews: Review[]; summary: Record<string, unknown> | null }
@@ -25,7 +25,7 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
       {summary && (
         <dl className="grid grid-cols-2 gap-y-1">
           <dt className="text-mica-600">Vesicles</dt><dd>{String(summary.nbVesicles)}</dd>
-          {Object.entries(positive).map(([m, k]) => <><dt key={m} className="text-mica-600">{m}+</dt><dd key={`${m}v`}>{k}</dd></>)}
+          {Object.entries(positive).map(([m, k]) => <Fragment key={m}><dt className="text-mica-600">{m}+</dt><dd>{k}</dd></Fragment>)}
           <dt className="text-mica-600">Outside the frame</dt><dd>{String(summary.nbOutOfFrame)}</dd>
           <dt className="text-mica-600">No marker</dt><dd>{String(summary.nbVesiclesWithoutMarker)}</dd>
         </dl>

@@ -73,3 +73,17 @@ export async function getRange(st: Storage, key: string, start: number, endExclu
   const r = await st.s3.send(new GetObjectCommand({ Bucket: st.bucket, Key: key, Range: `bytes=${start}-${endExclusive - 1}` }));
   return r.Body!.transformToByteArray();
 }
+
+/** Deletes objects under `prefix` last modified before `olderThan`; returns how many went. */
+export async function deleteOlderThan(st: Storage, prefix: string, olderThan: Date): Promise<number> {
+  let token: string | undefined;
+  let n = 0;
+  do {
+    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, Prefix: prefix, ContinuationToken: token }));
+    const old = (page.Contents ?? []).filter((o) => o.LastModified && o.LastModified < olderThan).map((o) => ({ Key: o.Key! }));
+    if (old.length) await st.s3.send(new DeleteObjectsCommand({ Bucket: st.bucket, Delete: { Objects: old } }));
+    n += old.length;
+    token = page.IsTruncated ? page.NextContinuationToken : undefined;
+  } while (token);
+  return n;
+}
