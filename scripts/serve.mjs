@@ -3,7 +3,7 @@
 import cluster from 'node:cluster';
 import { availableParallelism } from 'node:os';
 
-const n = Math.max(1, Number(process.env.WEB_CONCURRENCY ?? availableParallelism()));
+const n = Math.max(1, Number(process.env.WEB_CONCURRENCY || availableParallelism()));
 const entry = new URL(`../${process.env.HEIGHTLIGHT_OUT_DIR ?? 'dist'}/server/entry.mjs`, import.meta.url);
 
 if (cluster.isPrimary && n > 1) {
