@@ -41,7 +41,7 @@ function Table({ fieldId, sampleId }: Props) {
         return <span className={pos ? 'text-cap-600 font-semibold' : 'text-mica-600'}>{n(k?.intensity, 0)} {k?.intensity == null ? '' : pos ? '+' : '−'}</span>;
       },
     })),
-    col.accessor('phenotype', { header: 'Phenotype' }),
+    col.accessor('phenotype', { header: 'Phenotype', cell: (c) => <span className="whitespace-nowrap">{c.getValue()}</span> }),
     col.accessor('outOfFrame', { header: 'Outside frame', cell: (c) => (c.getValue() ? 'yes' : '') }),
   ], [markers.join(',')]);
 

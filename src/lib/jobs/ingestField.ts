@@ -45,7 +45,8 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
 
     await progress('rendering the height map', 0.3);
     const layers: { layer: string; prefix: string; width: number; height: number; display: Record<string, unknown> }[] = [];
-    const h = await renderHeightLayer(st, fieldId, afm.levelling.levelled);
+    const beadLabels = new Set(afm.fiducialCandidates.map((b) => b.label));
+    const h = await renderHeightLayer(st, fieldId, afm.levelling.levelled, (i) => beadLabels.has(afm.labels[i]));
     layers.push({ layer: 'height', prefix: h.prefix, width: height.width, height: height.height, display: h.display });
 
     const frames: Raster[] = [];

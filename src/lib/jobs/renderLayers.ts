@@ -48,11 +48,13 @@ async function uploadValues(st: Storage, fieldId: string, layer: string, r: Rast
 }
 
 /**
- * Height map through the viridis colour map. The range comes from percentiles of the pixels below
- * `beadMinHeightNm`, so a few tall beads do not squash the vesicles into the darkest colours (beads saturate).
+ * Height map through the viridis colour map. The range comes from percentiles of the pixels outside
+ * `excluded` (the fiducial beads' regions), so a few tall beads do not squash the vesicles into the
+ * darkest colours; beads saturate at the top colour.
  */
-export async function renderHeightLayer(st: Storage, fieldId: string, levelled: Raster, beadMinHeightNm = 300) {
-  const { min: low, max: high } = contrastFromPercentiles(levelled.data.filter((v) => v < beadMinHeightNm), 0.5, 99.9);
+export async function renderHeightLayer(st: Storage, fieldId: string, levelled: Raster, excluded?: (i: number) => boolean) {
+  const shown = excluded ? levelled.data.filter((_, i) => !excluded(i)) : levelled.data;
+  const { min: low, max: high } = contrastFromPercentiles(shown, 0.5, 99.9);
   const minNm = Math.min(low, 0);
   const maxNm = Math.max(high, minNm + 1);
   const map = colourMapHeight(levelled, { minNm, maxNm });
