@@ -4,7 +4,7 @@
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { launch, signInAs, screenshot } from '../support/browser';
+import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { demoField } from '../support/demoField';
@@ -29,6 +29,7 @@ async function screenPoint(page: Page, testId: string, w: number, h: number, x: 
 
 async function openWorkspace(page: Page) {
   await page.goto(`${APP_URL}/fields/${fieldId}/register`);
+  await islandsReady(page);
   await page.waitForFunction(() => document.querySelectorAll('[data-testid="afm-pick"] canvas, [data-testid="fl-pick"] canvas').length >= 2);
   await page.waitForTimeout(1500); // tiles and detections load
 }

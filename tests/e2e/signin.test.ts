@@ -1,6 +1,6 @@
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import type { Browser } from 'playwright-core';
-import { launch, signInAs, screenshot } from '../support/browser';
+import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 
@@ -35,6 +35,7 @@ describe('sign-in in Chromium', () => {
   it('shows a clear message for a wrong password and stays on the sign-in page', async () => {
     const page = await browser.newPage();
     await page.goto(`${APP_URL}/signin`);
+    await islandsReady(page);
     // without JavaScript the form must not put the password into the address (a GET)
     expect(await page.locator('form[aria-label="Sign in"]').getAttribute('method')).toBe('post');
     await page.getByLabel('E-mail').fill(DEMO.analyst);

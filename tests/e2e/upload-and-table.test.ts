@@ -5,7 +5,7 @@
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { readFileSync } from 'node:fs';
 import type { Browser } from 'playwright-core';
-import { launch, signInAs, screenshot } from '../support/browser';
+import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
 import { APP_URL, signedIn } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { demoField } from '../support/demoField';
@@ -22,9 +22,12 @@ describe('upload in Chromium', () => {
     const page = await (await browser.newContext({ viewport: { width: 1400, height: 1000 } })).newPage();
     await signInAs(page, DEMO.biologist, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/upload`);
+    // the form's state is set up on hydration; typing before it would be reset
+    await islandsReady(page);
     const pair = makeDemoPair({ seed: 77, afmSizePx: 256, flSizePx: 96, nbVesicles: 15 });
     await page.getByLabel('Sample').selectOption({ label: 'HCP-002' });
     await page.getByLabel('Field name').fill('browser pair');
+    expect(await page.getByLabel('Sample').inputValue()).not.toBe('');
     await page.getByTestId('topography-0').setInputFiles({ name: 'HCP-002-b1-height.tif', mimeType: 'image/tiff', buffer: Buffer.from(pair.topographyTiff) });
     await page.getByTestId('fluorescence-0').setInputFiles({ name: 'HCP-002-b1-fluo.tif', mimeType: 'image/tiff', buffer: Buffer.from(pair.fluorescenceTiff) });
     const metas = page.getByTestId('file-meta');
@@ -33,6 +36,8 @@ describe('upload in Chromium', () => {
     expect(await metas.nth(1).textContent()).toContain('96 × 96 px · 16-bit uint · 3 pages · 65.00 nm/px (from resolution tags)');
     await screenshot(page, 'upload-read');
     await page.getByRole('button', { name: 'Confirm and save' }).click();
+    await page.getByTestId('upload-summary').waitFor();
+    expect(await page.getByTestId('upload-summary').textContent()).toContain('saved; processing has started');
     const saved = page.getByTestId('upload-summary').getByRole('link', { name: 'browser pair' });
     await saved.waitFor();
     await saved.click();
@@ -66,6 +71,7 @@ describe('vesicle table in Chromium', () => {
     const page = await ctx.newPage();
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/fields/${fieldId}`);
+    await islandsReady(page);
     const count = page.getByTestId('vesicle-count');
     await count.waitFor({ timeout: 30_000 });
     await page.waitForFunction(() => {

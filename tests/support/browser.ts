@@ -11,9 +11,15 @@ export async function launch(): Promise<Browser> {
   });
 }
 
+/** Waits until every React island on the page is hydrated (Astro drops the `ssr` attribute then). */
+export async function islandsReady(page: Page) {
+  await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'), undefined, { timeout: 30_000 });
+}
+
 /** Signs in through the real sign-in form. */
 export async function signInAs(page: Page, email: string, password: string) {
   await page.goto(`${APP_URL}/signin`);
+  await islandsReady(page);
   await page.getByLabel('E-mail').fill(email);
   await page.getByLabel('Password').fill(password);
   await page.getByRole('button', { name: 'Sign in' }).click();
