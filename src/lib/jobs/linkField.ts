@@ -10,7 +10,7 @@ import { fields, fieldFiles, samples, markerChannels, registrations, linkRuns, v
 import type { Storage } from '../storage/client';
 import { getBytes } from '../storage/objects';
 import { decodeInWorker } from '../imaging';
-import { analyzeField } from '../analysis/pipeline';
+import { analyzeField, fieldStages, type FieldStage } from '../analysis/pipeline';
 import { summariseLinkRun } from '../db/queries/linkRunSummaries';
 import { setFieldProgress } from './progress';
 import { controlThresholds } from './controlThresholds';
@@ -40,7 +40,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
 
     // analyzeField is synchronous: its stage reports are written in order once it returns
     // (the bar moves reading → analysing → saving), never after the final state.
-    const stages: [string, number][] = [];
+    const stages: [FieldStage, number][] = [];
     await progress('linking: analysing', 0.1);
     const result = analyzeField(
       {
@@ -54,7 +54,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       },
     );
 
-    for (const [stage, f] of stages.filter(([, f]) => f === 1)) await progress(`linking: ${stage} done`, 0.1 + 0.75 * ((['level', 'detect', 'measure', 'spots', 'register', 'link', 'summarise'].indexOf(stage) + f) / 7));
+    for (const [stage, f] of stages.filter(([, f]) => f === 1)) await progress(`linking: ${stage} done`, 0.1 + 0.75 * ((fieldStages.indexOf(stage) + f) / fieldStages.length));
     await progress('saving results', 0.9);
     const settings = {
       registrationVersion: reg.version,

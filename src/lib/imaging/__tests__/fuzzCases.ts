@@ -3,17 +3,9 @@
 import { writeTiff, type WriteTiffOptions } from '../writeTiff';
 import { entries, ifdOffsets, isLittleEndian, nextPointerAt, view } from './tiffBytes';
 
-/** mulberry32: small seeded PRNG (public domain, common practice); same seed → same cases. */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The geometry core's mulberry32: same seed → same cases. */
+import { mulberry32 as prng } from '../../analysis/geometry/mulberry32';
+export { prng };
 
 export function baseFiles(): Uint8Array[] {
   const img = (w: number, h: number, f: (i: number) => number) => ({ data: Array.from({ length: w * h }, (_, i) => f(i)), width: w, height: h });

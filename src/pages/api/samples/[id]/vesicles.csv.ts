@@ -1,23 +1,13 @@
 import type { APIRoute } from 'astro';
-import { z } from 'zod';
 import { handle } from '../../../../lib/http/respond';
-import { parseParams, parseQuery, IdParam } from '../../../../lib/http/parse';
-import { requireUser } from '../../../../lib/auth/session';
-import { getDb } from '../../../../lib/db/client';
 import { getPanel, pageVesicles } from '../../../../lib/db/queries/results';
-import { selectSampleResults } from '../../../../lib/reporting/access';
+import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
 import { vesicleCsvHeader, vesicleCsvRow } from '../../../../lib/reporting/exports';
 import { safeFileName } from '../../../../lib/reporting/csv';
 
-const Query = z.object({ source: z.enum(['released', 'current']).default('released') });
-
 /** Per-vesicle CSV, streamed page by page (keyset pagination), so any size holds one page in memory. */
 export const GET = handle(async (ctx) => {
-  requireUser(ctx.locals);
-  const { id } = parseParams(ctx.params, IdParam);
-  const { source } = parseQuery(ctx.url, Query);
-  const db = await getDb();
-  const sel = await selectSampleResults(db, ctx.locals, id, source);
+  const { db, sel } = await sampleSelectionFor(ctx);
   const panel = await getPanel(db, sel.sample.studyId);
   const channels = panel.map((c) => c.channelIndex);
   const pages = pageVesicles(db, sel.linkRunIds);
