@@ -1,11 +1,12 @@
 import type { Raster } from '../types';
+import { gaussianHalfKernel } from './gaussianHalfKernel';
 
 /** Tap pairs summed per pass over a row; wider kernels take several passes, narrower ones pad with zero weights. */
 const PAIRS = 6;
 
 /**
  * Gaussian blur streamed row by row: calls `emit(y, row)` for y = 0 … height−1 in order, with `row` the blurred
- * row y (float64). Separable, edges replicated, kernel cut at 3σ (99.7 % of the weight) and normalised to sum 1.
+ * row y (float64). Separable, edges replicated, kernel {@link gaussianHalfKernel} (cut at 3σ, normalised to sum 1).
  *
  * Only 2·radius + 1 horizontally blurred rows are kept (a float32 ring), and each input row is blurred once, so the
  * working set stays in cache. Both passes add mirrored taps before multiplying and sum six tap pairs per pass over
@@ -19,21 +20,14 @@ const PAIRS = 6;
  * @throws RangeError when sigmaPx is not a finite positive number
  */
 export function blurRows(raster: Raster, sigmaPx: number, emit: (y: number, row: Float64Array) => void): void {
-  if (!Number.isFinite(sigmaPx) || sigmaPx <= 0) {
-    throw new RangeError(`sigmaPx must be a finite positive number, got ${sigmaPx}`);
-  }
+  const kernel = gaussianHalfKernel(sigmaPx);
   const { width, height, data } = raster;
   // half kernel: half[0] is the centre tap, half[j] the weight at ±j; zero from radius + 1 to reach
-  const radius = Math.max(1, Math.ceil(3 * sigmaPx));
+  const radius = kernel.length - 1;
   const nbChunks = Math.ceil(radius / PAIRS);
   const reach = nbChunks * PAIRS;
   const half = new Float64Array(reach + 1);
-  let sum = 0;
-  for (let j = 0; j <= radius; j++) {
-    half[j] = Math.exp((-j * j) / (2 * sigmaPx * sigmaPx));
-    sum += j === 0 ? half[j] : 2 * half[j];
-  }
-  for (let j = 0; j <= radius; j++) half[j] /= sum;
+  half.set(kernel);
   const c = half[0];
 
   const ringRows = 2 * radius + 1;

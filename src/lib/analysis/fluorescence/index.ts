@@ -11,3 +11,5 @@ export * from './gaussianPixelFraction';
 export * from './samplePoisson';
 export * from './renderFluorescenceScene';
 export * from './fitSpotGaussian';
+export * from './gaussianHalfKernel';
+export { wasmSimdAvailable } from './wasm/gaussianKernel';

@@ -39,3 +39,10 @@ export interface SceneSpot {
 }
 
 export type { Raster };
+
+/**
+ * Which code runs a Gaussian filter: `'auto'` the WebAssembly SIMD kernel where the engine supports it and the
+ * JavaScript one otherwise, `'wasm'` only the WebAssembly kernel (an Error where it cannot run), `'js'` only the
+ * JavaScript kernel ({@link blurRows}).
+ */
+export type FilterImplementation = 'auto' | 'wasm' | 'js';

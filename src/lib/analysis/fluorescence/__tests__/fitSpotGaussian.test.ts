@@ -35,14 +35,14 @@ describe('fitSpotGaussian', () => {
 });
 
 describe('gaussianBlur', () => {
-  it('turns an impulse into the normalised sampled Gaussian and keeps a constant', () => {
+  it.each(['wasm', 'js'] as const)('(%s) turns an impulse into the normalised sampled Gaussian and keeps a constant', (implementation) => {
     // Analytic: the response to a unit impulse is the separable kernel exp(−j²/2σ²)/Σ, Σ over |j| ≤ ceil(3σ) (the
     // documented 3σ cut), so taps sum to 1. Float32 output: 1e-7 relative.
     const size = 21;
     const sigma = 1.5;
     const data = new Float32Array(size * size);
     data[10 * size + 10] = 1;
-    const out = gaussianBlur({ data, width: size, height: size }, sigma).data;
+    const out = gaussianBlur({ data, width: size, height: size }, sigma, { implementation }).data;
     const radius = Math.ceil(3 * sigma);
     let norm = 0;
     for (let j = -radius; j <= radius; j++) norm += Math.exp((-j * j) / (2 * sigma * sigma));
@@ -55,7 +55,7 @@ describe('gaussianBlur', () => {
       }
     }
     expect(total).toBeCloseTo(1, 6);
-    const flat = gaussianBlur({ data: new Float32Array(15 * 4).fill(7), width: 15, height: 4 }, 2.2).data;
+    const flat = gaussianBlur({ data: new Float32Array(15 * 4).fill(7), width: 15, height: 4 }, 2.2, { implementation }).data;
     for (const v of flat) expect(v).toBeCloseTo(7, 5);
   });
 });

@@ -12,7 +12,8 @@ function disk(size: number, radiusPx: number): Raster {
   return { data, width: size, height: size };
 }
 
-describe('laplacianOfGaussian', () => {
+// both kernels: the WebAssembly SIMD one that runs by default and the JavaScript fallback
+describe.each(['wasm', 'js'] as const)('laplacianOfGaussian (%s)', (implementation) => {
   it('normalised response to a disk of radius r peaks at sigma = r/√2', () => {
     // Source: REFERENCES.md §5 (Lindeberg 1998, IJCV 30(2):79–116; scale-normalised LoG, γ = 1): the centre
     // response ∝ (r²/σ²)·exp(−r²/2σ²) peaks at σ* = r/√2 = 7.071 px for r = 10; their discrete check found 7.10.
@@ -24,7 +25,7 @@ describe('laplacianOfGaussian', () => {
     let best = 0;
     let bestResponse = -Infinity;
     for (let sigma = 5; sigma <= 9.5; sigma += 0.05) {
-      const response = laplacianOfGaussian(image, sigma).data[40 * 81 + 40];
+      const response = laplacianOfGaussian(image, sigma, { implementation }).data[40 * 81 + 40];
       if (response > bestResponse) {
         bestResponse = response;
         best = sigma;
@@ -38,7 +39,7 @@ describe('laplacianOfGaussian', () => {
     // Derived from the same §5 expression divided by σ²: (r²/σ⁴)·exp(−r²/2σ²) peaks at σ = r/2 = 5 px, so
     // normalisation is what makes the optimum scale read the disk size.
     const image = disk(81, 10);
-    const raw = (s: number) => laplacianOfGaussian(image, s, { scaleNormalised: false }).data[40 * 81 + 40];
+    const raw = (s: number) => laplacianOfGaussian(image, s, { scaleNormalised: false, implementation }).data[40 * 81 + 40];
     expect(raw(5)).toBeGreaterThan(raw(7.07));
   });
 });
