@@ -1,7 +1,7 @@
 /**
  * The server-side guard used by every page and API route. The session cookie only carries the
- * user id; role and active flag are read from the database on each request, so a change by an
- * admin takes effect at once.
+ * user id; role, active flag and study roles come from the database, through a per-process memory
+ * that forgets a row as soon as it changes (accessCache.ts), so a change by an admin takes effect at once.
  */
 import { eq, and } from 'drizzle-orm';
 import { getToken } from '@auth/core/jwt';
@@ -9,6 +9,24 @@ import type { Db } from '../db/client';
 import { users, studyMembers, studies } from '../db/schema';
 import { HttpError, unauthorized, forbidden } from '../http/errors';
 import { canInStudy, type Action, type MemberRole, type Role, type SessionUser } from './permissions';
+import { AccessCache } from './accessCache';
+
+const g = globalThis as unknown as { __heightlightDb?: Db; __heightlightAccess?: AccessCache };
+
+/**
+ * The access memory of this web process ({@link AccessCache}), only for the app's own database handle
+ * (tests and scripts that build their own handle read the database every time). Off with HEIGHTLIGHT_ACCESS_CACHE=off.
+ */
+export function appAccessCache(db: Db): AccessCache | null {
+  if (db !== g.__heightlightDb || process.env.HEIGHTLIGHT_ACCESS_CACHE === 'off') return null;
+  if (!g.__heightlightAccess) {
+    const url = (db.$client.options as { connectionString?: string }).connectionString;
+    if (!url) return null;
+    g.__heightlightAccess = new AccessCache(url);
+    g.__heightlightAccess.start();
+  }
+  return g.__heightlightAccess;
+}
 
 /**
  * Reads the session cookie and loads the active user it names, or null. The encrypted session token
@@ -20,13 +38,23 @@ export async function loadSessionUser(db: Db, request: Request): Promise<Session
   if (!cookie.includes('session-token')) return null;
   // behind TLS Auth.js names the cookie __Secure-authjs.session-token (the proxy may speak http to us)
   const secureCookie = cookie.includes('__Secure-authjs.session-token');
-  const token = await getToken({ req: request, secret: process.env.AUTH_SECRET ?? '', secureCookie }).catch(() => null);
-  const id = typeof token?.uid === 'string' ? token.uid : null;
+  const decode = async () => {
+    const token = await getToken({ req: request, secret: process.env.AUTH_SECRET ?? '', secureCookie }).catch(() => null);
+    if (typeof token?.uid !== 'string') return null;
+    return { uid: token.uid, expiresAtMs: typeof token.exp === 'number' ? token.exp * 1000 : Date.now() + 60_000 };
+  };
+  const loadUser = async (id: string) => {
+    const [row] = await db
+      .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active })
+      .from(users)
+      .where(eq(users.id, id));
+    return row ?? null;
+  };
+  const cache = appAccessCache(db);
+  const token = cache ? await cache.token(`${secureCookie}|${cookie}`, decode) : await decode();
+  const id = token?.uid;
   if (!id) return null;
-  const [row] = await db
-    .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active })
-    .from(users)
-    .where(eq(users.id, id));
+  const row = cache ? await cache.user(id, () => loadUser(id)) : await loadUser(id);
   if (!row || !row.active) return null;
   return { id: row.id, email: row.email, name: row.name, role: row.role };
 }
@@ -56,13 +84,18 @@ export async function requireStudyAction(
   what = 'do this in this study',
 ): Promise<{ user: SessionUser; membership: MemberRole | null }> {
   const user = requireUser(locals);
-  const [row] = await db
-    .select({ id: studies.id, role: studyMembers.role })
-    .from(studies)
-    .leftJoin(studyMembers, and(eq(studyMembers.studyId, studies.id), eq(studyMembers.userId, user.id)))
-    .where(eq(studies.id, studyId));
+  const load = async () => {
+    const [r] = await db
+      .select({ id: studies.id, role: studyMembers.role })
+      .from(studies)
+      .leftJoin(studyMembers, and(eq(studyMembers.studyId, studies.id), eq(studyMembers.userId, user.id)))
+      .where(eq(studies.id, studyId));
+    return r ? { role: r.role } : null;
+  };
+  const cache = appAccessCache(db);
+  const row = cache ? await cache.membership(studyId, user.id, load) : await load();
   if (!row) throw new HttpError(404, 'not_found', 'That study does not exist.');
-  const membership = row.role ?? null;
+  const membership = (row.role ?? null) as MemberRole | null;
   if (!canInStudy(user, membership, action)) throw forbidden(what);
   return { user, membership };
 }

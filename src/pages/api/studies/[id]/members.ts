@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { and, eq } from 'drizzle-orm';
 import { handle } from '../../../../lib/http/respond';
 import { parseJson, parseParams, IdParam } from '../../../../lib/http/parse';
-import { requireStudyAction } from '../../../../lib/auth/session';
+import { appAccessCache, requireStudyAction } from '../../../../lib/auth/session';
 import { notFound } from '../../../../lib/http/errors';
 import { getDb } from '../../../../lib/db/client';
 import { studyMembers, users } from '../../../../lib/db/schema';
@@ -24,6 +24,7 @@ export const PUT = handle(async (ctx) => {
     await db.insert(studyMembers).values({ studyId: id, userId: body.userId, role: body.role })
       .onConflictDoUpdate({ target: [studyMembers.studyId, studyMembers.userId], set: { role: body.role } });
   }
+  appAccessCache(db)?.forget({ studyId: id, memberId: body.userId });
   await audit(db, { action: 'membership.changed', actorId: user.id, actorEmail: user.email, targetType: 'study', targetId: id, ip: clientAddress(ctx), details: body });
   return new Response(null, { status: 204 });
 }) satisfies APIRoute;
