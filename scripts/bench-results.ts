@@ -7,7 +7,7 @@
 import { performance } from 'node:perf_hooks';
 import { createDb } from '../src/lib/db/client';
 import {
-  getChecklistInput, getCurrentLinkRunIds, getLatestRelease, getSampleContext, getSampleResults, getStudyComparison,
+  getChecklistInput, getCurrentLinkRunIds, getSampleContext, getSampleResults, getSampleSelectionFacts, getStudyComparison,
   listReleasedSamples, pageVesicles,
 } from '../src/lib/db/queries/results';
 import { summariseLinkRun } from '../src/lib/db/queries/linkRunSummaries';
@@ -107,7 +107,7 @@ async function main() {
   const studyId = await fill();
   const [sample] = await q(`select id from samples where study_id = $1 order by code limit 1`, [studyId]);
   const ctx = (await getSampleContext(db, sample.id))!;
-  const release = (await getLatestRelease(db, sample.id))!;
+  const release = (await getSampleSelectionFacts(db, sample.id))!.latestRelease!;
   const sel = { source: 'released' as const, release, linkRunIds: release.linkRunIds };
   const study = { id: studyId, name: 'bench' };
   const admin = { id: '00000000-0000-4000-8000-000000000000', email: 'bench@invalid', name: 'bench', role: 'admin' as const };

@@ -8,7 +8,7 @@ import { randomUUID } from 'node:crypto';
 import { eq, sql } from 'drizzle-orm';
 import { AccessCache, type CachedUser } from '../../src/lib/auth/accessCache';
 import { createDb, type Db } from '../../src/lib/db/client';
-import { studies, studyMembers, users } from '../../src/lib/db/schema';
+import { markerChannels, studies, studyMembers, users } from '../../src/lib/db/schema';
 
 const url = process.env.DATABASE_URL!;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -109,6 +109,20 @@ describe('access memory shared by two processes', () => {
     expect(await waitFor('biologist')).toBe('biologist');
     await db.delete(studyMembers).where(sql`${studyMembers.studyId} = ${studyId} and ${studyMembers.userId} = ${userId}`);
     expect(await waitFor(null)).toBe(null);
+  });
+
+  it('forgets a study\'s marker panel when a channel changes', async () => {
+    const readPanel = async () => ({ channels: (await db.select({ channelIndex: markerChannels.channelIndex, marker: markerChannels.marker }).from(markerChannels).where(eq(markerChannels.studyId, studyId))) });
+    expect((await a.panel(studyId, readPanel))!.channels).toEqual([]);
+    await db.insert(markerChannels).values({ studyId, channelIndex: 0, marker: 'CD63', fluorophore: 'probe', emissionNm: 520 });
+    const until = Date.now() + 5000;
+    let seen = await a.panel(studyId, readPanel);
+    while (seen!.channels.length === 0 && Date.now() < until) {
+      await sleep(10);
+      seen = await a.panel(studyId, readPanel);
+    }
+    expect(seen!.channels).toEqual([{ channelIndex: 0, marker: 'CD63' }]);
+    await db.delete(markerChannels).where(eq(markerChannels.studyId, studyId));
   });
 
   it('does not remember a row read while the same key was being forgotten', async () => {

@@ -1,11 +1,12 @@
 /**
  * A short memory, per web process, of the facts every signed-in request checks before its own work: whom the
- * session cookie names, that person's role and active flag, and their role in a study. Read from PostgreSQL on
+ * session cookie names, that person's role and active flag, and their role in a study; and two small facts most
+ * results requests read: a study's marker panel and a sample's study. Read from PostgreSQL on
  * each request they cost two to three round trips, most of a small request's cost under load
  * (docs/benchmarks.md, "Load").
  *
  * Freshness, which access rules need:
- * - Triggers on `users` and `study_members` (migration 0004) announce every change on the channel
+ * - Triggers on `users`, `study_members` (migration 0004), `marker_channels` and `samples` (0005) announce every change on the channel
  *   `heightlight_access`, whoever makes it; each process listens and forgets the named entries.
  * - The process that makes a change also forgets at once ({@link AccessCache.forget}), so its own next request
  *   never sees the old row, even before the announcement arrives.
@@ -20,6 +21,10 @@ export const ACCESS_CHANNEL = 'heightlight_access';
 
 export interface CachedUser { id: string; email: string; name: string; role: Role; active: boolean }
 export interface CachedMembership { role: string | null }
+/** A study's marker panel in channel order (what every results reply labels its columns with). */
+export interface CachedPanel { channels: { channelIndex: number; marker: string }[] }
+/** The two facts of a sample that never change: its study and its code. */
+export interface CachedSample { studyId: string; code: string }
 /** A decoded session cookie: the user id it names and when it stops being valid (ms since epoch). */
 export interface CachedToken { uid: string; expiresAtMs: number }
 
@@ -36,6 +41,8 @@ export class AccessCache {
   private readonly users: LRUCache<string, CachedUser>;
   private readonly memberships: LRUCache<string, CachedMembership>;
   private readonly tokens: LRUCache<string, CachedToken>;
+  private readonly panels: LRUCache<string, CachedPanel>;
+  private readonly samples: LRUCache<string, CachedSample>;
   private listener: pg.Client | null = null;
   private listening = false;
   private stopped = false;
@@ -48,6 +55,8 @@ export class AccessCache {
     const max = opts.max ?? 10_000;
     this.users = new LRUCache({ max, ttl });
     this.memberships = new LRUCache({ max, ttl });
+    this.panels = new LRUCache({ max, ttl });
+    this.samples = new LRUCache({ max, ttl });
     // a token's content never changes; it is kept until its own expiry (checked on read) or pushed out
     this.tokens = new LRUCache({ max });
   }
@@ -105,6 +114,16 @@ export class AccessCache {
     return this.through(this.memberships, `${studyId}:${userId}`, load);
   }
 
+  /** A study's marker panel (forgotten when any of its channels changes). */
+  async panel(studyId: string, load: () => Promise<CachedPanel | null>): Promise<CachedPanel | null> {
+    return this.through(this.panels, studyId, load);
+  }
+
+  /** A sample's study and code (these never change; the entry goes with its time to live or a deletion). */
+  async sample(sampleId: string, load: () => Promise<CachedSample | null>): Promise<CachedSample | null> {
+    return this.through(this.samples, sampleId, load);
+  }
+
   /** The decoded session for a cookie header, from memory while it is valid, else from `decode`. */
   async token(cookieKey: string, decode: () => Promise<CachedToken | null>): Promise<CachedToken | null> {
     const hit = this.listening ? this.tokens.get(cookieKey) : undefined;
@@ -115,16 +134,20 @@ export class AccessCache {
   }
 
   /** Forgets what this process knows of a user or a membership (call after changing it). */
-  forget(what: { userId?: string; studyId?: string; memberId?: string }): void {
+  forget(what: { userId?: string; studyId?: string; memberId?: string; panelOf?: string; sampleId?: string }): void {
     this.generation++;
     if (what.userId) this.users.delete(what.userId);
     if (what.studyId && what.memberId) this.memberships.delete(`${what.studyId}:${what.memberId}`);
+    if (what.panelOf) this.panels.delete(what.panelOf);
+    if (what.sampleId) this.samples.delete(what.sampleId);
   }
 
   private onAnnouncement(payload: string): void {
     const [kind, a, b] = payload.split(':');
     if (kind === 'user') this.forget({ userId: a });
     else if (kind === 'member') this.forget({ studyId: a, memberId: b });
+    else if (kind === 'panel') this.forget({ panelOf: a });
+    else if (kind === 'sample') this.forget({ sampleId: a });
     else this.clear();
   }
 
@@ -133,6 +156,8 @@ export class AccessCache {
     this.users.clear();
     this.memberships.clear();
     this.tokens.clear();
+    this.panels.clear();
+    this.samples.clear();
   }
 
   private async through<V extends object>(cache: LRUCache<string, V>, key: string, load: () => Promise<V | null>): Promise<V | null> {

@@ -7,7 +7,7 @@ import type { Db } from '../db/client';
 import { requireStudyAction } from '../auth/session';
 import { canInStudy, type SessionUser } from '../auth/permissions';
 import { HttpError, notFound } from '../http/errors';
-import { getCurrentLinkRunIds, getLatestRelease, getSampleContext, type SampleContext } from '../db/queries/results';
+import { getSampleSelectionFacts, type SampleContext } from '../db/queries/results';
 import type { ReleaseInfo, ResultSource } from './types';
 
 export interface ResultsSelection {
@@ -35,11 +35,12 @@ export const notReleased = () =>
  * @throws HttpError 401 anonymous, 404 no such sample, 403 not a member / not released / preview not allowed, 404 not_released for lab members
  */
 export async function selectSampleResults(db: Db, locals: App.Locals, sampleId: string, source: ResultSource): Promise<ResultsSelection> {
-  const sample = await getSampleContext(db, sampleId);
-  if (!sample) {
+  const facts = await getSampleSelectionFacts(db, sampleId);
+  if (!facts) {
     if (!locals.user) throw new HttpError(401, 'unauthorized', 'Sign in to continue.');
     throw notFound('That sample');
   }
+  const { sample } = facts;
   let access;
   try {
     access = await requireStudyAction(db, locals, sample.studyId, 'results.read', 'see results of this study');
@@ -51,9 +52,9 @@ export async function selectSampleResults(db: Db, locals: App.Locals, sampleId: 
   const seesLab = canInStudy(user, membership, 'study.read');
   if (source === 'current') {
     if (!seesLab) throw notReleased();
-    return { user, sample, source, release: null, linkRunIds: await getCurrentLinkRunIds(db, sample.id), seesLab };
+    return { user, sample, source, release: null, linkRunIds: facts.currentLinkRunIds, seesLab };
   }
-  const release = await getLatestRelease(db, sample.id);
+  const release = facts.latestRelease;
   if (!release) {
     if (!seesLab) throw notReleased();
     throw new HttpError(404, 'not_released', `Sample ${sample.code} has no release yet. Approve all its fields and release it, or preview the current analysis (source=current).`);

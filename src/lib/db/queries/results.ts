@@ -7,6 +7,7 @@
  */
 import type { Db } from '../client';
 import type { SessionUser } from '../../auth/permissions';
+import { appAccessCache } from '../../auth/session';
 import { estimateProportion } from '../../reporting/estimate';
 import { phenotypeLabel } from '../../reporting/phenotypeLabel';
 import type {
@@ -64,22 +65,38 @@ export async function getSampleContext(db: Db, sampleId: string): Promise<Sample
 
 /** The study's marker panel in channel order. */
 export async function getPanel(db: Db, studyId: string): Promise<Panel> {
-  return rows<{ channelIndex: number; marker: string }>(
+  const load = () => rows<{ channelIndex: number; marker: string }>(
     db,
     `select channel_index as "channelIndex", marker from marker_channels where study_id = $1 order by channel_index`,
     [studyId],
   );
+  const cache = appAccessCache(db);
+  return cache ? ((await cache.panel(studyId, async () => ({ channels: await load() })))!).channels : load();
 }
 
-/** The highest release version of a sample with its link runs, or null when never released. */
-export async function getLatestRelease(db: Db, sampleId: string): Promise<(ReleaseInfo & { linkRunIds: string[] }) | null> {
-  const [row] = await rows<{ id: string; version: number; releasedAt: Date; linkRunIds: string[] }>(
+/**
+ * What the results guard needs about a sample, in one round trip: the sample, its current link runs and its
+ * latest release (null when never released). Null when there is no such sample.
+ */
+export async function getSampleSelectionFacts(db: Db, sampleId: string): Promise<{
+  sample: SampleContext; currentLinkRunIds: string[]; latestRelease: (ReleaseInfo & { linkRunIds: string[] }) | null;
+} | null> {
+  const [row] = await rows<SampleContext & { currentLinkRunIds: string[]; release: { id: string; version: number; releasedAt: string; linkRunIds: string[] } | null }>(
     db,
-    `select id, version, released_at as "releasedAt", link_run_ids as "linkRunIds"
-       from releases where sample_id = $1 order by version desc limit 1`,
+    `select s.id, s.code, s.group_label as "groupLabel", s.control_kind as "controlKind", s.study_id as "studyId", st.name as "studyName",
+            array(select lr.id::text from link_runs lr join fields f on f.id = lr.field_id where f.sample_id = s.id and lr.current order by lr.id) as "currentLinkRunIds",
+            (select json_build_object('id', r.id, 'version', r.version, 'releasedAt', r.released_at, 'linkRunIds', r.link_run_ids)
+               from releases r where r.sample_id = s.id order by r.version desc limit 1) as release
+       from samples s join studies st on st.id = s.study_id where s.id = $1`,
     [sampleId],
   );
-  return row ? { id: row.id, version: row.version, releasedAt: row.releasedAt.toISOString(), linkRunIds: row.linkRunIds } : null;
+  if (!row) return null;
+  const { currentLinkRunIds, release, ...sample } = row;
+  return {
+    sample,
+    currentLinkRunIds,
+    latestRelease: release ? { id: release.id, version: release.version, releasedAt: new Date(release.releasedAt).toISOString(), linkRunIds: release.linkRunIds } : null,
+  };
 }
 
 /** Ids of the current link runs of the sample's fields (what a new release would freeze). */
@@ -160,7 +177,7 @@ export async function getSampleResults(
   const ids = selection.linkRunIds;
   const D = DIAMETER_BINS;
   const H = HEIGHT_BINS;
-  const [[quartiles], phen, hist, fieldRows, [fa]] = await Promise.all([
+  const [[quartiles], phen, hist, fieldRows] = await Promise.all([
     // quartiles need the values themselves; everything else comes from the link runs' summaries
     rows<{ dq: number[] | null; hq: number[] | null }>(
       db,
@@ -201,7 +218,6 @@ export async function getSampleResults(
         order by f.name, f.id`,
       [sample.id, ids],
     ),
-    rows<{ n: number }>(db, `select count(distinct field_id)::int as n from link_runs where id = any($1::uuid[])`, [ids]),
   ]);
 
   const n = phen.reduce((t, p) => t + p.n, 0);
@@ -244,7 +260,8 @@ export async function getSampleResults(
     source: selection.source,
     release: selection.release ? { id: selection.release.id, version: selection.release.version, releasedAt: selection.release.releasedAt } : null,
     panel,
-    fieldsAnalysed: fa.n,
+    // every link run of the selection belongs to one of these fields (they are the sample's, with a run in it)
+    fieldsAnalysed: fieldRows.length,
     vesicles: n,
     markers,
     phenotypes,

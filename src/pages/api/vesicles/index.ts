@@ -5,7 +5,7 @@ import { requireUser } from '../../../lib/auth/session';
 import { requireScopeAction } from '../../../lib/auth/scopeAccess';
 import { getDb } from '../../../lib/db/client';
 import { pageVesicles } from '../../../lib/db/queries/vesicles';
-import { listPanel } from '../../../lib/db/queries/studies';
+import { getPanel } from '../../../lib/db/queries/results';
 import { VesicleQuery } from '../../../lib/schemas/vesicles';
 
 /** One page of the vesicle table of a field or a sample (current linking), sorted and filtered on the server. */
@@ -14,6 +14,6 @@ export const GET = handle(async (ctx) => {
   const q = parseQuery(ctx.url, VesicleQuery);
   const db = await getDb();
   const { studyId } = await requireScopeAction(db, ctx.locals, q, 'study.read', 'see vesicle tables');
-  const [page, panel] = await Promise.all([pageVesicles(db, q), listPanel(db, studyId)]);
+  const [page, panel] = await Promise.all([pageVesicles(db, q), getPanel(db, studyId)]);
   return Response.json({ ...page, markers: panel.map((p) => p.marker) });
 }) satisfies APIRoute;

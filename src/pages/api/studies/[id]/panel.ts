@@ -3,7 +3,7 @@ import { count, eq } from 'drizzle-orm';
 import { handle } from '../../../../lib/http/respond';
 import { parseJson, parseParams, IdParam } from '../../../../lib/http/parse';
 import { conflict } from '../../../../lib/http/errors';
-import { requireStudyAction } from '../../../../lib/auth/session';
+import { appAccessCache, requireStudyAction } from '../../../../lib/auth/session';
 import { getDb } from '../../../../lib/db/client';
 import { markerChannels, fields, samples } from '../../../../lib/db/schema';
 import { listPanel } from '../../../../lib/db/queries/studies';
@@ -29,6 +29,7 @@ export const PUT = handle(async (ctx) => {
     await tx.delete(markerChannels).where(eq(markerChannels.studyId, id));
     await tx.insert(markerChannels).values(body.channels.map((c, channelIndex) => ({ ...c, studyId: id, channelIndex })));
   });
+  appAccessCache(db)?.forget({ panelOf: id });
   await audit(db, { action: 'panel.changed', actorId: user.id, actorEmail: user.email, targetType: 'study', targetId: id, ip: clientAddress(ctx), details: { panel: body.channels.map((c) => c.marker) } });
   return Response.json({ channels: await listPanel(db, id) });
 }) satisfies APIRoute;
