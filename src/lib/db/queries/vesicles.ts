@@ -1,10 +1,8 @@
 /** Server-side paging, sorting and filtering of the current vesicle rows of a field or a sample. */
-import { and, asc, count, desc, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
+import { and, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '../client';
 import { vesicles, linkRuns } from '../schema';
 import type { VesicleQuery } from '../../schemas/vesicles';
-
-const SORT = { index: vesicles.index, heightNm: vesicles.heightNm, diameterNm: vesicles.diameterNm, volumeNm3: vesicles.volumeNm3, phenotype: vesicles.phenotype } as const;
 
 export function vesicleFilter(q: VesicleQuery): SQL {
   const where: SQL[] = [q.fieldId ? eq(vesicles.fieldId, q.fieldId) : eq(vesicles.sampleId, q.sampleId!)];
@@ -18,22 +16,45 @@ export function vesicleFilter(q: VesicleQuery): SQL {
   return and(...where)!;
 }
 
+/** Sort columns by query name; the only text of the request that reaches the SQL, and only through this map. */
+const SORT_SQL = { index: 'index', heightNm: 'height_nm', diameterNm: 'diameter_nm', volumeNm3: 'volume_nm3', phenotype: 'phenotype' } as const;
+
+/**
+ * One page of the table, its total and the phenotype counts in a single round trip (three subqueries, each
+ * free to use the (sample|field, column) indexes). Written as SQL text rather than through Drizzle's builder:
+ * on the busiest route, building the queries cost more than PostgreSQL took to answer them (docs/benchmarks.md, "Load").
+ */
 export async function pageVesicles(db: Db, q: VesicleQuery) {
-  const where = vesicleFilter(q);
-  const order = q.dir === 'asc' ? asc(SORT[q.sort]) : desc(SORT[q.sort]);
-  const base = q.fieldId ? eq(vesicles.fieldId, q.fieldId) : eq(vesicles.sampleId, q.sampleId!);
-  const current = sql`${vesicles.linkRunId} in (select ${linkRuns.id} from ${linkRuns} where ${linkRuns.current})`;
-  const filtered = q.minHeightNm !== undefined || q.maxHeightNm !== undefined || q.minDiameterNm !== undefined || q.maxDiameterNm !== undefined || !!q.phenotype;
-  const [rows, counted, phenotypes] = await Promise.all([
-    db.select({
-      id: vesicles.id, fieldId: vesicles.fieldId, index: vesicles.index, xAfmPx: vesicles.xAfmPx, yAfmPx: vesicles.yAfmPx, xFlPx: vesicles.xFlPx, yFlPx: vesicles.yFlPx,
-      heightNm: vesicles.heightNm, diameterNm: vesicles.diameterNm, volumeNm3: vesicles.volumeNm3, sphereDiameterNm: vesicles.sphereDiameterNm,
-      contactAngleDeg: vesicles.contactAngleDeg, outOfFrame: vesicles.outOfFrame, phenotype: vesicles.phenotype, markers: vesicles.markers,
-    }).from(vesicles).where(where).orderBy(order, asc(vesicles.id)).limit(q.pageSize).offset(q.page * q.pageSize),
-    // unfiltered, the total is the sum of the phenotype counts: one query fewer on the common path
-    filtered ? db.select({ n: count() }).from(vesicles).where(where) : Promise.resolve(null),
-    db.select({ phenotype: vesicles.phenotype, n: count() }).from(vesicles).where(and(base, current)).groupBy(vesicles.phenotype).orderBy(desc(count())),
-  ]);
-  const total = counted ? counted[0].n : phenotypes.reduce((t, p) => t + p.n, 0);
-  return { rows, total, phenotypes };
+  const params: unknown[] = [q.fieldId ?? q.sampleId];
+  const scope = `${q.fieldId ? 'field_id' : 'sample_id'} = $1 and link_run_id in (select id from link_runs where current)`;
+  const filters: string[] = [];
+  const add = (clause: string, value: unknown) => { params.push(value); filters.push(clause.replace('?', `$${params.length}`)); };
+  if (q.minHeightNm !== undefined) add('height_nm >= ?', q.minHeightNm);
+  if (q.maxHeightNm !== undefined) add('height_nm <= ?', q.maxHeightNm);
+  if (q.minDiameterNm !== undefined) add('diameter_nm >= ?', q.minDiameterNm);
+  if (q.maxDiameterNm !== undefined) add('diameter_nm <= ?', q.maxDiameterNm);
+  if (q.phenotype) add('phenotype = ?', q.phenotype);
+  const where = [scope, ...filters].join(' and ');
+  params.push(q.pageSize, q.page * q.pageSize);
+  const [limit, offset] = [`$${params.length - 1}`, `$${params.length}`];
+  const text = `select
+    (select coalesce(json_agg(p), '[]'::json) from (
+       select id, field_id as "fieldId", index, x_afm_px as "xAfmPx", y_afm_px as "yAfmPx", x_fl_px as "xFlPx", y_fl_px as "yFlPx",
+              height_nm as "heightNm", diameter_nm as "diameterNm", volume_nm3 as "volumeNm3", sphere_diameter_nm as "sphereDiameterNm",
+              contact_angle_deg as "contactAngleDeg", out_of_frame as "outOfFrame", phenotype, markers
+         from vesicles where ${where}
+        order by ${SORT_SQL[q.sort]} ${q.dir === 'asc' ? 'asc' : 'desc'}, id asc limit ${limit} offset ${offset}) p) as rows,
+    ${filters.length ? `(select count(*)::int from vesicles where ${where})` : 'null::int'} as filtered_total,
+    (select coalesce(json_agg(ph), '[]'::json) from (
+       select phenotype, count(*)::int as n from vesicles where ${scope} group by phenotype order by count(*) desc) ph) as phenotypes`;
+  const [row] = (await db.$client.query(text, params)).rows as { rows: VesicleRowOut[]; filtered_total: number | null; phenotypes: { phenotype: string; n: number }[] }[];
+  // unfiltered, the total is the sum of the phenotype counts
+  const total = row.filtered_total ?? row.phenotypes.reduce((t, p) => t + p.n, 0);
+  return { rows: row.rows, total, phenotypes: row.phenotypes };
 }
+
+type VesicleRowOut = {
+  id: number; fieldId: string; index: number; xAfmPx: number; yAfmPx: number; xFlPx: number | null; yFlPx: number | null;
+  heightNm: number; diameterNm: number; volumeNm3: number; sphereDiameterNm: number | null; contactAngleDeg: number | null;
+  outOfFrame: boolean; phenotype: string; markers: unknown;
+};
