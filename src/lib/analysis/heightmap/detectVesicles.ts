@@ -1,10 +1,10 @@
 import type { Raster } from '../types';
+import { floodBasins, levelScale } from './floodBasins';
+import { runsAbove } from './foregroundRuns';
+import { linkRuns } from './linkRuns';
+import { AREA, EDGE, emptyRegions, FIRST, PEAK, REGION_FIELDS, X_MAX, X_MIN, Y_MAX, Y_MIN } from './regionFields';
 import type { DetectedRegion, DetectVesiclesOptions, DetectVesiclesResult } from './types';
 import { validateRaster } from './validateRaster';
-
-const NB_LEVELS = 1 << 16;
-const NEIGHBOUR_DX = [-1, 0, 1, -1, 1, -1, 0, 1];
-const NEIGHBOUR_DY = [-1, -1, -1, 0, 0, 1, 1, 1];
 
 /**
  * Find vesicles in a levelled height map: foreground = heights above the threshold, split into
@@ -17,10 +17,17 @@ const NEIGHBOUR_DY = [-1, -1, -1, 0, 0, 1, 1, 1];
  * fiducial candidates. Written here rather than taken from image-js because its watershed works
  * on integer images, and a linear-time flood of the foreground only is what the speed budget needs.
  *
+ * The foreground is first split into 8-connected components by run-based labelling (see
+ * {@link labelComponents}), with each component's area, box, highest and lowest pixel. A component whose height
+ * span is below `minProminenceNm`, or whose box is too small for two peaks `minSeparationPx` apart, cannot split
+ * and is one region; only the other components are flooded. The regions, labels and diagnostics are those of
+ * flooding the whole foreground.
+ *
  * @param levelled - levelled heights (nm), background near 0
  * @param options - threshold (nm) and filters; see {@link DetectVesiclesOptions}
  * @returns label map, vesicles and fiducial candidates ordered by peak position (row, then column), diagnostics
  * @throws RangeError for a malformed raster or a non-finite threshold
+ * @see He L, Chao Y, Suzuki K 2008, IEEE Trans Image Process 17(5):749–756 (run-based labelling; from memory)
  * @see Beucher S, Lantuéjoul C 1979, Int Workshop on Image Processing, Rennes (watershed)
  * @see Edelsbrunner H, Letscher D, Zomorodian A 2002, Discrete Comput Geom 28:511–533 (persistence: the younger peak merges at the saddle)
  */
@@ -32,188 +39,258 @@ export function detectVesicles(levelled: Raster, options: DetectVesiclesOptions)
   validateRaster(levelled, 'levelled');
   if (!Number.isFinite(thresholdNm)) throw new RangeError(`thresholdNm must be finite, got ${thresholdNm}`);
   const { data, width, height } = levelled;
-  const n = width * height;
-  const labels = new Int32Array(n);
-
-  // foreground, listed in raster order in the front of `labels` (filled with labels only at the end), so the
-  // passes below touch foreground pixels only
-  const foreground = labels;
-  let m = 0;
-  let hMax = -Infinity;
-  for (let i = 0; i < n; i++) {
-    const h = data[i];
-    if (h > thresholdNm) {
-      foreground[m++] = i;
-      if (h > hMax) hMax = h;
-    }
+  const labels = new Int32Array(width * height);
+  // every helper below takes arrays and numbers only: a short-lived object reaching optimised code costs a
+  // deoptimisation after each full collection (see surfaceRow's SurfaceFrame)
+  const { nbRuns, start, end, row, rowFirst, nbPixels } = runsAbove(data, width, height, thresholdNm);
+  if (nbPixels === 0) {
+    const diagnostics = { thresholdNm, nbForegroundPx: 0, nbRegions: 0, nbSplits: 0, nbDroppedEdge: 0, nbDroppedSmall: 0, nbDroppedLow: 0 };
+    return { labels, width, height, vesicles: [], fiducialCandidates: [], diagnostics };
   }
-  const emptyDiagnostics = { thresholdNm, nbForegroundPx: m, nbRegions: 0, nbSplits: 0, nbDroppedEdge: 0, nbDroppedSmall: 0, nbDroppedLow: 0 };
-  if (m === 0) return { labels, width, height, vesicles: [], fiducialCandidates: [], diagnostics: emptyDiagnostics };
+  const runLabel = new Int32Array(nbRuns);
+  const nbComponents = linkRuns(start, end, rowFirst, height, 8, runLabel);
+  const components = emptyRegions(nbComponents + 1, width, height); // index = component label
+  const heightSpan = new Float64Array(2 * (nbComponents + 1)); // max, min (nm)
+  componentStats(data, width, height, start, end, row, runLabel, components, heightSpan);
+  const hMax = highest(heightSpan);
+  const scale = levelScale(hMax, thresholdNm);
+  const { first: runsFirst, list: runsList } = runsByComponent(runLabel, nbComponents);
 
-  const order = orderByHeight(data, labels, m, thresholdNm, hMax);
+  // a component splits only if two of its pixels differ by the prominence and two lie the separation apart; the
+  // others are one region each, and only the rest is flooded
+  const flooded = new Uint8Array(nbComponents + 1);
+  const nbFlooded = markSplittable(components, heightSpan, minProminenceNm, minSeparationPx, flooded);
+  const list = floodList(width, start, end, row, runsFirst, runsList, components, flooded, nbFlooded);
+  const basins = floodBasins(data, width, height, list.first, list.pixels, list.x, list.y, list.boxes, hMax, scale, minProminenceNm, minSeparationPx);
 
-  const { parent, component } = flood(data, width, height, order, minProminenceNm, minSeparationPx);
+  // regions: the basins, then the single-region components, each in raster order of its first flooded pixel
+  const nbRegions = basins.nbBasins + nbComponents - nbFlooded;
+  const regions = new Int32Array(nbRegions * REGION_FIELDS);
+  regions.set(basins.regions);
+  const componentOfRegion = new Int32Array(nbRegions).fill(-1);
+  appendSingleRegions(data, width, start, end, row, runsFirst, runsList, components, heightSpan, flooded, hMax, scale, basins.nbBasins, regions, componentOfRegion);
+  const regionOrder = Int32Array.from({ length: nbRegions }, (_, i) => i);
+  regionOrder.sort((a, b) => regions[a * REGION_FIELDS + FIRST] - regions[b * REGION_FIELDS + FIRST]);
 
-  // region statistics, indexed by root rank
-  const area = new Int32Array(m);
-  const xMin = new Int32Array(m).fill(width);
-  const yMin = new Int32Array(m).fill(height);
-  const xMax = new Int32Array(m).fill(-1);
-  const yMax = new Int32Array(m).fill(-1);
-  const touchesEdge = new Uint8Array(m);
-  const peakOf = new Int32Array(m); // highest pixel (the basin's first pixel is only highest up to the quantisation)
-  const rootOf = new Int32Array(m);
-  for (let r = 0; r < m; r++) {
-    const root = find(parent, r);
-    rootOf[r] = root;
-    const p = order[r];
-    const x = p % width;
-    const y = (p - x) / width;
-    if (area[root] === 0 || data[p] > data[peakOf[root]]) peakOf[root] = p;
-    area[root]++;
-    if (x < xMin[root]) xMin[root] = x;
-    if (x > xMax[root]) xMax[root] = x;
-    if (y < yMin[root]) yMin[root] = y;
-    if (y > yMax[root]) yMax[root] = y;
-    if (x === 0 || y === 0 || x === width - 1 || y === height - 1) touchesEdge[root] = 1;
-  }
-  const regionRoots: number[] = [];
-  let nbComponents = 0;
-  for (let r = 0; r < m; r++) {
-    if (parent[r] === r) regionRoots.push(r);
-    if (find(component, r) === r) nbComponents++;
-  }
-  regionRoots.sort((a, b) => order[a] - order[b]);
-
-  // filter and label
-  const labelOfRoot = new Int32Array(m);
+  const labelOfRegion = new Int32Array(nbRegions);
   const vesicles: DetectedRegion[] = [];
   const fiducialCandidates: DetectedRegion[] = [];
-  let nbDroppedEdge = 0;
-  let nbDroppedSmall = 0;
-  let nbDroppedLow = 0;
-  let nextLabel = 1;
-  for (const root of regionRoots) {
-    const peak = peakOf[root];
-    const maxHeightNm = data[peak];
-    if (dropEdgeRegions && touchesEdge[root]) { nbDroppedEdge++; continue; }
-    if (area[root] < minAreaPx) { nbDroppedSmall++; continue; }
-    if (maxHeightNm < minHeightNm) { nbDroppedLow++; continue; }
-    const label = nextLabel++;
-    labelOfRoot[root] = label;
-    const region: DetectedRegion = {
-      label, areaPx: area[root], maxHeightNm,
-      peakPx: { x: peak % width, y: Math.floor(peak / width) },
-      xMin: xMin[root], yMin: yMin[root], xMax: xMax[root], yMax: yMax[root],
-    };
-    (maxHeightNm > beadMinHeightNm ? fiducialCandidates : vesicles).push(region);
+  const dropped = filterRegions(data, width, regions, regionOrder, minAreaPx, minHeightNm, dropEdgeRegions, labelOfRegion);
+  for (let k = 0; k < nbRegions; k++) {
+    const i = regionOrder[k];
+    if (labelOfRegion[i] === 0) continue;
+    const region = describeRegion(data, width, regions, i, labelOfRegion[i]);
+    (region.maxHeightNm > beadMinHeightNm ? fiducialCandidates : vesicles).push(region);
   }
-  for (let r = 0; r < m; r++) labels[order[r]] = labelOfRoot[rootOf[r]];
+  writeLabels(labels, width, start, end, row, runsFirst, runsList, basins.order, basins.basinOfRank, componentOfRegion, labelOfRegion, basins.nbBasins);
 
   return {
     labels, width, height, vesicles, fiducialCandidates,
     diagnostics: {
-      thresholdNm, nbForegroundPx: m, nbRegions: regionRoots.length, nbSplits: regionRoots.length - nbComponents,
-      nbDroppedEdge, nbDroppedSmall, nbDroppedLow,
+      thresholdNm, nbForegroundPx: nbPixels, nbRegions, nbSplits: nbRegions - nbComponents,
+      nbDroppedEdge: dropped[0], nbDroppedSmall: dropped[1], nbDroppedLow: dropped[2],
     },
   };
 }
 
 /**
- * Foreground pixels (listed in raster order in foreground[0..m), which is cleared on return) ordered by height,
- * descending, ties in raster order.
+ * Area, box, border contact and peak (highest pixel, first in raster order) of every component into `components`
+ * (see regionFields), and its highest and lowest height into heightSpan[2c], heightSpan[2c + 1]; one pass over
+ * the runs.
  */
-function orderByHeight(data: Float32Array, foreground: Int32Array, m: number, thresholdNm: number, hMax: number): Int32Array {
-  // order foreground by height, descending: counting sort on heights quantised to NB_LEVELS steps
-  // between the threshold and the maximum (ties in raster order). Linear time; the quantisation step
-  // (range/65 536, e.g. 0.006 nm for a 400 nm bead) is far below AFM noise.
-  const range = hMax - thresholdNm || 1;
-  const scale = (NB_LEVELS - 1) / range;
-  const starts = new Int32Array(NB_LEVELS + 1);
-  for (let k = 0; k < m; k++) starts[Math.floor((hMax - data[foreground[k]]) * scale) + 1]++;
-  for (let b = 0; b < NB_LEVELS; b++) starts[b + 1] += starts[b];
-  const order = new Int32Array(m);
-  for (let k = 0; k < m; k++) {
-    const i = foreground[k];
-    order[starts[Math.floor((hMax - data[i]) * scale)]++] = i;
+function componentStats(
+  data: Float32Array, width: number, height: number, start: Int32Array, end: Int32Array, row: Int32Array,
+  runLabel: Int32Array, components: Int32Array, heightSpan: Float64Array,
+): void {
+  for (let c = 0; 2 * c < heightSpan.length; c++) {
+    heightSpan[2 * c] = -Infinity;
+    heightSpan[2 * c + 1] = Infinity;
   }
-  foreground.fill(0, 0, m);
-  return order;
+  for (let k = 0; k < runLabel.length; k++) {
+    const c = runLabel[k];
+    const at = c * REGION_FIELDS;
+    const s = start[k];
+    const e = end[k];
+    const y = row[k];
+    components[at + AREA] += e - s;
+    if (s < components[at + X_MIN]) components[at + X_MIN] = s;
+    if (e - 1 > components[at + X_MAX]) components[at + X_MAX] = e - 1;
+    if (y < components[at + Y_MIN]) components[at + Y_MIN] = y;
+    components[at + Y_MAX] = y; // runs come in raster order
+    if (s === 0 || e === width || y === 0 || y === height - 1) components[at + EDGE] = 1;
+    const rowAt = y * width;
+    for (let x = s; x < e; x++) {
+      const h = data[rowAt + x];
+      if (h > heightSpan[2 * c]) {
+        heightSpan[2 * c] = h;
+        components[at + PEAK] = rowAt + x;
+      }
+      if (h < heightSpan[2 * c + 1]) heightSpan[2 * c + 1] = h;
+    }
+  }
+}
+
+/** Highest of the maxima in heightSpan (every other entry). */
+function highest(heightSpan: Float64Array): number {
+  let hMax = -Infinity;
+  for (let i = 2; i < heightSpan.length; i += 2) hMax = Math.max(hMax, heightSpan[i]);
+  return hMax;
 }
 
 /**
- * Priority flood of the foreground in `order`: returns, per rank, the union–find parents of basins (merged by
- * the prominence and separation rules) and of connected components.
+ * flooded[c] = 1 for the components that can split: a height span of at least the prominence and a box with room
+ * for two peaks the separation apart. Written as negations so that a NaN option floods, as the flood's own
+ * comparisons would. Returns their number.
  */
-function flood(
-  data: Float32Array, width: number, height: number, order: Int32Array, minProminenceNm: number, minSeparationPx: number,
-): { parent: Int32Array; component: Int32Array } {
-  const n = width * height;
-  const m = order.length;
-  // flood; a basin's id is the rank of its peak, so the root of a set is its highest peak
-  const idOf = new Int32Array(n); // rank + 1 of each flooded pixel, 0 before it is reached
-  const parent = new Int32Array(m);
-  const component = new Int32Array(m); // union of everything that touched: connected components
-  const roots = new Int32Array(8);
+function markSplittable(components: Int32Array, heightSpan: Float64Array, minProminenceNm: number, minSeparationPx: number, flooded: Uint8Array): number {
   const minSep2 = minSeparationPx * minSeparationPx;
-  for (let r = 0; r < m; r++) {
-    const p = order[r];
-    idOf[p] = r + 1;
-    const x = p % width;
-    const y = (p - x) / width;
-    let nbRoots = 0;
-    let bestHeight = -Infinity;
-    let bestRoot = -1;
-    for (let k = 0; k < 8; k++) {
-      const qx = x + NEIGHBOUR_DX[k];
-      const qy = y + NEIGHBOUR_DY[k];
-      if (qx < 0 || qy < 0 || qx >= width || qy >= height) continue;
-      const q = qy * width + qx;
-      const id = idOf[q] - 1;
-      if (id < 0 || q === p) continue;
-      const root = find(parent, id);
-      if (data[q] > bestHeight) {
-        bestHeight = data[q];
-        bestRoot = root;
-      }
-      let seen = false;
-      for (let s = 0; s < nbRoots; s++) if (roots[s] === root) seen = true;
-      if (!seen) roots[nbRoots++] = root;
-    }
-    if (nbRoots === 0) {
-      parent[r] = r;
-      component[r] = r;
-      continue;
-    }
-    let oldest = roots[0];
-    for (let s = 1; s < nbRoots; s++) if (roots[s] < oldest) oldest = roots[s];
-    const oldestPeak = order[oldest];
-    const ox = oldestPeak % width;
-    const oy = (oldestPeak - ox) / width;
-    for (let s = 0; s < nbRoots; s++) {
-      const root = roots[s];
-      if (root === oldest) continue;
-      const cRoot = find(component, root);
-      const cOld = find(component, oldest);
-      if (cRoot !== cOld) component[Math.max(cRoot, cOld)] = Math.min(cRoot, cOld);
-      const peak = order[root];
-      const px = peak % width;
-      const py = (peak - px) / width;
-      const prominence = data[peak] - data[p];
-      const d2 = (px - ox) * (px - ox) + (py - oy) * (py - oy);
-      if (prominence < minProminenceNm || d2 < minSep2) parent[root] = oldest;
-    }
-    parent[r] = find(parent, bestRoot);
-    component[r] = find(component, oldest);
+  let count = 0;
+  for (let c = 1; c < flooded.length; c++) {
+    const at = c * REGION_FIELDS;
+    const w = components[at + X_MAX] - components[at + X_MIN];
+    const h = components[at + Y_MAX] - components[at + Y_MIN];
+    const splits = !(heightSpan[2 * c] - heightSpan[2 * c + 1] < minProminenceNm) && !(w * w + h * h < minSep2);
+    flooded[c] = +splits;
+    count += +splits;
   }
-  return { parent, component };
+  return count;
 }
 
-/** Root of i in a union–find forest, halving the path on the way. */
-function find(arr: Int32Array, i: number): number {
-  while (arr[i] !== i) {
-    arr[i] = arr[arr[i]];
-    i = arr[i];
+/** The runs of each component, in raster order: list[first[c] … first[c + 1]) (a counting sort). */
+function runsByComponent(runLabel: Int32Array, nbComponents: number): { first: Int32Array; list: Int32Array } {
+  const first = new Int32Array(nbComponents + 2);
+  for (let k = 0; k < runLabel.length; k++) first[runLabel[k] + 1]++;
+  for (let c = 0; c <= nbComponents; c++) first[c + 1] += first[c];
+  const next = first.slice();
+  const list = new Int32Array(runLabel.length);
+  for (let k = 0; k < runLabel.length; k++) list[next[runLabel[k]]++] = k;
+  return { first, list };
+}
+
+/** The pixels of the components to flood, component after component, each in raster order, with their boxes. */
+function floodList(
+  width: number, start: Int32Array, end: Int32Array, row: Int32Array, runsFirst: Int32Array, runsList: Int32Array,
+  components: Int32Array, flooded: Uint8Array, nbFlooded: number,
+): { first: Int32Array; pixels: Int32Array; x: Int32Array; y: Int32Array; boxes: Int32Array } {
+  let nbPixels = 0;
+  for (let c = 1; c < flooded.length; c++) if (flooded[c]) nbPixels += components[c * REGION_FIELDS + AREA];
+  const first = new Int32Array(nbFlooded + 1);
+  const pixels = new Int32Array(nbPixels);
+  const x = new Int32Array(nbPixels);
+  const y = new Int32Array(nbPixels);
+  const boxes = new Int32Array(4 * nbFlooded);
+  gatherFlooded(width, start, end, row, runsFirst, runsList, components, flooded, first, pixels, x, y, boxes);
+  return { first, pixels, x, y, boxes };
+}
+
+/** The loop of {@link floodList}, on arrays only. */
+function gatherFlooded(
+  width: number, start: Int32Array, end: Int32Array, row: Int32Array, runsFirst: Int32Array, runsList: Int32Array,
+  components: Int32Array, flooded: Uint8Array, first: Int32Array, pixels: Int32Array, x: Int32Array, y: Int32Array, boxes: Int32Array,
+): void {
+  let j = 0;
+  let n = 0;
+  for (let c = 1; c < flooded.length; c++) {
+    if (!flooded[c]) continue;
+    first[j] = n;
+    const at = c * REGION_FIELDS;
+    boxes[4 * j] = components[at + X_MIN];
+    boxes[4 * j + 1] = components[at + Y_MIN];
+    boxes[4 * j + 2] = components[at + X_MAX];
+    boxes[4 * j + 3] = components[at + Y_MAX];
+    for (let i = runsFirst[c]; i < runsFirst[c + 1]; i++) {
+      const k = runsList[i];
+      const r = row[k];
+      for (let col = start[k]; col < end[k]; col++) {
+        pixels[n] = r * width + col;
+        x[n] = col;
+        y[n++] = r;
+      }
+    }
+    j++;
   }
-  return i;
+  first[j] = n;
+}
+
+/**
+ * Append each single-region component to `regions` (after the basins, in component order) with its first pixel
+ * in flooding order: the first, in raster order, of its pixels on the level of its maximum. componentOfRegion
+ * records which component each appended region is.
+ */
+function appendSingleRegions(
+  data: Float32Array, width: number, start: Int32Array, end: Int32Array, row: Int32Array,
+  runsFirst: Int32Array, runsList: Int32Array, components: Int32Array, heightSpan: Float64Array, flooded: Uint8Array,
+  hMax: number, scale: number, nbBasins: number, regions: Int32Array, componentOfRegion: Int32Array,
+): void {
+  let r = nbBasins;
+  for (let c = 1; c < flooded.length; c++) {
+    if (flooded[c]) continue;
+    regions.set(components.subarray(c * REGION_FIELDS, (c + 1) * REGION_FIELDS), r * REGION_FIELDS);
+    regions[r * REGION_FIELDS + FIRST] = firstOnLevel(data, width, start, end, row, runsList, runsFirst[c], runsFirst[c + 1], Math.floor((hMax - heightSpan[2 * c]) * scale), hMax, scale);
+    componentOfRegion[r++] = c;
+  }
+}
+
+/** Raster index of the first pixel on `level` among the runs list[from … to). */
+function firstOnLevel(
+  data: Float32Array, width: number, start: Int32Array, end: Int32Array, row: Int32Array, list: Int32Array,
+  from: number, to: number, level: number, hMax: number, scale: number,
+): number {
+  for (let i = from; i < to; i++) {
+    const k = list[i];
+    const at = row[k] * width;
+    for (let x = start[k]; x < end[k]; x++) if (Math.floor((hMax - data[at + x]) * scale) === level) return at + x;
+  }
+  return -1; // unreachable: the maximum is one of the component's pixels
+}
+
+/**
+ * Apply the filters to the regions in `order` (border, then area, then height) and number the kept ones from 1
+ * into labelOfRegion; returns the counts dropped for the border, for the area and for the height.
+ */
+function filterRegions(
+  data: Float32Array, width: number, regions: Int32Array, order: Int32Array, minAreaPx: number, minHeightNm: number,
+  dropEdgeRegions: boolean, labelOfRegion: Int32Array,
+): [number, number, number] {
+  let nbDroppedEdge = 0;
+  let nbDroppedSmall = 0;
+  let nbDroppedLow = 0;
+  let nextLabel = 1;
+  for (let k = 0; k < order.length; k++) {
+    const i = order[k];
+    const at = i * REGION_FIELDS;
+    if (dropEdgeRegions && regions[at + EDGE]) nbDroppedEdge++;
+    else if (regions[at + AREA] < minAreaPx) nbDroppedSmall++;
+    else if (data[regions[at + PEAK]] < minHeightNm) nbDroppedLow++;
+    else labelOfRegion[i] = nextLabel++;
+  }
+  return [nbDroppedEdge, nbDroppedSmall, nbDroppedLow];
+}
+
+/** The {@link DetectedRegion} of region i. */
+function describeRegion(data: Float32Array, width: number, regions: Int32Array, i: number, label: number): DetectedRegion {
+  const at = i * REGION_FIELDS;
+  const peak = regions[at + PEAK];
+  return {
+    label, areaPx: regions[at + AREA], maxHeightNm: data[peak],
+    peakPx: { x: peak % width, y: Math.floor(peak / width) },
+    xMin: regions[at + X_MIN], yMin: regions[at + Y_MIN], xMax: regions[at + X_MAX], yMax: regions[at + Y_MAX],
+  };
+}
+
+/** labels = the label of each kept region on its pixels (flooded pixels through their basin, others by runs). */
+function writeLabels(
+  labels: Int32Array, width: number, start: Int32Array, end: Int32Array, row: Int32Array, runsFirst: Int32Array, runsList: Int32Array,
+  order: Int32Array, basinOfRank: Int32Array, componentOfRegion: Int32Array, labelOfRegion: Int32Array, nbBasins: number,
+): void {
+  for (let r = 0; r < order.length; r++) labels[order[r]] = labelOfRegion[basinOfRank[r]];
+  for (let i = nbBasins; i < labelOfRegion.length; i++) {
+    const label = labelOfRegion[i];
+    if (label === 0) continue;
+    const c = componentOfRegion[i];
+    for (let j = runsFirst[c]; j < runsFirst[c + 1]; j++) {
+      const k = runsList[j];
+      labels.fill(label, row[k] * width + start[k], row[k] * width + end[k]);
+    }
+  }
 }

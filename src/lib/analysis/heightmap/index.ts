@@ -1,6 +1,7 @@
 export { analyzeHeightMap } from './analyzeHeightMap';
 export { capBaseRadiusFromSlice } from './capBaseRadiusFromSlice';
 export { detectVesicles } from './detectVesicles';
+export { labelComponents } from './labelComponents';
 export { levelHeightMap } from './levelHeightMap';
 export { measureVesicle } from './measureVesicle';
 export { otsuHistogramThreshold } from './otsuHistogramThreshold';

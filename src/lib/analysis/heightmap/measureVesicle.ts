@@ -1,7 +1,7 @@
-import { Matrix, solve } from 'ml-matrix';
 import { AnalysisError } from '../errors';
 import type { Raster } from '../types';
 import { capBaseRadiusFromSlice } from './capBaseRadiusFromSlice';
+import { solveLinearSystem } from './solveLinearSystem';
 import { sphericalCap } from './sphericalCap';
 import { tipCorrectedBaseRadius } from './tipCorrectedBaseRadius';
 import type { DetectedRegion, MeasureVesicleOptions, MeasureVesicleResult } from './types';
@@ -142,8 +142,9 @@ function fitApex(
 ): number | null {
   const cx = centre % width;
   const cy = (centre - cx) / width;
-  const normal = new Matrix(6, 6);
-  const rhs = new Matrix(6, 1);
+  // plain arrays, not ml-matrix objects: see solveLinearSystem
+  const normal = new Float64Array(36);
+  const rhs = new Float64Array(6);
   const f = new Float64Array(6);
   let count = 0;
   for (let dy = -half; dy <= half; dy++) {
@@ -157,19 +158,15 @@ function fitApex(
       f[0] = 1; f[1] = dx; f[2] = dy; f[3] = dx * dx; f[4] = dx * dy; f[5] = dy * dy;
       const z = data[i];
       for (let a = 0; a < 6; a++) {
-        rhs.set(a, 0, rhs.get(a, 0) + f[a] * z);
-        for (let b = 0; b < 6; b++) normal.set(a, b, normal.get(a, b) + f[a] * f[b]);
+        rhs[a] += f[a] * z;
+        for (let b = 0; b < 6; b++) normal[a * 6 + b] += f[a] * f[b];
       }
       count++;
     }
   }
   if (count < 9) return null;
-  let c: number[];
-  try {
-    c = solve(normal, rhs).getColumn(0);
-  } catch {
-    return null;
-  }
+  const c = solveLinearSystem(normal, rhs);
+  if (!c) return null;
   // maximum: gradient zero, Hessian [[2c3, c4], [c4, 2c5]] negative definite
   const hxx = 2 * c[3];
   const hyy = 2 * c[5];

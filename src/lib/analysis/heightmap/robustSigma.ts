@@ -1,4 +1,4 @@
-import { selectKth } from './selectKth';
+import { medianInPlace } from './medianInPlace';
 
 /** Output of {@link robustSigma}, in the unit of the input. */
 export interface RobustSigmaResult {
@@ -15,7 +15,8 @@ export interface RobustSigmaResult {
  *
  * @param values - samples (e.g. heights in nm)
  * @param mask - optional selector, same length as values
- * @param scratch - optional reusable buffer of length ≥ values.length (avoids an allocation)
+ * @param scratch - optional reusable buffer (avoids an allocation); used when it is longer than the number of samples
+ *   taken (values.length, or ⌈count/stride⌉ when subsampled)
  * @param maxSamples - when more samples are selected, use every ⌈count/maxSamples⌉-th one (a deterministic,
  *   regular subsample: the median of 65 536 samples has a standard error of about 0.005 σ for Gaussian data). @default Infinity
  * @returns median, robust sigma and sample count; NaN for both when no sample is selected
@@ -28,40 +29,42 @@ export function robustSigma(
   maxSamples = Infinity,
 ): RobustSigmaResult {
   if (mask && mask.length !== values.length) throw new RangeError(`mask length ${mask.length} ≠ values length ${values.length}`);
-  const buf = scratch && scratch.length >= values.length ? scratch : new Float32Array(values.length);
   let selected = 0;
-  if (mask) for (let i = 0; i < mask.length; i++) selected += mask[i] !== 0 ? 1 : 0;
+  if (mask) for (let i = 0; i < mask.length; i++) selected += +(mask[i] !== 0);
   else selected = values.length;
   const stride = selected > maxSamples ? Math.ceil(selected / maxSamples) : 1;
-  // keep every stride-th selected sample; a countdown instead of a modulo per pixel (same samples, faster)
-  let n = 0;
-  let skip = 0;
-  if (mask) {
-    for (let i = 0; i < values.length; i++) {
-      if (mask[i] === 0) continue;
-      if (skip === 0) {
-        buf[n++] = values[i];
-        skip = stride;
-      }
-      skip--;
-    }
-  } else {
-    for (let i = 0; i < values.length; i += stride) buf[n++] = values[i];
-  }
+  const nbWanted = Math.ceil(selected / stride);
+  // one spare slot: the branch-free gather below writes one element past the last sample
+  const buf = scratch && scratch.length > nbWanted ? scratch : new Float32Array(nbWanted + 1);
+  // keep every stride-th selected sample, counting down instead of taking a modulo per pixel (same samples)
+  const n = mask ? gatherMasked(values, mask, stride, buf) : gatherStrided(values, stride, buf);
   if (n === 0) return { median: Number.NaN, robustSigma: Number.NaN, nbSamples: 0 };
-  const median = medianOfScratch(buf, n);
+  const median = medianInPlace(buf, n);
   for (let i = 0; i < n; i++) buf[i] = Math.abs(buf[i] - median);
-  const mad = medianOfScratch(buf, n);
+  const mad = medianInPlace(buf, n);
   return { median, robustSigma: 1.4826 * mad, nbSamples: n };
 }
 
-/** Exact median of buf[0..n), reordering buf. */
-function medianOfScratch(buf: Float32Array | Float64Array, n: number): number {
-  const half = n >> 1;
-  const upper = selectKth(buf, n, half);
-  if (n % 2 === 1) return upper;
-  // after selection every entry left of `half` is ≤ upper: the lower middle is their maximum
-  let lower = -Infinity;
-  for (let i = 0; i < half; i++) if (buf[i] > lower) lower = buf[i];
-  return (lower + upper) / 2;
+/**
+ * buf[0..) = the first selected value, then every stride-th one; returns how many. Branch-free: every selected
+ * value is written and the position advances when the countdown is at zero (V8 compiles `+(cond)` without a jump).
+ */
+function gatherMasked(values: ArrayLike<number>, mask: Uint8Array, stride: number, buf: Float32Array | Float64Array): number {
+  let n = 0;
+  let skip = 0;
+  for (let i = 0; i < values.length; i++) {
+    const selected = +(mask[i] !== 0);
+    const take = selected & +(skip === 0);
+    buf[n] = values[i];
+    n += take;
+    skip += take * stride - selected;
+  }
+  return n;
+}
+
+/** buf[0..) = values[0], values[stride], …; returns how many. */
+function gatherStrided(values: ArrayLike<number>, stride: number, buf: Float32Array | Float64Array): number {
+  let n = 0;
+  for (let i = 0; i < values.length; i += stride) buf[n++] = values[i];
+  return n;
 }

@@ -163,6 +163,28 @@ export interface DetectVesiclesResult {
   };
 }
 
+/**
+ * Output of {@link labelComponents}. The statistics are indexed by label, 0 being the background (all zero pixels),
+ * like the rows of OpenCV's `stats` and `centroids`. An empty label (a mask without background) has area 0,
+ * xMin = width, yMin = height, xMax = yMax = −1 and a NaN centroid.
+ */
+export interface LabelComponentsResult {
+  /** Row-major: 0 = background, else the component's label, 1…nbComponents in raster order of its first pixel. */
+  readonly labels: Int32Array;
+  /** Components, background not included. */
+  readonly nbComponents: number;
+  /** Pixels per label (px); length nbComponents + 1. */
+  readonly areaPx: Int32Array;
+  /** Inclusive bounding box per label (px); OpenCV's left, top, width = xMax − xMin + 1, height = yMax − yMin + 1. */
+  readonly xMin: Int32Array;
+  readonly yMin: Int32Array;
+  readonly xMax: Int32Array;
+  readonly yMax: Int32Array;
+  /** Mean column and row of each label's pixels (px). */
+  readonly centroidX: Float64Array;
+  readonly centroidY: Float64Array;
+}
+
 // ---------------------------------------------------------------- measurement
 
 /** Output of {@link sphericalCap}; all lengths nm. */

@@ -117,6 +117,45 @@ describe('detectVesicles on synthetic scenes (tilt + line offsets + 0.15 nm nois
     expect(manual.vesicles.length).toBe(12);
   });
 
+  it('labels components first and floods only those that can split: a hand-made map', () => {
+    // 20 × 14 px, background 0 nm, threshold 0.5 nm, default filters (area ≥ 9 px, height ≥ 2 nm, no edge contact).
+    // Five 8-connected components, worked out by hand:
+    //  A speck, 2 × 2 px at 1 nm          → one region (flat), dropped as small
+    //  B 3 × 3 px at 5 nm on the left edge  → one region, dropped for the edge
+    //  C bar 10 × 4 px at 3 nm with cones peaking at (9, 5) 12 nm and (16, 5) 10 nm: the lower peak rises 7 nm above
+    //    the 3 nm saddle and lies 7 px away → two basins (one split), 40 px in all
+    //  D 4 × 3 px at 1.5 nm                 → one region, dropped as low
+    //  E plateau 4 × 3 px at 6 nm           → one region; its first flooded pixel is its first in raster order, (12, 10)
+    // Kept regions are labelled in raster order of their first flooded pixel: (9, 5), (16, 5), (12, 10).
+    const width = 20;
+    const height = 14;
+    const data = new Float32Array(width * height);
+    const set = (x0: number, x1: number, y0: number, y1: number, h: (x: number, y: number) => number) => {
+      for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) data[y * width + x] = h(x, y);
+    };
+    set(3, 4, 3, 4, () => 1);
+    set(0, 2, 6, 8, () => 5);
+    const cone = (x: number, y: number, cx: number, cy: number, top: number) => Math.max(0, top - 2.5 * Math.hypot(x - cx, y - cy));
+    set(8, 17, 4, 7, (x, y) => 3 + cone(x, y, 9, 5, 9) + cone(x, y, 16, 5, 7));
+    set(3, 6, 10, 12, () => 1.5);
+    set(12, 15, 10, 12, () => 6);
+    const r = detectVesicles({ data, width, height }, { thresholdNm: 0.5 });
+    expect(r.diagnostics).toEqual({ thresholdNm: 0.5, nbForegroundPx: 4 + 9 + 40 + 12 + 12, nbRegions: 6, nbSplits: 1, nbDroppedEdge: 1, nbDroppedSmall: 1, nbDroppedLow: 1 });
+    expect(r.fiducialCandidates).toEqual([]);
+    const [c1, c2, e] = r.vesicles;
+    expect(r.vesicles.map((v) => [v.label, v.peakPx.x, v.peakPx.y, v.maxHeightNm])).toEqual([[1, 9, 5, 12], [2, 16, 5, 10], [3, 12, 10, 6]]);
+    expect(c1.areaPx + c2.areaPx).toBe(40);
+    expect([c1.xMin, c1.yMin, c1.yMax, c2.xMax, c2.yMin, c2.yMax]).toEqual([8, 4, 7, 17, 4, 7]);
+    expect([e.areaPx, e.xMin, e.xMax, e.yMin, e.yMax]).toEqual([12, 12, 15, 10, 12]);
+    // the label map holds exactly the kept regions' pixels
+    const counts = new Map<number, number>();
+    for (const l of r.labels) counts.set(l, (counts.get(l) ?? 0) + 1);
+    expect(counts.get(1)).toBe(c1.areaPx);
+    expect(counts.get(2)).toBe(c2.areaPx);
+    expect(counts.get(3)).toBe(12);
+    expect(counts.get(0)).toBe(width * height - 52);
+  });
+
   it('finds nothing on a particle-free map and does not mutate its input', () => {
     const scene = makeHeightScene({ seed: 7, width: 128, height: 128, nbVesicles: 0 });
     const levelled = levelHeightMap(scene.raster).levelled;
