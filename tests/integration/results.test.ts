@@ -363,3 +363,42 @@ describe('link run summaries', () => {
     }
   });
 });
+
+/**
+ * The app remembers a sample's results per process (src/lib/reporting/sampleResultsCache.ts). Any change to what
+ * they are computed from must show on the very next request, whoever made it: here the changes are made straight
+ * in the database, behind the app's back, as another process or psql would.
+ */
+describe('remembered sample results', () => {
+  type Breakdown = { fieldId: string; name: string; registrationVersion: number | null; freNm: number | null; vesicles: number };
+  const current = async () => {
+    const res = await results(clients.analyst, sampleIds.s1, '?source=current');
+    expect(res.status).toBe(200);
+    return res.json() as Promise<{ vesicles: number; fields: Breakdown[] }>;
+  };
+  const f1 = (r: { fields: Breakdown[] }) => r.fields.find((f) => f.fieldId === fieldIds.f1)!;
+
+  it('show a renamed field, a new registration and a new link run at once', async () => {
+    const first = await current();
+    expect(await current()).toEqual(first);
+    const name = f1(first).name;
+
+    await q(`update fields set name = $2 where id = $1`, [fieldIds.f1, `${name} renamed`]);
+    expect(f1(await current()).name).toBe(`${name} renamed`);
+    await q(`update fields set name = $2 where id = $1`, [fieldIds.f1, name]);
+    expect(f1(await current()).name).toBe(name);
+
+    const [reg] = await q<{ version: number }>(`select max(version)::int as version from registrations where field_id = $1`, [fieldIds.f1]);
+    await q(`insert into registrations (field_id, version, model, pairs, fl_from_afm, fre_nm) values ($1, $2, 'affine', '[]', '[1,0,0,0,1,0]', 123.5)`, [fieldIds.f1, reg.version + 1]);
+    const registered = f1(await current());
+    expect(registered.registrationVersion).toBe(reg.version + 1);
+    expect(registered.freNm).toBeCloseTo(123.5, 3);
+
+    // a new current link run with 7 vesicles instead of F1's 150
+    const before = await current();
+    await relink(fieldIds.f1, sampleIds.s1, rowsWith(7, 3, 1));
+    const after = await current();
+    expect(f1(after).vesicles).toBe(7);
+    expect(after.vesicles).toBe(before.vesicles - f1(before).vesicles + 7);
+  });
+});

@@ -18,6 +18,8 @@ export interface ResultsSelection {
   linkRunIds: string[];
   /** Whether the user may see unreleased lab data (offer the preview). */
   seesLab: boolean;
+  /** Changes whenever anything the per-field breakdown shows changes (see getSampleSelectionFacts). */
+  fieldsFingerprint: string;
 }
 
 /** The answer for a sample a collaborator may not see: the same whether unreleased or another study's. */
@@ -52,7 +54,7 @@ export async function selectSampleResults(db: Db, locals: App.Locals, sampleId: 
   const seesLab = canInStudy(user, membership, 'study.read');
   if (source === 'current') {
     if (!seesLab) throw notReleased();
-    return { user, sample, source, release: null, linkRunIds: facts.currentLinkRunIds, seesLab };
+    return { user, sample, source, release: null, linkRunIds: facts.currentLinkRunIds, seesLab, fieldsFingerprint: facts.fieldsFingerprint };
   }
   const release = facts.latestRelease;
   if (!release) {
@@ -60,5 +62,5 @@ export async function selectSampleResults(db: Db, locals: App.Locals, sampleId: 
     throw new HttpError(404, 'not_released', `Sample ${sample.code} has no release yet. Approve all its fields and release it, or preview the current analysis (source=current).`);
   }
   const { linkRunIds, ...info } = release;
-  return { user, sample, source, release: info, linkRunIds, seesLab };
+  return { user, sample, source, release: info, linkRunIds, seesLab, fieldsFingerprint: facts.fieldsFingerprint };
 }

@@ -79,22 +79,27 @@ export async function getPanel(db: Db, studyId: string): Promise<Panel> {
  * latest release (null when never released). Null when there is no such sample.
  */
 export async function getSampleSelectionFacts(db: Db, sampleId: string): Promise<{
-  sample: SampleContext; currentLinkRunIds: string[]; latestRelease: (ReleaseInfo & { linkRunIds: string[] }) | null;
+  sample: SampleContext; currentLinkRunIds: string[]; latestRelease: (ReleaseInfo & { linkRunIds: string[] }) | null; fieldsFingerprint: string;
 } | null> {
-  const [row] = await rows<SampleContext & { currentLinkRunIds: string[]; release: { id: string; version: number; releasedAt: string; linkRunIds: string[] } | null }>(
+  const [row] = await rows<SampleContext & { currentLinkRunIds: string[]; fieldsFingerprint: string | null; release: { id: string; version: number; releasedAt: string; linkRunIds: string[] } | null }>(
     db,
     `select s.id, s.code, s.group_label as "groupLabel", s.control_kind as "controlKind", s.study_id as "studyId", st.name as "studyName",
             array(select lr.id::text from link_runs lr join fields f on f.id = lr.field_id where f.sample_id = s.id and lr.current order by lr.id) as "currentLinkRunIds",
+            -- every field column the per-field breakdown shows, and each field's latest registration version
+            (select md5(string_agg(concat_ws('/', f.id, f.version, f.status, f.name, f.afm_pixel_nm, f.fl_pixel_nm,
+                                             (select max(r.version) from registrations r where r.field_id = f.id)), ',' order by f.id))
+               from fields f where f.sample_id = s.id) as "fieldsFingerprint",
             (select json_build_object('id', r.id, 'version', r.version, 'releasedAt', r.released_at, 'linkRunIds', r.link_run_ids)
                from releases r where r.sample_id = s.id order by r.version desc limit 1) as release
        from samples s join studies st on st.id = s.study_id where s.id = $1`,
     [sampleId],
   );
   if (!row) return null;
-  const { currentLinkRunIds, release, ...sample } = row;
+  const { currentLinkRunIds, release, fieldsFingerprint, ...sample } = row;
   return {
     sample,
     currentLinkRunIds,
+    fieldsFingerprint: fieldsFingerprint ?? '',
     latestRelease: release ? { id: release.id, version: release.version, releasedAt: new Date(release.releasedAt).toISOString(), linkRunIds: release.linkRunIds } : null,
   };
 }

@@ -1,11 +1,11 @@
 import type { APIRoute } from 'astro';
 import { handle } from '../../../../lib/http/respond';
-import { getSampleResults } from '../../../../lib/db/queries/results';
+import { sampleResultsFor } from '../../../../lib/reporting/sampleResultsCache';
 import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
 
 /** A sample's results: latest release (everyone in the study) or current analysis (lab members). */
 export const GET = handle(async (ctx) => {
   const { db, sel } = await sampleSelectionFor(ctx);
-  const results = await getSampleResults(db, sel.sample, sel);
+  const results = await sampleResultsFor(db, sel);
   return Response.json(results, { headers: { 'cache-control': 'private, no-store' } });
 }) satisfies APIRoute;
