@@ -402,3 +402,29 @@ describe('remembered sample results', () => {
     expect(after.vesicles).toBe(before.vesicles - f1(before).vesicles + 7);
   });
 });
+
+describe('remembered study comparison', () => {
+  type Comparison = { samples: { sampleId: string; groupLabel: string; vesicles: number }[] };
+  const compare = async () => {
+    const res = await clients.analyst.fetch(`/api/studies/${studyId}/comparison?source=current&groupA=${GROUP_A}&groupB=${GROUP_B}`);
+    expect(res.status).toBe(200);
+    return res.json() as Promise<Comparison>;
+  };
+  const s3 = (c: Comparison) => c.samples.find((s) => s.sampleId === sampleIds.s3)!;
+
+  it('shows a sample moved to another group and a new link run at once', async () => {
+    const first = await compare();
+    expect(await compare()).toEqual(first);
+    expect(s3(first).groupLabel).toBe(GROUP_A);
+    await q(`update samples set group_label = $2 where id = $1`, [sampleIds.s3, GROUP_B]);
+    try {
+      expect(s3(await compare()).groupLabel).toBe(GROUP_B);
+    } finally {
+      await q(`update samples set group_label = $2 where id = $1`, [sampleIds.s3, GROUP_A]);
+    }
+    expect(s3(await compare()).groupLabel).toBe(GROUP_A);
+    const [f] = await q<{ id: string }>(`select id from fields where sample_id = $1`, [sampleIds.s3]);
+    await relink(f.id, sampleIds.s3, rowsWith(9, 2, 4));
+    expect(s3(await compare()).vesicles).toBe(9);
+  });
+});

@@ -7,8 +7,7 @@ import { z } from 'zod';
 import { parseParams, parseQuery, IdParam } from '../http/parse';
 import { requireUser, requireStudyAction } from '../auth/session';
 import { getDb } from '../db/client';
-import { getStudy } from '../db/queries/studies';
-import { getStudyComparison } from '../db/queries/results';
+import { studyComparison } from './comparisonCache';
 import { selectSampleResults } from './access';
 import { ComparisonQuery, assertSourceAllowed } from './comparisonQuery';
 
@@ -30,7 +29,6 @@ export async function studyComparisonFor(ctx: APIContext) {
   const { user, membership } = await requireStudyAction(db, ctx.locals, id, 'results.read', 'see results of this study');
   const q = parseQuery(ctx.url, ComparisonQuery);
   assertSourceAllowed(user, membership, q.source);
-  const study = (await getStudy(db, id))!;
-  const result = await getStudyComparison(db, { id, name: study.name }, q.source, q.groupA ?? null, q.groupB ?? null);
+  const result = (await studyComparison(db, id, q.source, q.groupA ?? null, q.groupB ?? null))!;
   return { q, result };
 }

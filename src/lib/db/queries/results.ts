@@ -277,6 +277,22 @@ export async function getSampleResults(
 }
 
 /**
+ * The study's name and a fingerprint of what a comparison of `source` is computed from: every sample's id,
+ * code, group and release version, and the link runs selected (each link run's rows never change). Null when
+ * there is no such study.
+ */
+export async function getComparisonFacts(db: Db, studyId: string, source: ResultSource): Promise<{ name: string; fingerprint: string } | null> {
+  const [row] = await rows<{ name: string | null; fingerprint: string | null }>(
+    db,
+    `select (select name from studies where id = $1) as name,
+            (with sel as (${selectionCte(source)})
+             select md5(string_agg(concat_ws('/', sample_id, code, group_label, version, link_run_id), ',' order by sample_id, link_run_id)) from sel) as fingerprint`,
+    [studyId],
+  );
+  return row?.name == null ? null : { name: row.name, fingerprint: row.fingerprint ?? '' };
+}
+
+/**
  * SQL (a CTE body) selecting `sample_id, code, group_label, version, link_run_id` for every sample of
  * study $1: its latest release's link runs, or its current link runs.
  */

@@ -1,0 +1,30 @@
+/**
+ * A study's group comparison, remembered per web process under a key of everything it is computed from (the
+ * samples, their groups and the link runs selected, the panel, the groups asked for), as the sample results are
+ * (sampleResultsCache.ts): a change of any input is a new key, so a stale answer cannot be served.
+ */
+import { LRUCache } from 'lru-cache';
+import type { Db } from '../db/client';
+import { getComparisonFacts, getPanel, getStudyComparison } from '../db/queries/results';
+import { appAccessCache } from '../auth/session';
+import type { ResultSource, StudyComparison } from './types';
+
+const remembered = new LRUCache<string, StudyComparison>({ max: 200, ttl: 10 * 60_000 });
+
+/**
+ * The comparison of groups A and B (null: no pair) in study `studyId`, or null when there is no such study.
+ * Only the app's own database handle remembers (scripts and tests with their own handle compute afresh).
+ */
+export async function studyComparison(db: Db, studyId: string, source: ResultSource, groupA: string | null, groupB: string | null): Promise<StudyComparison | null> {
+  const facts = await getComparisonFacts(db, studyId, source);
+  if (!facts) return null;
+  const study = { id: studyId, name: facts.name };
+  if (!appAccessCache(db)?.active) return getStudyComparison(db, study, source, groupA, groupB);
+  const panel = await getPanel(db, studyId);
+  const key = JSON.stringify([studyId, facts.name, source, groupA, groupB, facts.fingerprint, panel.map((c) => [c.channelIndex, c.marker])]);
+  const hit = remembered.get(key);
+  if (hit) return hit;
+  const fresh = await getStudyComparison(db, study, source, groupA, groupB);
+  remembered.set(key, fresh);
+  return fresh;
+}
