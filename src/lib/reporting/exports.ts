@@ -47,8 +47,12 @@ export function comparisonCsv(c: StudyComparison): string {
   return out;
 }
 
-/** Column names of the per-vesicle export, unit-suffixed. */
-export function vesicleCsvHeader(markers: readonly string[]): string {
+/**
+ * Column names of a sample's per-vesicle export (released or preview, for everyone in the study), unit-suffixed.
+ * The lab's export of a field or sample (/api/vesicles/export.csv) uses the analysis core's CSV writer instead,
+ * with the geometry columns the command line writes.
+ */
+export function sampleVesicleCsvHeader(markers: readonly string[]): string {
   const safe = markers.map((m) => m.replace(/[^A-Za-z0-9]+/g, '_'));
   return RESEARCH_USE_LINE + '\r\n' + csvRow([
     'sample_code', 'field_id', 'link_run_id', 'vesicle_index', 'height_nm', 'diameter_nm', 'area_nm2', 'volume_nm3',
@@ -64,7 +68,7 @@ export function vesicleCsvHeader(markers: readonly string[]): string {
  * @param channelIndexes - panel channel indexes in column order
  * @returns the CSV line
  */
-export function vesicleCsvRow(
+export function sampleVesicleCsvRow(
   sampleCode: string,
   v: { fieldId: string; linkRunId: string; index: number; heightNm: number; diameterNm: number; areaNm2: number; volumeNm3: number; markerBits: number; intensities: (number | null)[] },
   channelIndexes: readonly number[],

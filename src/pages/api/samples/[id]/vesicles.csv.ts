@@ -2,7 +2,7 @@ import type { APIRoute } from 'astro';
 import { handle } from '../../../../lib/http/respond';
 import { getPanel, pageVesicles } from '../../../../lib/db/queries/results';
 import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
-import { vesicleCsvHeader, vesicleCsvRow } from '../../../../lib/reporting/exports';
+import { sampleVesicleCsvHeader, sampleVesicleCsvRow } from '../../../../lib/reporting/exports';
 import { safeFileName } from '../../../../lib/reporting/csv';
 
 /** Per-vesicle CSV, streamed page by page (keyset pagination), so any size holds one page in memory. */
@@ -14,13 +14,13 @@ export const GET = handle(async (ctx) => {
   const encoder = new TextEncoder();
   const stream = new ReadableStream<Uint8Array>({
     start(controller) {
-      controller.enqueue(encoder.encode(vesicleCsvHeader(panel.map((c) => c.marker))));
+      controller.enqueue(encoder.encode(sampleVesicleCsvHeader(panel.map((c) => c.marker))));
     },
     async pull(controller) {
       try {
         const next = await pages.next();
         if (next.done) return controller.close();
-        controller.enqueue(encoder.encode(next.value.map((v) => vesicleCsvRow(sel.sample.code, v, channels)).join('')));
+        controller.enqueue(encoder.encode(next.value.map((v) => sampleVesicleCsvRow(sel.sample.code, v, channels)).join('')));
       } catch (err) {
         console.error('[vesicles.csv] stream failed:', err);
         controller.error(err);
