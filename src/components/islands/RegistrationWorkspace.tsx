@@ -4,6 +4,7 @@ import { evaluateRegistration, snapToNearest, proposePartner, applyAffine, inver
 import type { Affine, Point } from '../../lib/analysis/types';
 import type { FieldDetection } from '../../lib/jobs/detectionTypes';
 import type { SavedRegistration } from '../../lib/schemas/registration';
+import AlignmentCheck, { type CheckLayer } from './registration/AlignmentCheck';
 
 interface Pair { afm: Point; fl: Point }
 interface Props {
@@ -13,6 +14,8 @@ interface Props {
   channelLayers: string[];
   latest: SavedRegistration | null;
   canSave: boolean;
+  /** Stored value read-outs for the visual alignment check (height map and channels). */
+  checkLayers?: { height: CheckLayer | null; channels: CheckLayer[] };
 }
 
 const SNAP_PX = 6;
@@ -58,7 +61,7 @@ function drawMarkers(v: OpenSeadragon.Viewer | null, marks: { p: Point; r: numbe
 }
 
 /** The analyst's registration screen: fiducial pairs on the height map and the fluorescence frame. */
-export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, channelLayers, latest, canSave }: Props) {
+export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, channelLayers, latest, canSave, checkLayers }: Props) {
   const leftEl = useRef<HTMLDivElement>(null);
   const rightEl = useRef<HTMLDivElement>(null);
   const left = useRef<OpenSeadragon.Viewer | null>(null);
@@ -291,6 +294,7 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
           <p className="text-xs text-mica-400">Keys: u undo · Delete removes the selected pair · Esc cancels · f find pairs · Ctrl+S save. Select a row, then click an image to move that side of the pair.</p>
         </div>
       </div>
+      <AlignmentCheck fieldId={fieldId} transform={transform} afmPixelNm={afmPixelNm} height={checkLayers?.height ?? null} channels={checkLayers?.channels ?? []} />
     </div>
   );
 }
