@@ -1,5 +1,10 @@
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useId, useRef, useState, type InputHTMLAttributes } from 'react';
 import OpenSeadragon from 'openseadragon';
+import ChannelFilter from './viewer/ChannelFilter';
+import {
+  DEFAULT_HEIGHT_DISPLAY, channelRange, channelTransfer, defaultChannelDisplay, formatCounts, heightFilterCss,
+  isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, type ChannelDisplay, type HeightDisplay,
+} from './viewer/layerDisplay';
 
 export interface ViewerLayer {
   layer: string;
@@ -17,9 +22,18 @@ interface Props {
 
 const NICE_UM = [0.05, 0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 25, 50, 100, 200, 500];
 
-/** Deep-zoom viewer of one field: the height map or the fluorescence channels, with scale bar and read-out. */
+const markerOf = (l: ViewerLayer) => String(l.display.marker ?? l.layer);
+
+/**
+ * Deep-zoom viewer of one field: the height map or the fluorescence channels, with scale bar and read-out.
+ * Each shown layer is its own OpenSeadragon viewer stacked in one box (the first leads, the others follow
+ * its viewport), so each layer can carry its own display filter; channels add up on screen
+ * (`mix-blend-mode: plus-lighter`), as the single-viewer `lighter` compositing did.
+ */
 export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: Props) {
-  const host = useRef<HTMLDivElement>(null);
+  // ids go into CSS `url(#…)`, so keep only characters that need no escaping there
+  const uid = `fv${useId().replace(/[^A-Za-z0-9_-]/g, '')}`;
+  const hosts = useRef<Record<string, HTMLDivElement | null>>({});
   const viewer = useRef<OpenSeadragon.Viewer | null>(null);
   const values = useRef<Record<string, Float32Array>>({});
   const height = layers.find((l) => l.layer === 'height');
@@ -28,12 +42,16 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
   const [visible, setVisible] = useState<Record<string, boolean>>(Object.fromEntries(channels.map((c) => [c.layer, true])));
   const [gain, setGain] = useState<Record<string, number>>(Object.fromEntries(channels.map((c) => [c.layer, 1])));
   const [scale, setScale] = useState<{ px: number; label: string } | null>(null);
-  // display only: brightness and contrast of the rendered view (the data are not changed)
-  const [brightness, setBrightness] = useState(1);
-  const [contrast, setContrast] = useState(1);
+  // display only: per-layer windows and filters (the data and the read-out are not changed)
+  const windows = Object.fromEntries(channels.map((c) => [c.layer, storedWindow(c.display)]));
+  const [chDisplay, setChDisplay] = useState<Record<string, ChannelDisplay>>(() => Object.fromEntries(
+    channels.flatMap((c) => (windows[c.layer] ? [[c.layer, defaultChannelDisplay(windows[c.layer]!)]] : [])),
+  ));
+  const [heightDisplay, setHeightDisplay] = useState<HeightDisplay>(DEFAULT_HEIGHT_DISPLAY);
   const [readout, setReadout] = useState<string>('Move the pointer over the image');
   const shown = mode === 'height' ? (height ? [height] : []) : channels;
   const pixelNm = mode === 'height' ? afmPixelNm : flPixelNm;
+  const navHolder = useRef<HTMLDivElement>(null);
 
   // values for the cursor read-out (downsampled floats, fetched once per layer)
   useEffect(() => {
@@ -46,21 +64,41 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
   }, [fieldId, layers]);
 
   useEffect(() => {
-    if (!host.current) return;
-    const v = OpenSeadragon({
-      element: host.current,
-      tileSources: shown.map((l) => ({ tileSource: `/api/fields/${fieldId}/tiles/${l.layer}.dzi`, compositeOperation: mode === 'fluorescence' ? 'lighter' : undefined })) as never,
+    const elements = shown.map((l) => hosts.current[l.layer]);
+    if (!elements.length || elements.some((e) => !e) || !navHolder.current) return;
+    // OpenSeadragon wraps and later removes its overview element, so it gets one React does not manage
+    const navElement = document.createElement('div');
+    navElement.style.width = '100%';
+    navElement.style.height = '100%';
+    navHolder.current.replaceChildren(navElement);
+    const viewers = shown.map((l, i) => OpenSeadragon({
+      element: elements[i]!,
+      tileSources: `/api/fields/${fieldId}/tiles/${l.layer}.dzi`,
       showNavigationControl: false,
-      showNavigator: true,
-      navigatorPosition: 'BOTTOM_RIGHT',
+      showNavigator: i === 0,
+      navigatorElement: i === 0 ? navElement : undefined,
+      mouseNavEnabled: i === 0,
       gestureSettingsMouse: { clickToZoom: false },
       maxZoomPixelRatio: 8,
       crossOriginPolicy: false,
       ajaxWithCredentials: true,
       immediateRender: false,
       imageSmoothingEnabled: false,
-    });
+    } as OpenSeadragon.Options));
+    const [v, ...followers] = viewers;
+    setReadout('Move the pointer over the image');
     viewer.current = v;
+    // followers take the leader's current viewport on every frame, so the layers never drift apart
+    const sync = () => {
+      const zoom = v.viewport.getZoom(true);
+      const centre = v.viewport.getCenter(true);
+      for (const f of followers) {
+        f.viewport.zoomTo(zoom, undefined, true);
+        f.viewport.panTo(centre, true);
+      }
+    };
+    for (const ev of ['animation', 'animation-finish', 'viewport-change', 'resize'] as const) v.addHandler(ev, sync);
+    followers.forEach((f) => f.addHandler('open', sync));
     const updateScale = () => {
       const item = v.world.getItemAt(0);
       if (!item) return;
@@ -73,7 +111,7 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
     v.addHandler('animation', updateScale);
     v.addHandler('open', updateScale);
     const tracker = new OpenSeadragon.MouseTracker({
-      element: host.current,
+      element: elements[0]!,
       moveHandler: (e) => {
         const item = v.world.getItemAt(0);
         if (!item) return;
@@ -89,14 +127,15 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
           const w = Number(l.display.valuesWidth ?? 0);
           if (!vals || !w) return null;
           const val = vals[Math.floor(Math.round(y) / f) * w + Math.floor(Math.round(x) / f)];
-          return l.layer === 'height' ? `height ${val.toFixed(2)} nm` : `${String(l.display.marker ?? l.layer)} ${Math.round(val)} counts`;
+          return l.layer === 'height' ? `height ${val.toFixed(2)} nm` : `${markerOf(l)} ${Math.round(val)} counts`;
         }).filter(Boolean);
         setReadout([pos, ...parts].join(' · '));
       },
     });
     return () => {
       tracker.destroy();
-      v.destroy();
+      viewers.forEach((x) => x.destroy());
+      navElement.remove();
       viewer.current = null;
     };
   }, [fieldId, mode]);
@@ -114,62 +153,167 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
       const tl = item.imageToViewportCoordinates(x + 0.5 - r, y + 0.5 - r);
       const br = item.imageToViewportCoordinates(x + 0.5 + r, y + 0.5 + r);
       v.viewport.fitBounds(new OpenSeadragon.Rect(tl.x, tl.y, br.x - tl.x, br.y - tl.y));
-      host.current?.scrollIntoView({ behavior: 'smooth', block: 'center' });
+      hosts.current[shown[0]?.layer ?? '']?.scrollIntoView({ behavior: 'smooth', block: 'center' });
     };
     window.addEventListener('heightlight:focus-vesicle', onFocus);
     return () => window.removeEventListener('heightlight:focus-vesicle', onFocus);
   }, [fieldId, mode]);
 
-  useEffect(() => {
-    const v = viewer.current;
-    if (!v || mode !== 'fluorescence') return;
-    channels.forEach((c, i) => {
-      const item = v.world.getItemAt(i);
-      if (item) item.setOpacity(visible[c.layer] ? Math.min(1, gain[c.layer]) : 0);
-    });
-  }, [visible, gain, mode]);
-
   const colourBar = (height?.display.colourBar ?? []) as { offset: number; valueNm: number; colour: string }[];
+  const filterId = (layer: string) => `${uid}-${layer}-display`;
+
+  /** The CSS filter and filter definition of one layer (none while it shows the tiles as rendered). */
+  const layerLook = (l: ViewerLayer) => {
+    if (l.layer === 'height') return { filter: heightFilterCss(heightDisplay), defs: null };
+    const w = windows[l.layer];
+    const d = chDisplay[l.layer];
+    const tint = parseTint(l.display.colour);
+    if (!w || !d || !tint || isDefaultChannelDisplay(w, d)) return { filter: 'none', defs: null };
+    return { filter: `url(#${filterId(l.layer)})`, defs: <ChannelFilter key={l.layer} id={filterId(l.layer)} transfer={channelTransfer(w, d, tint)} /> };
+  };
+  const looks = Object.fromEntries(shown.map((l) => [l.layer, layerLook(l)]));
 
   return (
     <div className="space-y-3">
       <div className="flex flex-wrap gap-2 items-center">
         {height && <button type="button" className={mode === 'height' ? 'btn' : 'btn btn-quiet'} onClick={() => setMode('height')}>Height map</button>}
         {channels.length > 0 && <button type="button" className={mode === 'fluorescence' ? 'btn' : 'btn btn-quiet'} onClick={() => setMode('fluorescence')}>Fluorescence</button>}
-        {mode === 'fluorescence' && channels.map((c) => (
-          <span key={c.layer} className="inline-flex items-center gap-2 text-sm border border-mica-200 rounded-md px-2 py-1 bg-white">
-            <input type="checkbox" aria-label={`Show ${String(c.display.marker ?? c.layer)}`} checked={visible[c.layer]} onChange={(e) => setVisible({ ...visible, [c.layer]: e.target.checked })} />
-            <span className="inline-block w-3 h-3 rounded-full" style={{ background: String(c.display.colour ?? '#fff') }} />
-            {String(c.display.marker ?? c.layer)}
-            <input type="range" min={0.1} max={1} step={0.05} value={gain[c.layer]} aria-label={`Opacity of ${String(c.display.marker ?? c.layer)}`} onChange={(e) => setGain({ ...gain, [c.layer]: Number(e.target.value) })} />
-          </span>
-        ))}
       </div>
-      <div className="relative">
-        <div ref={host} className="w-full h-[560px] bg-black rounded-lg" data-testid="field-viewer" style={{ filter: `brightness(${brightness}) contrast(${contrast})` }} />
+      <div className="relative w-full h-[560px] bg-black rounded-lg overflow-hidden isolate" data-testid="field-viewer">
+        {shown.map((l, i) => (
+          <div
+            key={`${mode}-${l.layer}`}
+            ref={(el) => { hosts.current[l.layer] = el; }}
+            className="absolute inset-0"
+            data-testid={`viewer-layer-${l.layer}`}
+            data-layer={l.layer}
+            style={{
+              // the leader is on top and takes the pointer; the followers only draw
+              zIndex: shown.length - i,
+              pointerEvents: i === 0 ? 'auto' : 'none',
+              mixBlendMode: mode === 'fluorescence' ? 'plus-lighter' : 'normal',
+              // hidden layers stay in the stack (opacity 0) so the leader keeps its pointer events
+              opacity: mode === 'fluorescence' ? (visible[l.layer] ? gain[l.layer] : 0) : 1,
+              filter: looks[l.layer].filter,
+            }}
+          />
+        ))}
+        {shown.map((l) => looks[l.layer].defs)}
+        <div ref={navHolder} className="absolute right-3 bottom-3 w-40 h-40 z-20 border border-white/40 bg-black" aria-label="Overview" />
         {scale && (
-          <div className="absolute left-3 bottom-3 text-white text-xs" data-testid="scale-bar">
+          <div className="absolute left-3 bottom-3 text-white text-xs z-20 pointer-events-none" data-testid="scale-bar">
             <div style={{ width: scale.px }} className="h-1.5 bg-white rounded-sm" />
             <div className="mt-1 drop-shadow">{scale.label}</div>
           </div>
         )}
-      </div>
-      <div className="flex flex-wrap gap-4 items-center text-sm text-mica-600">
-        <label className="inline-flex items-center gap-2">Brightness <input type="range" min={0.5} max={4} step={0.1} value={brightness} onChange={(e) => setBrightness(Number(e.target.value))} /></label>
-        <label className="inline-flex items-center gap-2">Contrast <input type="range" min={0.5} max={3} step={0.1} value={contrast} onChange={(e) => setContrast(Number(e.target.value))} /></label>
-        <button type="button" className="underline" onClick={() => { setBrightness(1); setContrast(1); }}>reset display</button>
-        <span className="text-xs text-mica-400">Display only; read-outs show the stored values.</span>
       </div>
       <div className="flex flex-wrap justify-between gap-4 items-center text-sm">
         <div className="font-mono text-mica-600" data-testid="readout">{readout}</div>
         {mode === 'height' && colourBar.length > 0 && (
           <div className="flex items-center gap-2" aria-label="Height colour bar">
             <span>{colourBar[0].valueNm.toFixed(1)} nm</span>
-            <div className="w-48 h-3 rounded" style={{ background: `linear-gradient(to right, ${colourBar.map((s) => `${s.colour} ${s.offset * 100}%`).join(', ')})` }} />
+            {/* same filter as the map, so each height keeps the colour it has on screen */}
+            <div className="w-48 h-3 rounded" style={{ filter: heightFilterCss(heightDisplay), background: `linear-gradient(to right, ${colourBar.map((s) => `${s.colour} ${s.offset * 100}%`).join(', ')})` }} />
             <span>{colourBar[colourBar.length - 1].valueNm.toFixed(1)} nm</span>
           </div>
         )}
       </div>
+      <div className="border border-mica-200 rounded-lg bg-white divide-y divide-mica-100 text-sm" aria-label="Display of each layer">
+        {mode === 'height' && height && (
+          <HeightRow display={heightDisplay} onChange={setHeightDisplay} />
+        )}
+        {mode === 'fluorescence' && channels.map((c) => (
+          <ChannelRow
+            key={c.layer}
+            layer={c}
+            visible={visible[c.layer]}
+            onVisible={(on) => setVisible({ ...visible, [c.layer]: on })}
+            opacity={gain[c.layer]}
+            onOpacity={(o) => setGain({ ...gain, [c.layer]: o })}
+            display={chDisplay[c.layer]}
+            onDisplay={(which, counts) => {
+              const w = windows[c.layer];
+              if (w) setChDisplay({ ...chDisplay, [c.layer]: setChannelPoint(w, chDisplay[c.layer], which, counts) });
+            }}
+            onReset={() => {
+              const w = windows[c.layer];
+              if (w) setChDisplay({ ...chDisplay, [c.layer]: defaultChannelDisplay(w) });
+              setGain({ ...gain, [c.layer]: 1 });
+            }}
+          />
+        ))}
+        <p className="px-3 py-2 text-xs text-mica-400">
+          Display only: each setting changes how its layer looks on screen. The read-out{mode === 'height' ? ', the colour bar values' : ''} and all measurements use the stored values.
+        </p>
+      </div>
+    </div>
+  );
+}
+
+const ROW = 'grid grid-cols-[8rem_minmax(0,1fr)_minmax(0,1.3fr)_minmax(0,1.3fr)_auto] items-center gap-x-5 px-3 py-2';
+
+/** A labelled slider with its current value (and unit) above it. */
+function Slider({ label, shows, valueTestId, ...input }: { label: string; shows: string; valueTestId?: string } & InputHTMLAttributes<HTMLInputElement>) {
+  return (
+    <label className="block min-w-0">
+      <span className="flex justify-between gap-2 text-xs text-mica-600">
+        <span>{label}</span>
+        <span className="tabular-nums text-mica-800" data-testid={valueTestId}>{shows}</span>
+      </span>
+      <input type="range" className="w-full accent-tip-600" {...input} />
+    </label>
+  );
+}
+
+function HeightRow({ display, onChange }: { display: HeightDisplay; onChange: (d: HeightDisplay) => void }) {
+  return (
+    <div className={ROW} data-testid="layer-controls-height">
+      <span className="font-medium text-mica-800">Height map</span>
+      <Slider label="Brightness" shows={`${display.brightnessPct} %`} min={50} max={300} step={5} value={display.brightnessPct}
+        aria-label="Brightness of the height map" onChange={(e) => onChange({ ...display, brightnessPct: Number(e.target.value) })} />
+      <Slider label="Contrast" shows={`${display.contrastPct} %`} min={50} max={300} step={5} value={display.contrastPct}
+        aria-label="Contrast of the height map" onChange={(e) => onChange({ ...display, contrastPct: Number(e.target.value) })} />
+      <span />
+      <button type="button" className="btn btn-quiet" aria-label="Reset height map display" onClick={() => onChange(DEFAULT_HEIGHT_DISPLAY)}>Reset</button>
+    </div>
+  );
+}
+
+interface ChannelRowProps {
+  layer: ViewerLayer;
+  visible: boolean;
+  onVisible: (on: boolean) => void;
+  opacity: number;
+  onOpacity: (o: number) => void;
+  display: ChannelDisplay | undefined;
+  onDisplay: (which: 'black' | 'white', counts: number) => void;
+  onReset: () => void;
+}
+
+function ChannelRow({ layer, visible, onVisible, opacity, onOpacity, display, onDisplay, onReset }: ChannelRowProps) {
+  const name = markerOf(layer);
+  const w = storedWindow(layer.display);
+  const range = w ? channelRange(w) : null;
+  return (
+    <div className={ROW} data-testid={`layer-controls-${layer.layer}`}>
+      <label className="inline-flex items-center gap-2 font-medium text-mica-800">
+        <input type="checkbox" className="accent-tip-600" aria-label={`Show ${name}`} checked={visible} onChange={(e) => onVisible(e.target.checked)} />
+        <span className="inline-block w-3 h-3 rounded-full" style={{ background: String(layer.display.colour ?? '#fff') }} />
+        {name}
+      </label>
+      <Slider label="Opacity" shows={`${Math.round(opacity * 100)} %`} min={0.1} max={1} step={0.05} value={opacity}
+        aria-label={`Opacity of ${name}`} onChange={(e) => onOpacity(Number(e.target.value))} />
+      {range && display ? (
+        <>
+          <Slider label="Black at" shows={formatCounts(display.blackCounts)} valueTestId={`black-${layer.layer}`} min={range.min} max={range.max} step={range.step}
+            value={display.blackCounts} aria-label={`Black level of ${name}`} onChange={(e) => onDisplay('black', Number(e.target.value))} />
+          <Slider label="Full colour at" shows={formatCounts(display.whiteCounts)} valueTestId={`white-${layer.layer}`} min={range.min} max={range.max} step={range.step}
+            value={display.whiteCounts} aria-label={`Full colour level of ${name}`} onChange={(e) => onDisplay('white', Number(e.target.value))} />
+        </>
+      ) : (
+        <span className="col-span-2 text-xs text-mica-400">Levels appear once the field has been processed again.</span>
+      )}
+      <button type="button" className="btn btn-quiet" aria-label={`Reset display of ${name}`} onClick={onReset}>Reset</button>
     </div>
   );
 }
