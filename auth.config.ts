@@ -13,6 +13,7 @@ import { verifyPassword } from './src/lib/auth/passwords';
 import { isSignInBlocked, recordSignInAttempt } from './src/lib/auth/rateLimit';
 import { audit } from './src/lib/audit';
 import { currentIp } from './src/lib/http/requestContext';
+import { SESSION_MAX_AGE_S } from './src/lib/auth/session';
 
 class TooManyAttempts extends CredentialsSignin {
   code = 'too_many_attempts';
@@ -24,7 +25,8 @@ const SignInInput = z.object({ email: z.string().trim().toLowerCase().email().ma
 export default defineConfig({
   secret: process.env.AUTH_SECRET,
   trustHost: true,
-  session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
+  // renewed by the middleware once an hour old, so a session ends 12 h after the last request
+  session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },
   pages: { signIn: '/signin', error: '/signin' },
   providers: [
     Credentials({

@@ -4,7 +4,7 @@
  */
 import { defineMiddleware } from 'astro:middleware';
 import { getDb } from './lib/db/client';
-import { loadSessionUser } from './lib/auth/session';
+import { loadSession, renewedSessionCookie } from './lib/auth/session';
 import { requestContext } from './lib/http/requestContext';
 
 const PUBLIC_PAGES = ['/signin', '/invite/', '/reset', '/favicon.svg', '/_astro/', '/api/auth/', '/api/invitations/', '/api/password-reset'];
@@ -46,9 +46,12 @@ function securityHeaders(original: Response) {
 export const onRequest = defineMiddleware(async (ctx, next) => {
   const path = ctx.url.pathname;
   ctx.locals.user = null;
+  let expiresAtMs: number | null = null;
   if (!path.startsWith('/_astro/')) {
     try {
-      ctx.locals.user = await loadSessionUser(await getDb(), ctx.request);
+      const session = await loadSession(await getDb(), ctx.request);
+      ctx.locals.user = session?.user ?? null;
+      expiresAtMs = session?.expiresAtMs ?? null;
     } catch (err) {
       console.error('[middleware] session lookup failed:', (err as Error).message);
       if (path.startsWith('/api/')) {
@@ -69,6 +72,11 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
   } catch {
     /* not available for prerendered routes */
   }
-  const res = await requestContext.run({ ip }, () => next());
-  return securityHeaders(res);
+  const res = securityHeaders(await requestContext.run({ ip }, () => next()));
+  // Auth.js's own routes set or clear the session cookie themselves (sign-out must not be undone)
+  if (expiresAtMs !== null && !path.startsWith('/api/auth/')) {
+    const renewed = await renewedSessionCookie(ctx.request, expiresAtMs);
+    if (renewed) res.headers.append('set-cookie', renewed);
+  }
+  return res;
 });

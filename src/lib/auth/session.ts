@@ -4,7 +4,7 @@
  * that forgets a row as soon as it changes (accessCache.ts), so a change by an admin takes effect at once.
  */
 import { eq, and } from 'drizzle-orm';
-import { getToken } from '@auth/core/jwt';
+import { encode, getToken } from '@auth/core/jwt';
 import type { Db } from '../db/client';
 import { users, studyMembers, studies } from '../db/schema';
 import { HttpError, unauthorized, forbidden } from '../http/errors';
@@ -28,12 +28,23 @@ export function appAccessCache(db: Db): AccessCache | null {
   return g.__heightlightAccess;
 }
 
-/**
- * Reads the session cookie and loads the active user it names, or null. The encrypted session token
- * is decoded directly (Auth.js's own getToken) rather than through a full internal session request,
- * which halves the cost of every signed-in request; sessions therefore end 12 h after sign-in.
- */
+/** A session lasts this long after the last request that renewed it (s). */
+export const SESSION_MAX_AGE_S = 12 * 60 * 60;
+/** A session cookie is renewed once it is this old (ms), so an active user stays signed in. */
+const RENEW_AFTER_MS = 60 * 60 * 1000;
+
+/** Reads the session cookie and loads the active user it names, or null. See {@link loadSession}. */
 export async function loadSessionUser(db: Db, request: Request): Promise<SessionUser | null> {
+  return (await loadSession(db, request))?.user ?? null;
+}
+
+/**
+ * Reads the session cookie and loads the active user it names, with when the cookie runs out, or null. The
+ * encrypted session token is decoded directly (Auth.js's own getToken) rather than through a full internal
+ * session request, which halves the cost of every signed-in request; {@link renewedSessionCookie} then does
+ * what that request would have done: keep an active session alive.
+ */
+export async function loadSession(db: Db, request: Request): Promise<{ user: SessionUser; expiresAtMs: number } | null> {
   const cookie = request.headers.get('cookie') ?? '';
   if (!cookie.includes('session-token')) return null;
   // behind TLS Auth.js names the cookie __Secure-authjs.session-token (the proxy may speak http to us)
@@ -56,7 +67,29 @@ export async function loadSessionUser(db: Db, request: Request): Promise<Session
   if (!id) return null;
   const row = cache ? await cache.user(id, () => loadUser(id)) : await loadUser(id);
   if (!row || !row.active) return null;
-  return { id: row.id, email: row.email, name: row.name, role: row.role };
+  return { user: { id: row.id, email: row.email, name: row.name, role: row.role }, expiresAtMs: token.expiresAtMs };
+}
+
+/**
+ * A Set-Cookie value that renews the session for another {@link SESSION_MAX_AGE_S}, when the cookie presented
+ * was issued more than an hour ago (it then has less than its full life left); null otherwise. So a session
+ * ends 12 h after the last request, not 12 h after sign-in. The new token carries the same claims, made by
+ * Auth.js's own encode with the cookie's name and attributes as Auth.js sets them.
+ *
+ * @param request - a request whose session was accepted by {@link loadSession}
+ * @param expiresAtMs - when that session runs out (ms since epoch)
+ */
+export async function renewedSessionCookie(request: Request, expiresAtMs: number): Promise<string | null> {
+  if (expiresAtMs - Date.now() > SESSION_MAX_AGE_S * 1000 - RENEW_AFTER_MS) return null;
+  const cookie = request.headers.get('cookie') ?? '';
+  const secureCookie = cookie.includes('__Secure-authjs.session-token');
+  const name = secureCookie ? '__Secure-authjs.session-token' : 'authjs.session-token';
+  const secret = process.env.AUTH_SECRET ?? '';
+  const token = await getToken({ req: request, secret, secureCookie }).catch(() => null);
+  if (!token) return null;
+  const { iat: _iat, exp: _exp, jti: _jti, ...claims } = token;
+  const value = await encode({ token: claims, secret, salt: name, maxAge: SESSION_MAX_AGE_S });
+  return `${name}=${value}; Path=/; Max-Age=${SESSION_MAX_AGE_S}; HttpOnly; SameSite=Lax${secureCookie ? '; Secure' : ''}`;
 }
 
 /** The signed-in user, or 401. */
