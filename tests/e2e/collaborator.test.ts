@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs';
 import type { Browser } from 'playwright-core';
 import { createDb, type Db } from '../../src/lib/db/client';
 import { summariseLinkRun } from '../../src/lib/db/queries/linkRunSummaries';
-import { launch, signInAs, screenshot } from '../support/browser';
+import { islandsReady, launch, signInAs, screenshot } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 
@@ -71,6 +71,7 @@ describe('collaborator results in Chromium', () => {
     await expect(page.getByTestId('released-samples').first().textContent()).resolves.toContain('HCP-001');
     await page.getByRole('link', { name: 'Compare groups' }).first().click();
     await page.waitForURL((u) => u.pathname === `/studies/${studyId}/compare`);
+    await islandsReady(page); // a group chosen before the dashboard hydrates is reset
     expect(await page.getByTestId('research-caution').isVisible()).toBe(true);
     await page.getByLabel('Group A').selectOption('patient');
     await page.getByLabel('Group B').selectOption('healthy control');

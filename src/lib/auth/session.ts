@@ -33,10 +33,14 @@ export const SESSION_MAX_AGE_S = 12 * 60 * 60;
 /** A session cookie is renewed once it is this old (ms), so an active user stays signed in. */
 const RENEW_AFTER_MS = 60 * 60 * 1000;
 
-/** Reads the session cookie and loads the active user it names, or null. See {@link loadSession}. */
-export async function loadSessionUser(db: Db, request: Request): Promise<SessionUser | null> {
-  return (await loadSession(db, request))?.user ?? null;
-}
+const SECURE_SESSION_COOKIE = '__Secure-authjs.session-token';
+
+/** Whether the request carries Auth.js's secure-named session cookie (it is, behind TLS; the proxy may speak http to us). */
+const usesSecureCookie = (request: Request) => (request.headers.get('cookie') ?? '').includes(SECURE_SESSION_COOKIE);
+
+/** The session token's claims as Auth.js's own getToken reads them, or null. */
+const readToken = (request: Request) =>
+  getToken({ req: request, secret: process.env.AUTH_SECRET ?? '', secureCookie: usesSecureCookie(request) }).catch(() => null);
 
 /**
  * Reads the session cookie and loads the active user it names, with when the cookie runs out, or null. The
@@ -47,10 +51,8 @@ export async function loadSessionUser(db: Db, request: Request): Promise<Session
 export async function loadSession(db: Db, request: Request): Promise<{ user: SessionUser; expiresAtMs: number } | null> {
   const cookie = request.headers.get('cookie') ?? '';
   if (!cookie.includes('session-token')) return null;
-  // behind TLS Auth.js names the cookie __Secure-authjs.session-token (the proxy may speak http to us)
-  const secureCookie = cookie.includes('__Secure-authjs.session-token');
   const decode = async () => {
-    const token = await getToken({ req: request, secret: process.env.AUTH_SECRET ?? '', secureCookie }).catch(() => null);
+    const token = await readToken(request);
     if (typeof token?.uid !== 'string') return null;
     return { uid: token.uid, expiresAtMs: typeof token.exp === 'number' ? token.exp * 1000 : Date.now() + 60_000 };
   };
@@ -62,7 +64,7 @@ export async function loadSession(db: Db, request: Request): Promise<{ user: Ses
     return row ?? null;
   };
   const cache = appAccessCache(db);
-  const token = cache ? await cache.token(`${secureCookie}|${cookie}`, decode) : await decode();
+  const token = cache ? await cache.token(cookie, decode) : await decode();
   const id = token?.uid;
   if (!id) return null;
   const row = cache ? await cache.user(id, () => loadUser(id)) : await loadUser(id);
@@ -81,14 +83,12 @@ export async function loadSession(db: Db, request: Request): Promise<{ user: Ses
  */
 export async function renewedSessionCookie(request: Request, expiresAtMs: number): Promise<string | null> {
   if (expiresAtMs - Date.now() > SESSION_MAX_AGE_S * 1000 - RENEW_AFTER_MS) return null;
-  const cookie = request.headers.get('cookie') ?? '';
-  const secureCookie = cookie.includes('__Secure-authjs.session-token');
-  const name = secureCookie ? '__Secure-authjs.session-token' : 'authjs.session-token';
-  const secret = process.env.AUTH_SECRET ?? '';
-  const token = await getToken({ req: request, secret, secureCookie }).catch(() => null);
+  const secureCookie = usesSecureCookie(request);
+  const name = secureCookie ? SECURE_SESSION_COOKIE : 'authjs.session-token';
+  const token = await readToken(request);
   if (!token) return null;
   const { iat: _iat, exp: _exp, jti: _jti, ...claims } = token;
-  const value = await encode({ token: claims, secret, salt: name, maxAge: SESSION_MAX_AGE_S });
+  const value = await encode({ token: claims, secret: process.env.AUTH_SECRET ?? '', salt: name, maxAge: SESSION_MAX_AGE_S });
   return `${name}=${value}; Path=/; Max-Age=${SESSION_MAX_AGE_S}; HttpOnly; SameSite=Lax${secureCookie ? '; Secure' : ''}`;
 }
 

@@ -6,25 +6,21 @@
 import { LRUCache } from 'lru-cache';
 import type { Db } from '../db/client';
 import { getComparisonFacts, getPanel, getStudyComparison } from '../db/queries/results';
-import { appAccessCache } from '../auth/session';
+import { rememberedReply } from './rememberedReply';
 import type { ResultSource, StudyComparison } from './types';
 
 const remembered = new LRUCache<string, StudyComparison>({ max: 200, ttl: 10 * 60_000 });
 
 /**
  * The comparison of groups A and B (null: no pair) in study `studyId`, or null when there is no such study.
- * Only the app's own database handle remembers (scripts and tests with their own handle compute afresh).
  */
 export async function studyComparison(db: Db, studyId: string, source: ResultSource, groupA: string | null, groupB: string | null): Promise<StudyComparison | null> {
   const facts = await getComparisonFacts(db, studyId, source);
   if (!facts) return null;
   const study = { id: studyId, name: facts.name };
-  if (!appAccessCache(db)?.active) return getStudyComparison(db, study, source, groupA, groupB);
-  const panel = await getPanel(db, studyId);
-  const key = JSON.stringify([studyId, facts.name, source, groupA, groupB, facts.fingerprint, panel.map((c) => [c.channelIndex, c.marker])]);
-  const hit = remembered.get(key);
-  if (hit) return hit;
-  const fresh = await getStudyComparison(db, study, source, groupA, groupB);
-  remembered.set(key, fresh);
-  return fresh;
+  return rememberedReply(
+    db, remembered,
+    async () => JSON.stringify([studyId, facts.name, source, groupA, groupB, facts.fingerprint, (await getPanel(db, studyId)).map((c) => [c.channelIndex, c.marker])]),
+    () => getStudyComparison(db, study, source, groupA, groupB),
+  );
 }

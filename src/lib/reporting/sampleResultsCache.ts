@@ -9,7 +9,7 @@
 import { LRUCache } from 'lru-cache';
 import type { Db } from '../db/client';
 import { getPanel, getSampleResults } from '../db/queries/results';
-import { appAccessCache } from '../auth/session';
+import { rememberedReply } from './rememberedReply';
 import type { ResultsSelection } from './access';
 import type { SampleResults } from './types';
 
@@ -25,16 +25,7 @@ export function sampleResultsKey(sel: ResultsSelection, panel: { channelIndex: n
   ]);
 }
 
-/**
- * getSampleResults through the per-process memory. Only the app's own database handle uses it (as for
- * the access memory), so scripts and tests that build their own handle always compute afresh.
- */
+/** getSampleResults through the per-process memory ({@link rememberedReply}). */
 export async function sampleResultsFor(db: Db, sel: ResultsSelection): Promise<SampleResults> {
-  if (!appAccessCache(db)?.active) return getSampleResults(db, sel.sample, sel);
-  const key = sampleResultsKey(sel, await getPanel(db, sel.sample.studyId));
-  const hit = remembered.get(key);
-  if (hit) return hit;
-  const fresh = await getSampleResults(db, sel.sample, sel);
-  remembered.set(key, fresh);
-  return fresh;
+  return rememberedReply(db, remembered, async () => sampleResultsKey(sel, await getPanel(db, sel.sample.studyId)), () => getSampleResults(db, sel.sample, sel));
 }
