@@ -1,4 +1,4 @@
-/** One pg-boss instance per process, against the app's PostgreSQL (schema `pgboss`). */
+/** One pg-boss instance per process, against the app's PostgreSQL (schema `pgboss` unless JOB_QUEUE_SCHEMA says otherwise). */
 import PgBoss from 'pg-boss';
 import { QUEUES } from './queues';
 
@@ -15,13 +15,25 @@ export function jobExpireSeconds(): number {
   return Number.isInteger(v) && v >= 1 ? v : 15 * 60;
 }
 
+/**
+ * The PostgreSQL schema that holds the queue, from JOB_QUEUE_SCHEMA. Workers only see jobs of their
+ * own schema, so two installations can share one database, and a test can run workers of its own.
+ * @returns a lower-case SQL identifier; `pgboss` unless the environment says otherwise
+ */
+export function jobQueueSchema(): string {
+  const v = process.env.JOB_QUEUE_SCHEMA;
+  if (v === undefined || v === '') return 'pgboss';
+  if (!/^[a-z_][a-z0-9_]{0,62}$/.test(v)) throw new Error(`JOB_QUEUE_SCHEMA must be a lower-case SQL name (letters, digits, _), not "${v}"`);
+  return v;
+}
+
 export function getBoss(databaseUrl: string): Promise<PgBoss> {
   if (boss) return Promise.resolve(boss);
   starting ??= (async () => {
     const expireInSeconds = jobExpireSeconds();
     // Expired jobs are found by the maintenance sweep; check often enough that a short expiry means something.
     const maintenanceIntervalSeconds = Math.max(1, Math.min(120, Math.floor(expireInSeconds / 4)));
-    const b = new PgBoss({ connectionString: databaseUrl, max: 4, schedule: false, maintenanceIntervalSeconds });
+    const b = new PgBoss({ connectionString: databaseUrl, schema: jobQueueSchema(), max: 4, schedule: false, maintenanceIntervalSeconds });
     b.on('error', (err) => console.error('[jobs] pg-boss error:', err.message));
     await b.start();
     for (const name of Object.values(QUEUES)) {

@@ -53,6 +53,7 @@ export async function registerHandlers(boss: PgBoss) {
   });
   await boss.work<{ fieldId: string }>(QUEUES.ingestField, { batchSize: 1 }, async ([job]) => {
     const started = Date.now();
+    console.log(`[worker] ingesting field ${job.data.fieldId} (job ${job.id})`);
     try {
       const r = await ingestField({ db: await getDb(), st: await getStorage(), decodeLimits: { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES } }, job.data.fieldId);
       console.log(`[worker] ingested field ${job.data.fieldId} in ${Date.now() - started} ms`, r);
