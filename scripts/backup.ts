@@ -14,10 +14,11 @@ import { dirname, join, resolve, sep } from 'node:path';
 import { Transform } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import type { Readable } from 'node:stream';
-import { GetObjectCommand, ListObjectsV2Command } from '@aws-sdk/client-s3';
+import { GetObjectCommand } from '@aws-sdk/client-s3';
 import { findBinDir } from './lib/postgres';
 import { config } from '../src/lib/config';
 import { createStorage, type Storage } from '../src/lib/storage/client';
+import { listPages } from '../src/lib/storage/objects';
 
 export const MANIFEST_VERSION = 1;
 
@@ -62,14 +63,9 @@ export async function hashFile(path: string): Promise<{ sha256: string; sizeByte
   return { sha256: h.digest('hex'), sizeBytes: statSync(path).size };
 }
 
-/** Every key of the bucket, page by page (ListObjectsV2). */
+/** Every key of the bucket, page by page. */
 export async function* listAll(st: Storage): AsyncGenerator<string> {
-  let token: string | undefined;
-  do {
-    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, ContinuationToken: token }));
-    for (const o of page.Contents ?? []) yield o.Key!;
-    token = page.IsTruncated ? page.NextContinuationToken : undefined;
-  } while (token);
+  for await (const page of listPages(st)) for (const o of page) yield o.Key!;
 }
 
 /** Streams one object to `path`, hashing on the way. */

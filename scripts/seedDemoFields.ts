@@ -30,28 +30,43 @@ export async function seedDemoFields(db: Db, st: Storage, enqueue: (fieldId: str
     if (!sample) continue;
     const existing = await db.select({ id: fields.id }).from(fields).where(and(eq(fields.sampleId, sample.id), eq(fields.name, spec.name)));
     if (existing.length) continue;
-    const pair = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
-    const fieldId = randomUUID();
-    const topoId = randomUUID();
-    const flId = randomUUID();
-    await putBytes(st, rawFileKey(fieldId, topoId), pair.topographyTiff, 'image/tiff');
-    await putBytes(st, rawFileKey(fieldId, flId), pair.fluorescenceTiff, 'image/tiff');
-    const tMeta = inspectTiff(pair.topographyTiff);
-    const fMeta = inspectTiff(pair.fluorescenceTiff);
-    await db.transaction(async (tx) => {
-      await tx.insert(fields).values({
-        id: fieldId, sampleId: sample.id, name: spec.name, status: 'ingesting', afmPixelNm: pair.afmPixelNm, afmScanSizeNm: pair.afmPixelNm * tMeta.width,
-        tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'tapping', flPixelNm: pair.flPixelNm, objectiveNa: 1.4, exposureMs: 100,
-        channelEmissionNm: [520, 590, 670], afmWidthPx: tMeta.width, afmHeightPx: tMeta.height, flWidthPx: fMeta.width, flHeightPx: fMeta.height,
-        createdBy: biologist?.id, progress: { stage: 'queued', fraction: 0 },
-      });
-      await tx.insert(fieldFiles).values([
-        { id: topoId, fieldId, kind: 'topography', objectKey: rawFileKey(fieldId, topoId), originalName: `${spec.code}-${spec.name.replace(' ', '')}-height.tif`, sizeBytes: pair.topographyTiff.length, meta: { pageCount: 1 } },
-        { id: flId, fieldId, kind: 'fluorescence', channelIndex: 0, objectKey: rawFileKey(fieldId, flId), originalName: `${spec.code}-${spec.name.replace(' ', '')}-fluorescence.tif`, sizeBytes: pair.fluorescenceTiff.length, meta: { pageCount: 3 } },
-      ]);
+    const fieldId = await insertDemoField(db, st, {
+      sampleId: sample.id, name: spec.name, seed: spec.seed, positiveFractions: spec.positiveFractions, createdBy: biologist?.id, filePrefix: `${spec.code}-${spec.name.replace(' ', '')}`,
     });
     await enqueue(fieldId);
     created.push(fieldId);
   }
   return created;
+}
+
+/**
+ * One generated field of a sample, its two files in the bucket and its rows, status "ingesting"
+ * (not yet queued).
+ * @returns the new field's id
+ */
+export async function insertDemoField(
+  db: Db, st: Storage,
+  o: { sampleId: string; name: string; seed: number; positiveFractions: number[]; createdBy?: string; filePrefix: string },
+): Promise<string> {
+  const pair = makeDemoPair({ seed: o.seed, positiveFractions: o.positiveFractions });
+  const fieldId = randomUUID();
+  const topoId = randomUUID();
+  const flId = randomUUID();
+  await putBytes(st, rawFileKey(fieldId, topoId), pair.topographyTiff, 'image/tiff');
+  await putBytes(st, rawFileKey(fieldId, flId), pair.fluorescenceTiff, 'image/tiff');
+  const tMeta = inspectTiff(pair.topographyTiff);
+  const fMeta = inspectTiff(pair.fluorescenceTiff);
+  await db.transaction(async (tx) => {
+    await tx.insert(fields).values({
+      id: fieldId, sampleId: o.sampleId, name: o.name, status: 'ingesting', afmPixelNm: pair.afmPixelNm, afmScanSizeNm: pair.afmPixelNm * tMeta.width,
+      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'tapping', flPixelNm: pair.flPixelNm, objectiveNa: 1.4, exposureMs: 100,
+      channelEmissionNm: [520, 590, 670], afmWidthPx: tMeta.width, afmHeightPx: tMeta.height, flWidthPx: fMeta.width, flHeightPx: fMeta.height,
+      createdBy: o.createdBy, progress: { stage: 'queued', fraction: 0 },
+    });
+    await tx.insert(fieldFiles).values([
+      { id: topoId, fieldId, kind: 'topography', objectKey: rawFileKey(fieldId, topoId), originalName: `${o.filePrefix}-height.tif`, sizeBytes: pair.topographyTiff.length, meta: { pageCount: 1 } },
+      { id: flId, fieldId, kind: 'fluorescence', channelIndex: 0, objectKey: rawFileKey(fieldId, flId), originalName: `${o.filePrefix}-fluorescence.tif`, sizeBytes: pair.fluorescenceTiff.length, meta: { pageCount: 3 } },
+    ]);
+  });
+  return fieldId;
 }

@@ -144,5 +144,28 @@ describe('alignment check in Chromium', () => {
     await page.keyboard.press('Home');
     await expect(page.getByTestId('fade-share').textContent()).resolves.toBe('0 % fluor.');
     expect((await pixels(page, probes.slice(0, 1)))[0]).toEqual(afm[0]);
+
+    // zoom 4×: the canvas is four frames wide, and the view stays on the middle of the field
+    await page.getByRole('button', { name: '4×' }).click();
+    await page.waitForFunction(() => {
+      const f = document.querySelector<HTMLElement>('[data-testid="alignment-frame"]')!;
+      return f.scrollLeft > 0;
+    }, undefined, { timeout: 5000 });
+    const z = await page.evaluate(() => {
+      const f = document.querySelector<HTMLElement>('[data-testid="alignment-frame"]')!;
+      const c = document.querySelector<HTMLCanvasElement>('[data-testid="alignment-canvas"]')!;
+      const r = c.getBoundingClientRect();
+      return { frameW: f.clientWidth, frameH: f.clientHeight, canvasW: r.width, canvasH: r.height, left: f.scrollLeft, top: f.scrollTop };
+    });
+    expect(z.canvasW / z.frameW).toBeCloseTo(4, 1);
+    // centred: the view's middle is the canvas's middle, within a pixel or two
+    expect(Math.abs(z.left + z.frameW / 2 - z.canvasW / 2)).toBeLessThan(3);
+    expect(Math.abs(z.top + z.frameH / 2 - z.canvasH / 2)).toBeLessThan(3);
+    await sectionShot(page, 'alignment-zoom-4x');
+    await page.getByRole('button', { name: 'Whole field' }).click();
+    await page.waitForFunction(() => {
+      const f = document.querySelector<HTMLElement>('[data-testid="alignment-frame"]')!;
+      return f.scrollWidth <= f.clientWidth + 1;
+    }, undefined, { timeout: 5000 });
   });
 });

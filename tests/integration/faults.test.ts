@@ -19,15 +19,15 @@ import { createDb, type Db } from '../../src/lib/db/client';
 import { fields, fieldFiles, samples, tileSets, users } from '../../src/lib/db/schema';
 import { createStorage, type Storage } from '../../src/lib/storage/client';
 import { listKeys, putBytes } from '../../src/lib/storage/objects';
-import { rawFileKey, stagingKey } from '../../src/lib/storage/keys';
+import { stagingKey } from '../../src/lib/storage/keys';
 import { createField } from '../../src/lib/uploads/createField';
 import { FieldCreateRequest } from '../../src/lib/schemas/fields';
 import { handle } from '../../src/lib/http/respond';
 import { getBoss } from '../../src/lib/jobs/boss';
 import { QUEUES } from '../../src/lib/jobs/queues';
 import PgBoss from 'pg-boss';
-import { inspectTiff } from '../../src/lib/imaging';
 import { makeDemoPair } from '../../fixtures/demoScene';
+import { insertDemoField } from '../../scripts/seedDemoFields';
 
 const env = process.env as Record<string, string>;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -151,30 +151,6 @@ describe('the object store goes away during field creation', () => {
   });
 });
 
-/** A demo-like field, inserted the way scripts/seedDemoFields.ts does. */
-async function insertDemoField(st: Storage, seed: number): Promise<string> {
-  const pair = makeDemoPair({ seed, positiveFractions: [0.5, 0.4, 0.3] });
-  const fieldId = randomUUID();
-  const topoId = randomUUID();
-  const flId = randomUUID();
-  await putBytes(st, rawFileKey(fieldId, topoId), pair.topographyTiff, 'image/tiff');
-  await putBytes(st, rawFileKey(fieldId, flId), pair.fluorescenceTiff, 'image/tiff');
-  const t = inspectTiff(pair.topographyTiff);
-  const f = inspectTiff(pair.fluorescenceTiff);
-  await db.transaction(async (tx) => {
-    await tx.insert(fields).values({
-      id: fieldId, sampleId, name: `worker kill ${seed}`, status: 'ingesting', afmPixelNm: pair.afmPixelNm, afmScanSizeNm: pair.afmPixelNm * t.width,
-      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'tapping', flPixelNm: pair.flPixelNm, objectiveNa: 1.4, exposureMs: 100,
-      channelEmissionNm: [520, 590, 670], afmWidthPx: t.width, afmHeightPx: t.height, flWidthPx: f.width, flHeightPx: f.height, progress: { stage: 'queued', fraction: 0 },
-    });
-    await tx.insert(fieldFiles).values([
-      { id: topoId, fieldId, kind: 'topography', objectKey: rawFileKey(fieldId, topoId), originalName: 'kill-height.tif', sizeBytes: pair.topographyTiff.length, meta: { pageCount: 1 } },
-      { id: flId, fieldId, kind: 'fluorescence', channelIndex: 0, objectKey: rawFileKey(fieldId, flId), originalName: 'kill-fluorescence.tif', sizeBytes: pair.fluorescenceTiff.length, meta: { pageCount: 3 } },
-    ]);
-  });
-  return fieldId;
-}
-
 type JobRow = { id: string; state: string; retry_count: number };
 const jobRow = async (schema: string, id: string) =>
   ((await db.execute(sql.raw(`SELECT id::text, state::text, retry_count FROM ${schema}.job WHERE id = '${id}'
@@ -210,7 +186,7 @@ describe('a worker is killed in the middle of a job', () => {
 
   it('the job is retried by the other worker and the field ends ready with one set of tiles', async () => {
     const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
-    const fieldId = await insertDemoField(st, 211);
+    const fieldId = await insertDemoField(db, st, { sampleId, name: 'worker kill 211', seed: 211, positiveFractions: [0.5, 0.4, 0.3], filePrefix: 'kill' });
 
     // The worker that announces the job is killed at once: the job is still active (its worker has
     // not reported it), however fast the machine is.

@@ -67,9 +67,10 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     await db.transaction(async (tx) => {
       // one writer per field at a time: a job retried while its first run still finishes waits here
       await tx.execute(sql`select id from fields where id = ${fieldId} for update`);
-      const frozen = (await tx.select({ ids: releases.linkRunIds }).from(releases)).flatMap((r) => r.ids);
+      // only this sample's releases can hold this field's runs
+      const frozen = new Set((await tx.select({ ids: releases.linkRunIds }).from(releases).where(eq(releases.sampleId, sample.id))).flatMap((r) => r.ids));
       const old = await tx.select({ id: linkRuns.id }).from(linkRuns).where(eq(linkRuns.fieldId, fieldId));
-      const deletable = old.map((o) => o.id).filter((id) => !frozen.includes(id));
+      const deletable = old.map((o) => o.id).filter((id) => !frozen.has(id));
       if (deletable.length) await tx.delete(linkRuns).where(inArray(linkRuns.id, deletable));
       // what is left of older runs is frozen by releases: kept, but no longer current
       await tx.update(linkRuns).set({ current: false }).where(eq(linkRuns.fieldId, fieldId));

@@ -1,5 +1,6 @@
 import {
   PutObjectCommand, GetObjectCommand, HeadObjectCommand, DeleteObjectCommand, ListObjectsV2Command, DeleteObjectsCommand, CopyObjectCommand,
+  type _Object,
 } from '@aws-sdk/client-s3';
 import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import type { Readable } from 'node:stream';
@@ -45,26 +46,28 @@ export async function deleteObject(st: Storage, key: string) {
   await st.s3.send(new DeleteObjectCommand({ Bucket: st.bucket, Key: key }));
 }
 
-/** Deletes every object under `prefix` (a field's tiles when it is re-ingested or removed). */
-export async function deletePrefix(st: Storage, prefix: string) {
+/** The objects under `prefix`, one ListObjectsV2 page (up to 1,000) at a time. */
+export async function* listPages(st: Storage, prefix = ''): AsyncGenerator<_Object[]> {
   let token: string | undefined;
   do {
-    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, Prefix: prefix, ContinuationToken: token }));
-    const keys = (page.Contents ?? []).map((o) => ({ Key: o.Key! }));
-    if (keys.length) await st.s3.send(new DeleteObjectsCommand({ Bucket: st.bucket, Delete: { Objects: keys } }));
+    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, Prefix: prefix || undefined, ContinuationToken: token }));
+    yield page.Contents ?? [];
     token = page.IsTruncated ? page.NextContinuationToken : undefined;
   } while (token);
+}
+
+/** Deletes every object under `prefix` (a field's tiles when it is re-ingested or removed). */
+export async function deletePrefix(st: Storage, prefix: string) {
+  for await (const page of listPages(st, prefix)) {
+    const keys = page.map((o) => ({ Key: o.Key! }));
+    if (keys.length) await st.s3.send(new DeleteObjectsCommand({ Bucket: st.bucket, Delete: { Objects: keys } }));
+  }
 }
 
 /** Lists keys under a prefix (used by backups and tests). */
 export async function listKeys(st: Storage, prefix: string): Promise<string[]> {
   const out: string[] = [];
-  let token: string | undefined;
-  do {
-    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, Prefix: prefix, ContinuationToken: token }));
-    for (const o of page.Contents ?? []) out.push(o.Key!);
-    token = page.IsTruncated ? page.NextContinuationToken : undefined;
-  } while (token);
+  for await (const page of listPages(st, prefix)) for (const o of page) out.push(o.Key!);
   return out;
 }
 
@@ -76,14 +79,11 @@ export async function getRange(st: Storage, key: string, start: number, endExclu
 
 /** Deletes objects under `prefix` last modified before `olderThan`; returns how many went. */
 export async function deleteOlderThan(st: Storage, prefix: string, olderThan: Date): Promise<number> {
-  let token: string | undefined;
   let n = 0;
-  do {
-    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, Prefix: prefix, ContinuationToken: token }));
-    const old = (page.Contents ?? []).filter((o) => o.LastModified && o.LastModified < olderThan).map((o) => ({ Key: o.Key! }));
+  for await (const page of listPages(st, prefix)) {
+    const old = page.filter((o) => o.LastModified && o.LastModified < olderThan).map((o) => ({ Key: o.Key! }));
     if (old.length) await st.s3.send(new DeleteObjectsCommand({ Bucket: st.bucket, Delete: { Objects: old } }));
     n += old.length;
-    token = page.IsTruncated ? page.NextContinuationToken : undefined;
-  } while (token);
+  }
   return n;
 }

@@ -36,6 +36,7 @@ const MODES: { id: Mode; label: string; hint: string }[] = [
 ];
 /** Whole numbers for a display range, without a "-0". */
 const whole = (v: number) => (Math.round(v) === 0 ? '0' : v.toFixed(0));
+const ZOOMS = [1, 2, 4, 8];
 const NICE_UM = [0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 50];
 // "no data" stripes where the fluorescence frame does not reach (distinct from viridis and from a dark background)
 const EMPTY_A = [58, 63, 76];
@@ -100,6 +101,8 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
   const [playing, setPlaying] = useState(true);
   const [phase, setPhase] = useState<0 | 1>(0);
   const [fade, setFade] = useState(0.5);
+  const [zoom, setZoom] = useState(1);
+  const frame = useRef<HTMLDivElement>(null);
   const ch = channels.find((c) => c.layer === channel) ?? null;
 
   // read-outs of the height map and the chosen channel, fetched once each
@@ -166,6 +169,18 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
     drawScaleBar(ctx, w, h, (afmPixelNm * height.valuesFactor) / 1000);
   }, [images, mode, phase, fade, squareUm, afmPixelNm, height]);
 
+  /** Changes the zoom around the middle of what is in view. */
+  const zoomTo = (next: number) => {
+    const el = frame.current;
+    if (el) {
+      const k = next / zoom;
+      const cx = (el.scrollLeft + el.clientWidth / 2) * k;
+      const cy = (el.scrollTop + el.clientHeight / 2) * k;
+      requestAnimationFrame(() => { el.scrollLeft = cx - el.clientWidth / 2; el.scrollTop = cy - el.clientHeight / 2; });
+    }
+    setZoom(next);
+  };
+
   const fieldUm = height ? (height.valuesWidth * height.valuesFactor * afmPixelNm) / 1000 : 10;
   const maxSquareUm = Math.max(0.5, Math.round(fieldUm / 2 * 10) / 10);
   const hint = MODES.find((m) => m.id === mode)!.hint;
@@ -186,7 +201,10 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
       {body ?? (
         <div className="grid gap-4 md:grid-cols-[minmax(0,540px)_1fr]">
           <div className="relative">
-            <canvas ref={canvas} className="w-full h-auto rounded-lg bg-black block" style={{ aspectRatio: `${height!.valuesWidth} / ${height!.valuesHeight}` }} data-testid="alignment-canvas" data-mode={mode} aria-label={`${MODES.find((m) => m.id === mode)!.label} of the height map and ${chLabel}`} />
+            {/* zoomed: the canvas grows inside a frame of the same shape, which scrolls */}
+            <div ref={frame} className="rounded-lg bg-black overflow-auto" style={{ aspectRatio: `${height!.valuesWidth} / ${height!.valuesHeight}` }} data-testid="alignment-frame">
+              <canvas ref={canvas} className="h-auto block max-w-none" style={{ width: `${zoom * 100}%`, imageRendering: zoom > 1 ? 'pixelated' : 'auto' }} data-testid="alignment-canvas" data-mode={mode} aria-label={`${MODES.find((m) => m.id === mode)!.label} of the height map and ${chLabel}`} />
+            </div>
             {!images && <p className="absolute inset-0 grid place-items-center text-sm text-white/80">Loading image values…</p>}
           </div>
           <div className="space-y-3 text-sm">
@@ -197,6 +215,15 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
               ))}
             </div>
             <p className="text-mica-600">{hint}</p>
+            <div className="flex items-center gap-2"><span className="field-label m-0 w-32">Zoom</span>
+              <div className="inline-flex rounded-lg border border-mica-200 overflow-hidden" role="group" aria-label="Zoom">
+                {ZOOMS.map((z) => (
+                  <button key={z} type="button" aria-pressed={zoom === z} onClick={() => zoomTo(z)}
+                    className={`px-2.5 py-1 tabular-nums ${zoom === z ? 'bg-tip-600 text-white' : 'bg-white text-tip-700 hover:bg-tip-50'}`}>{z === 1 ? 'Whole field' : `${z}×`}</button>
+                ))}
+              </div>
+            </div>
+            {zoom > 1 && <p className="text-xs text-mica-600 -mt-2">Scroll the image to move around; the scale bar sits at the bottom-left of the field.</p>}
             <label className="flex items-center gap-2"><span className="field-label m-0 w-32">Fluorescence</span>
               <select className="input w-auto" value={channel} onChange={(e) => setChannel(e.target.value)}>
                 {channels.map((c) => <option key={c.layer} value={c.layer}>{c.label}</option>)}

@@ -11,6 +11,9 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
   const [groupB, setGroupB] = useState(initial.groupB ?? initial.groups[1] ?? '');
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
+  // The server-rendered selects stay disabled until this island runs: hydration would reset a choice made earlier.
+  const [live, setLive] = useState(false);
+  useEffect(() => setLive(true), []);
   const query = new URLSearchParams({ groupA, groupB, source: initial.source }).toString();
 
   useEffect(() => {
@@ -36,12 +39,12 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
         <h2>Compare two groups</h2>
         <div className="flex flex-wrap gap-4 items-end mt-2 no-print">
           <label className="text-sm"><span className="field-label">Group A</span>
-            <select className="input" aria-label="Group A" value={groupA} onChange={(e) => setGroupA(e.target.value)}>
+            <select className="input" aria-label="Group A" disabled={!live} value={groupA} onChange={(e) => setGroupA(e.target.value)}>
               {data.groups.map((g) => <option key={g} value={g}>{g || '(no group)'}</option>)}
             </select>
           </label>
           <label className="text-sm"><span className="field-label">Group B</span>
-            <select className="input" aria-label="Group B" value={groupB} onChange={(e) => setGroupB(e.target.value)}>
+            <select className="input" aria-label="Group B" disabled={!live} value={groupB} onChange={(e) => setGroupB(e.target.value)}>
               {data.groups.map((g) => <option key={g} value={g}>{g || '(no group)'}</option>)}
             </select>
           </label>
