@@ -4,6 +4,9 @@ import { api } from '../../../lib/api-client/http';
 import { FractionsPlot } from './FractionsPlot';
 import { ci, nm, pct, pValue } from './format';
 
+/** The group size up to which the size test uses every raw value (MAX_RANK_SAMPLE on the server). */
+const MAX_RANK_VESICLES = '5000';
+
 /** Marker fractions of every sample by group, and the comparison of two chosen groups (fetched from the API). */
 export function StudyView({ initial }: { initial: StudyComparison }) {
   const [data, setData] = useState(initial);
@@ -33,7 +36,39 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
       <section className="card">
         <h2>Marker-positive fraction per sample</h2>
         <p className="text-sm text-mica-600 mt-1">Dots: fraction of vesicles positive; lines: 95% Wilson interval. {data.samples.length} sample(s).</p>
-        {data.samples.length === 0 ? <p className="text-sm mt-3">No results yet.</p> : <FractionsPlot samples={data.samples} markers={data.panel.map((c) => c.marker)} />}
+        {data.samples.length === 0 ? <p className="text-sm mt-3">No results yet.</p> : (
+          <>
+            <FractionsPlot samples={data.samples} markers={data.panel.map((c) => c.marker)} />
+            <div className="overflow-x-auto mt-4">
+              <table className="data-table w-full text-sm" data-testid="sample-fractions">
+                <thead>
+                  <tr>
+                    <th>Sample</th><th>Group</th><th>Release</th><th>Vesicles (count)</th>
+                    {data.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ (positive / analysed, %, 95% Wilson)</th>)}
+                  </tr>
+                </thead>
+                <tbody>
+                  {[...data.samples].sort((x, y) => x.groupLabel.localeCompare(y.groupLabel) || x.code.localeCompare(y.code)).map((r) => (
+                    <tr key={r.sampleId}>
+                      <td className="font-semibold">{r.code}</td>
+                      <td>{r.groupLabel || '(no group)'}</td>
+                      <td>{r.releaseVersion === null ? 'preview' : `v${r.releaseVersion}`}</td>
+                      <td className="tabular-nums">{r.vesicles}</td>
+                      {data.panel.map((c) => {
+                        const m = r.markers.find((x) => x.channelIndex === c.channelIndex);
+                        return (
+                          <td key={c.channelIndex} className="tabular-nums whitespace-nowrap">
+                            {m ? <>{m.count} / {m.total} · {pct(m.fraction)} <span className="text-mica-600">({ci(m.lower, m.upper)})</span></> : '–'}
+                          </td>
+                        );
+                      })}
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          </>
+        )}
       </section>
       <section className="card">
         <h2>Compare two groups</h2>
@@ -49,6 +84,7 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
             </select>
           </label>
           <a className="btn-quiet btn" href={`/api/studies/${initial.study.id}/comparison.csv?${query}`} download>Download comparison CSV</a>
+          <button type="button" className="btn-quiet btn" onClick={() => window.print()}>Print this comparison</button>
           {busy && <span className="text-sm text-mica-600">Computing…</span>}
         </div>
         {groupA === groupB && <p className="notice notice-caution text-sm mt-3">Choose two different groups.</p>}
@@ -86,7 +122,7 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
             <p className="text-xs text-mica-600 mt-2">
               Vesicles are pooled per group and tests treat them as independent, although vesicles of one sample are not:
               read p-values as descriptive, and compare samples (the dots above) before drawing conclusions.
-              The size test uses a fixed, reproducible subset of at most 5000 vesicles per group.
+              The size test ranks every vesicle: exactly for groups of up to {MAX_RANK_VESICLES} vesicles, and above that on values rounded to 0.5 nm (diameter) and 0.1 nm (height), with ties counted half.
             </p>
           </>
         )}
