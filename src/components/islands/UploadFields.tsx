@@ -1,10 +1,11 @@
-import { useState, type DragEvent } from 'react';
+import { useRef, useState, type DragEvent } from 'react';
 import { useForm, useFieldArray } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
 import { AcquisitionSettings, type InspectReply } from '../../lib/schemas/fields';
 import { uploadFile, createField } from '../../lib/api-client/uploads';
 import { ApiError } from '../../lib/api-client/http';
+import { choosePixelSize, distrustFilePixelSize, fmtNm, type PixelSizeChoice, type PixelSizeKind } from '../../lib/uploads/choosePixelSize';
 
 interface StudyOption {
   id: string;
@@ -13,10 +14,14 @@ interface StudyOption {
   panel: { marker: string; emissionNm: number | null }[];
 }
 
-type FileState =
-  | { status: 'uploading'; file: File; progress: number }
-  | { status: 'done'; file: File; meta: InspectReply }
-  | { status: 'failed'; file: File; message: string };
+// `key` is stable for the life of a row, so late upload progress never lands on another file's row
+type FileState = { key: string; file: File } & (
+  | { status: 'uploading'; progress: number }
+  | { status: 'done'; meta: InspectReply }
+  | { status: 'failed'; message: string });
+type FileRow = FileState extends infer T ? T extends FileState ? Omit<T, 'key' | 'file'> : never : never;
+/** Files of one field draft, kept by the draft's stable id (not its position, which shifts on removal). */
+type FilesByDraft = Record<string, FileState[]>;
 
 // The form uses the same acquisition schema as the API; empty number inputs mean "read it from the file".
 const FormSchema = z.object({
@@ -34,8 +39,27 @@ function describe(meta: InspectReply) {
   return `${meta.widthPx} × ${meta.heightPx} px · ${meta.bitsPerSample}-bit ${meta.sampleFormat} · ${meta.pageCount} page${meta.pageCount > 1 ? 's' : ''} · ${px}`;
 }
 
-function FileSlot({ label, state, onFiles, onRetry, multiple, testId }: {
-  label: string; state: FileState[]; onFiles: (f: File[]) => void; onRetry: (i: number) => void; multiple?: boolean; testId: string;
+/** The reader's own warnings, plus why its pixel size will not be used (if so). */
+function fileWarnings(kind: PixelSizeKind, meta: InspectReply) {
+  const distrust = distrustFilePixelSize(kind, meta);
+  return distrust ? [...meta.warnings, distrust] : meta.warnings;
+}
+
+/** One line saying which pixel size the field will be saved with, or why it cannot be saved yet. */
+function PixelSizeLine({ label, choice, testId }: { label: string; choice: PixelSizeChoice; testId: string }) {
+  const from = { typed: 'typed above', 'ome-xml': 'from the file, OME-XML', 'resolution-tags': 'from the file, resolution tags' };
+  return (
+    <div data-testid={testId} className="text-sm space-y-1">
+      {choice.valueNm !== null
+        ? <p>{label} pixel size used: <strong>{fmtNm(choice.valueNm)}</strong> ({from[choice.source!]})</p>
+        : <p className="notice notice-error" role="alert">{label} pixel size needed: {choice.error}</p>}
+      {choice.warnings.map((w) => <p key={w} className="notice notice-caution">⚠ {w}</p>)}
+    </div>
+  );
+}
+
+function FileSlot({ label, kind, state, onFiles, onRetry, onRemove, multiple, testId }: {
+  label: string; kind: PixelSizeKind; state: FileState[]; onFiles: (f: File[]) => void; onRetry: (key: string) => void; onRemove: (key: string) => void; multiple?: boolean; testId: string;
 }) {
   const [over, setOver] = useState(false);
   const drop = (e: DragEvent) => { e.preventDefault(); setOver(false); onFiles([...e.dataTransfer.files]); };
@@ -50,19 +74,28 @@ function FileSlot({ label, state, onFiles, onRetry, multiple, testId }: {
           onChange={(e) => { onFiles([...(e.target.files ?? [])]); e.target.value = ''; }} />
       </label>
       <ul className="mt-2 space-y-2">
-        {state.map((s, i) => (
-          <li key={i} className="text-sm" data-testid={`${testId}-state`}>
-            <div className="flex justify-between"><span className="font-medium">{s.file.name}</span><span className="text-mica-400">{mb(s.file.size)}</span></div>
+        {state.map((s) => (
+          <li key={s.key} className="text-sm" data-testid={`${testId}-state`}>
+            <div className="flex justify-between items-center gap-2">
+              <span className="font-medium break-all">{s.file.name}</span>
+              <span className="flex items-center gap-2 shrink-0">
+                <span className="text-mica-400">{mb(s.file.size)}</span>
+                <button type="button" className="btn btn-quiet" aria-label={`Remove file ${s.file.name}`} onClick={() => onRemove(s.key)}>Remove</button>
+              </span>
+            </div>
             {s.status === 'uploading' && (
               <div className="h-2 bg-mica-100 rounded mt-1" role="progressbar" aria-valuenow={Math.round(s.progress * 100)} aria-valuemin={0} aria-valuemax={100}>
                 <div className="h-2 bg-tip-500 rounded" style={{ width: `${s.progress * 100}%` }} />
               </div>
             )}
             {s.status === 'done' && <div className="text-cap-600" data-testid="file-meta">✓ {describe(s.meta)}</div>}
+            {s.status === 'done' && fileWarnings(kind, s.meta).map((w) => (
+              <p key={w} className="notice notice-caution mt-1" data-testid="file-warning">⚠ {w}</p>
+            ))}
             {s.status === 'failed' && (
               <div className="notice notice-error mt-1 flex justify-between items-center gap-2" role="alert">
                 <span>{s.message}</span>
-                <button type="button" className="btn-quiet btn" onClick={() => onRetry(i)}>Retry</button>
+                <button type="button" className="btn-quiet btn" aria-label={`Retry file ${s.file.name}`} onClick={() => onRetry(s.key)}>Retry</button>
               </div>
             )}
           </li>
@@ -79,38 +112,75 @@ export default function UploadFields({ studies }: { studies: StudyOption[] }) {
     defaultValues: { studyId: studies[0]?.id ?? '', settings: { imagingMedium: 'air', scanMode: 'tapping', objectiveNa: 1.4, channelEmissionNm: [] }, drafts: [{ sampleId: '', name: '' }] },
   });
   const drafts = useFieldArray({ control, name: 'drafts' });
-  const [topo, setTopo] = useState<Record<number, FileState[]>>({});
-  const [fluo, setFluo] = useState<Record<number, FileState[]>>({});
+  const [topo, setTopo] = useState<FilesByDraft>({});
+  const [fluo, setFluo] = useState<FilesByDraft>({});
   const [saved, setSaved] = useState<{ name: string; id?: string; error?: string }[]>([]);
+  const nextKey = useRef(0);
   const study = studies.find((s) => s.id === watch('studyId'));
+  const typedAfm = watch('settings.afmPixelNm');
+  const typedFl = watch('settings.flPixelNm');
+  const typed = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) && v > 0 ? v : undefined);
 
-  function send(which: 'topo' | 'fluo', draft: number, file: File, slot: number) {
-    const set = which === 'topo' ? setTopo : setFluo;
-    const update = (s: FileState) => set((prev) => {
-      const list = [...(prev[draft] ?? [])];
-      list[slot] = s;
-      return { ...prev, [draft]: list };
-    });
-    update({ status: 'uploading', file, progress: 0 });
-    uploadFile(watch('studyId'), file, (p) => update({ status: 'uploading', file, progress: p }))
-      .then((meta) => update({ status: 'done', file, meta }))
-      .catch((e) => update({ status: 'failed', file, message: e instanceof ApiError ? e.message : 'The upload failed. Retry the file.' }));
+  /** Which pixel sizes a draft would be saved with, once its first height map and fluorescence file are read. */
+  function choices(draftId: string) {
+    const t = topo[draftId]?.[0];
+    const f = fluo[draftId]?.[0];
+    return {
+      afm: t?.status === 'done' ? choosePixelSize('afm', t.meta, typed(typedAfm)) : null,
+      fl: f?.status === 'done' ? choosePixelSize('fluorescence', f.meta, typed(typedFl)) : null,
+    };
   }
-  const addFiles = (which: 'topo' | 'fluo', draft: number, files: File[]) => {
-    const existing = which === 'topo' ? [] : (fluo[draft] ?? []);
-    if (which === 'topo') setTopo((p) => ({ ...p, [draft]: [] }));
-    (which === 'topo' ? files.slice(0, 1) : files).forEach((f, i) => send(which, draft, f, existing.length + i));
+
+  function send(which: 'topo' | 'fluo', draftId: string, key: string, file: File) {
+    const set = which === 'topo' ? setTopo : setFluo;
+    // a row removed meanwhile stays removed: updates only touch the row with this key
+    const update = (row: FileRow) => set((prev) => ({
+      ...prev, [draftId]: (prev[draftId] ?? []).map((s) => (s.key === key ? { ...row, key, file } as FileState : s)),
+    }));
+    uploadFile(watch('studyId'), file, (p) => update({ status: 'uploading', progress: p }))
+      .then((meta) => update({ status: 'done', meta }))
+      .catch((e) => update({ status: 'failed', message: e instanceof ApiError ? e.message : 'The upload failed. Retry or remove the file.' }));
+  }
+  const addFiles = (which: 'topo' | 'fluo', draftId: string, files: File[]) => {
+    const rows: FileState[] = (which === 'topo' ? files.slice(0, 1) : files)
+      .map((file) => ({ key: `f${nextKey.current++}`, file, status: 'uploading', progress: 0 }));
+    if (which === 'topo') setTopo((p) => ({ ...p, [draftId]: rows }));
+    else setFluo((p) => ({ ...p, [draftId]: [...(p[draftId] ?? []), ...rows] }));
+    rows.forEach((r) => send(which, draftId, r.key, r.file));
   };
-  const retry = (which: 'topo' | 'fluo', draft: number, slot: number) => send(which, draft, (which === 'topo' ? topo : fluo)[draft][slot].file, slot);
+  const retry = (which: 'topo' | 'fluo', draftId: string, key: string) => {
+    const row = (which === 'topo' ? topo : fluo)[draftId]?.find((s) => s.key === key);
+    if (!row) return;
+    (which === 'topo' ? setTopo : setFluo)((p) => ({
+      ...p, [draftId]: (p[draftId] ?? []).map((s) => (s.key === key ? { key, file: row.file, status: 'uploading', progress: 0 } : s)),
+    }));
+    send(which, draftId, key, row.file);
+  };
+  const removeFile = (which: 'topo' | 'fluo', draftId: string, key: string) =>
+    (which === 'topo' ? setTopo : setFluo)((p) => ({ ...p, [draftId]: (p[draftId] ?? []).filter((s) => s.key !== key) }));
+  const removeDraft = (i: number) => {
+    const id = drafts.fields[i].id;
+    drafts.remove(i);
+    const drop = (p: FilesByDraft) => { const { [id]: _gone, ...rest } = p; return rest; };
+    setTopo(drop);
+    setFluo(drop);
+  };
 
   async function onSubmit(values: FormValues) {
     const parsed = FormSchema.parse(values);
     const results: typeof saved = [];
     for (const [i, d] of parsed.drafts.entries()) {
-      const t = topo[i]?.[0];
-      const fl = fluo[i] ?? [];
+      const draftId = drafts.fields[i].id;
+      const t = topo[draftId]?.[0];
+      const fl = fluo[draftId] ?? [];
       if (t?.status !== 'done' || fl.length === 0 || fl.some((f) => f.status !== 'done')) {
-        results.push({ name: d.name, error: 'Wait until its height map and every fluorescence file show as read (✓), or retry the failed ones.' });
+        results.push({ name: d.name, error: 'Wait until its height map and every fluorescence file show as read (✓); retry or remove the failed ones.' });
+        continue;
+      }
+      const { afm, fl: flChoice } = choices(draftId);
+      const missing = [afm, flChoice].find((c) => c?.valueNm === null);
+      if (missing) {
+        results.push({ name: d.name, error: missing.error! });
         continue;
       }
       const done = [t, ...fl] as Extract<FileState, { status: 'done' }>[];
@@ -163,7 +233,7 @@ export default function UploadFields({ studies }: { studies: StudyOption[] }) {
         <section key={d.id} className="card space-y-4" aria-label={`Field ${i + 1}`}>
           <div className="flex justify-between items-center">
             <h2>Field {i + 1}</h2>
-            {drafts.fields.length > 1 && <button type="button" className="btn btn-quiet" onClick={() => drafts.remove(i)}>Remove</button>}
+            {drafts.fields.length > 1 && <button type="button" className="btn btn-quiet" aria-label={`Remove field ${i + 1}`} onClick={() => removeDraft(i)}>Remove field</button>}
           </div>
           <div className="grid gap-4 md:grid-cols-2">
             <div>
@@ -181,9 +251,20 @@ export default function UploadFields({ studies }: { studies: StudyOption[] }) {
             </div>
           </div>
           <div className="grid gap-4 md:grid-cols-2">
-            <FileSlot label="AFM height map (TIFF, nm)" testId={`topography-${i}`} state={topo[i] ?? []} onFiles={(f) => addFiles('topo', i, f)} onRetry={(s) => retry('topo', i, s)} />
-            <FileSlot label="Fluorescence frames (TIFF: a stack or one file per channel)" testId={`fluorescence-${i}`} multiple state={fluo[i] ?? []} onFiles={(f) => addFiles('fluo', i, f)} onRetry={(s) => retry('fluo', i, s)} />
+            <FileSlot label="AFM height map (TIFF, nm)" kind="afm" testId={`topography-${i}`} state={topo[d.id] ?? []}
+              onFiles={(f) => addFiles('topo', d.id, f)} onRetry={(k) => retry('topo', d.id, k)} onRemove={(k) => removeFile('topo', d.id, k)} />
+            <FileSlot label="Fluorescence frames (TIFF: a stack or one file per channel)" kind="fluorescence" testId={`fluorescence-${i}`} multiple state={fluo[d.id] ?? []}
+              onFiles={(f) => addFiles('fluo', d.id, f)} onRetry={(k) => retry('fluo', d.id, k)} onRemove={(k) => removeFile('fluo', d.id, k)} />
           </div>
+          {(() => {
+            const c = choices(d.id);
+            return (c.afm || c.fl) && (
+              <div className="grid gap-4 md:grid-cols-2">
+                <div>{c.afm && <PixelSizeLine label="AFM" choice={c.afm} testId={`afm-pixel-${i}`} />}</div>
+                <div>{c.fl && <PixelSizeLine label="Fluorescence" choice={c.fl} testId={`fl-pixel-${i}`} />}</div>
+              </div>
+            );
+          })()}
         </section>
       ))}
       <div className="flex gap-3">

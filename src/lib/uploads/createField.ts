@@ -14,6 +14,7 @@ import { copyObject, deleteObject } from '../storage/objects';
 import { HttpError } from '../http/errors';
 import type { FieldCreateRequest } from '../schemas/fields';
 import { inspectStagedUpload, type UploadLimits } from './staging';
+import { choosePixelSize } from './choosePixelSize';
 
 const unprocessable = (code: string, message: string) => new HttpError(422, code, message);
 
@@ -42,10 +43,13 @@ export async function createField(
   if (fls.some((f) => f.meta.width !== flSize.w || f.meta.height !== flSize.h)) {
     throw unprocessable('frame_size_mismatch', 'The fluorescence frames differ in size; every channel of a field must have the same width and height.');
   }
-  const afmPixelNm = topo.meta.pixelSizeNm?.x ?? body.settings.afmPixelNm;
-  if (!afmPixelNm) throw unprocessable('pixel_size_missing', 'The height map does not state its pixel size: enter the AFM pixel size in nm.');
-  const flPixelNm = fls[0].meta.pixelSizeNm?.x ?? body.settings.flPixelNm;
-  if (!flPixelNm) throw unprocessable('pixel_size_missing', 'The fluorescence file does not state its pixel size: enter the fluorescence pixel size in nm.');
+  // a typed pixel size wins; a file's uncalibrated or implausible one is never used
+  const afm = choosePixelSize('afm', topo.meta, body.settings.afmPixelNm);
+  if (afm.valueNm === null) throw unprocessable('pixel_size_missing', afm.error!);
+  const afmPixelNm = afm.valueNm;
+  const fl = choosePixelSize('fluorescence', fls[0].meta, body.settings.flPixelNm);
+  if (fl.valueNm === null) throw unprocessable('pixel_size_missing', fl.error!);
+  const flPixelNm = fl.valueNm;
   if (body.settings.channelEmissionNm.length && body.settings.channelEmissionNm.length !== channels) {
     throw unprocessable('emission_count_mismatch', `Give one emission wavelength per channel (${channels}), or none to use the panel's.`);
   }
