@@ -54,7 +54,12 @@ async function addField(sampleId: string, name: string, status: string, rows: V[
 /** A new current link run for the field (the old one stops being current), with these vesicles. */
 async function relink(fieldId: string, sampleId: string, rows: V[]) {
   await q(`update link_runs set current = false where field_id = $1`, [fieldId]);
-  const [lr] = await q<{ id: string }>(`insert into link_runs (field_id, settings, summary) values ($1, '{"thresholdCountsByMarker":{"CD9":100}}', '{}') returning id`, [fieldId]);
+  // made with the field's latest registration, as the linking job records it
+  const [lr] = await q<{ id: string }>(
+    `insert into link_runs (field_id, registration_id, settings, summary)
+     values ($1, (select id from registrations where field_id = $1 order by version desc limit 1), '{"thresholdCountsByMarker":{"CD9":100}}', '{}') returning id`,
+    [fieldId],
+  );
   await q(
     `insert into vesicles (link_run_id, field_id, sample_id, index, x_afm_px, y_afm_px, height_nm, mean_height_nm, area_nm2, diameter_nm, volume_nm3, circularity, marker_bits, markers)
      select $1, $2, $3, x.idx, 10, 10, x.h, x.h / 2, pi() * (x.d / 2) ^ 2, x.d, x.h * x.d * x.d, 0.9, x.bits,
@@ -171,7 +176,7 @@ describe('released results', () => {
     for (const v of S1_ROWS) dBins[Math.floor(v.d / 10)]++;
     expect(r.diameter.histogram.counts).toEqual(dBins);
     expect(r.height.histogram.counts.reduce((a: number, b: number) => a + b, 0)).toBe(263);
-    // per-field breakdown with the latest registration's FRE
+    // per-field breakdown with the FRE of the registration each released link run was made with
     expect(r.fields.map((f: { name: string; vesicles: number; freNm: number; nbFiducials: number }) => [f.name, f.vesicles, f.freNm, f.nbFiducials]))
       .toEqual([['F1', 150, 12.5, 5], ['F2', 113, 18, 5]]);
     const sortedD = S1_ROWS.map((v) => v.d).sort((a, b) => a - b);

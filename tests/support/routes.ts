@@ -68,3 +68,8 @@ ROUTES.push(
 ROUTES.push(
   { file: 'studies/[id]/panel.ts', method: 'PUT', path: '/api/studies/:study/panel', allowed: ['admin', 'biologist'], studyScoped: true, body: {} },
 );
+
+ROUTES.push(
+  // Field removal: the empty body is refused (400) after the guard, so the matrix never removes its probe field.
+  { file: 'fields/[id]/index.ts', method: 'DELETE', path: '/api/fields/:field', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true, body: {} },
+);

@@ -17,6 +17,7 @@ export type Action =
   | 'study.manage' // edit study, panel, members
   | 'sample.write' // create/edit samples, upload fields
   | 'field.analyse' // register, link, approve
+  | 'field.remove' // remove a field that is neither approved nor released (a failed upload, say)
   | 'results.release' // release a sample's results
   | 'results.read'; // released results (everyone who is a member)
 
@@ -42,6 +43,7 @@ export function canInStudy(user: SessionUser, membership: MemberRole | null, act
     case 'field.analyse':
       return membership === 'analyst';
     case 'results.release':
+    case 'field.remove':
       return membership === 'biologist' || membership === 'analyst';
   }
 }

@@ -117,7 +117,7 @@ export async function getCurrentLinkRunIds(db: Db, sampleId: string): Promise<st
 export type ReleaseOutcome =
   | { ok: true; release: ReleaseInfo & { linkRunIds: string[] } }
   | { ok: false; reason: 'no_fields' }
-  | { ok: false; reason: 'not_approved'; notApproved: number; total: number }
+  | { ok: false; reason: 'not_approved'; notApproved: number; total: number; notApprovedFields: { name: string; status: string }[] }
   | { ok: false; reason: 'no_link_runs'; fieldsWithout: number }
   | { ok: false; reason: 'version_taken' };
 
@@ -127,16 +127,19 @@ export type ReleaseOutcome =
  * (sample_id, version): the loser gets `version_taken` instead of a duplicate release.
  */
 export async function createRelease(db: Db, sampleId: string, releasedBy: string, expectedVersion?: number): Promise<ReleaseOutcome> {
-  const [state] = await rows<{ total: number; notApproved: number; withoutRun: number }>(
+  const [state] = await rows<{ total: number; notApproved: number; withoutRun: number; notApprovedFields: { name: string; status: string }[] | null }>(
     db,
     `select count(*)::int as total,
             count(*) filter (where f.status <> 'approved')::int as "notApproved",
+            json_agg(json_build_object('name', f.name, 'status', f.status) order by f.name, f.id) filter (where f.status <> 'approved') as "notApprovedFields",
             count(*) filter (where not exists (select 1 from link_runs lr where lr.field_id = f.id and lr.current))::int as "withoutRun"
        from fields f where f.sample_id = $1`,
     [sampleId],
   );
   if (state.total === 0) return { ok: false, reason: 'no_fields' };
-  if (state.notApproved > 0) return { ok: false, reason: 'not_approved', notApproved: state.notApproved, total: state.total };
+  if (state.notApproved > 0) {
+    return { ok: false, reason: 'not_approved', notApproved: state.notApproved, total: state.total, notApprovedFields: state.notApprovedFields ?? [] };
+  }
   if (state.withoutRun > 0) return { ok: false, reason: 'no_link_runs', fieldsWithout: state.withoutRun };
   const linkRunIds = await getCurrentLinkRunIds(db, sampleId);
   try {
@@ -158,6 +161,57 @@ export async function createRelease(db: Db, sampleId: string, releasedBy: string
   }
 }
 
+export type FieldRemoval =
+  | { ok: true; field: { id: string; name: string; sampleId: string; status: string; version: number }; objectKeys: string[] }
+  | { ok: false; reason: 'not_found' }
+  | { ok: false; reason: 'approved' | 'processing'; name: string }
+  | { ok: false; reason: 'stale'; name: string; version: number }
+  | { ok: false; reason: 'released'; name: string; releaseVersions: number[] };
+
+/**
+ * Removes a field and, by cascade, its files, tiles, registrations, link runs, vesicles and reviews, in one
+ * transaction. Refused for an approved field, for one being ingested (the job would write tiles after the
+ * removal), and for one whose link runs are in any release of its sample: released results never lose rows.
+ * The field row is locked first, so an approval or a release cannot slip in between the checks and the delete;
+ * `expectedVersion` is the field version the person saw (a field changed since is refused as `stale`).
+ * Returns the object keys of the field's files, for the caller to remove from storage after the commit.
+ */
+export async function removeField(db: Db, fieldId: string, expectedVersion: number): Promise<FieldRemoval> {
+  const client = await db.$client.connect();
+  const one = async <T>(text: string, params: unknown[]) => (await client.query(text, params)).rows as T[];
+  try {
+    await client.query('begin');
+    const outcome = await (async (): Promise<FieldRemoval> => {
+      const [field] = await one<{ id: string; name: string; sampleId: string; status: string; version: number }>(
+        `select id, name, sample_id as "sampleId", status::text as status, version from fields where id = $1 for update`,
+        [fieldId],
+      );
+      if (!field) return { ok: false, reason: 'not_found' };
+      if (field.version !== expectedVersion) return { ok: false, reason: 'stale', name: field.name, version: field.version };
+      if (field.status === 'approved') return { ok: false, reason: 'approved', name: field.name };
+      if (field.status === 'ingesting') return { ok: false, reason: 'processing', name: field.name };
+      const released = await one<{ version: number }>(
+        `select r.version from releases r
+          where r.sample_id = $2
+            and r.link_run_ids ?| array(select lr.id::text from link_runs lr where lr.field_id = $1)
+          order by r.version`,
+        [fieldId, field.sampleId],
+      );
+      if (released.length) return { ok: false, reason: 'released', name: field.name, releaseVersions: released.map((r) => r.version) };
+      const files = await one<{ objectKey: string }>(`select object_key as "objectKey" from field_files where field_id = $1`, [fieldId]);
+      await one(`delete from fields where id = $1`, [fieldId]);
+      return { ok: true, field, objectKeys: files.map((f) => f.objectKey) };
+    })();
+    await client.query(outcome.ok ? 'commit' : 'rollback');
+    return outcome;
+  } catch (err) {
+    await client.query('rollback').catch(() => {});
+    throw err;
+  } finally {
+    client.release();
+  }
+}
+
 function emptyHistogram(spec: { lowNm: number; highNm: number; bins: number }): Histogram & { counts: number[] } {
   return { lowNm: spec.lowNm, binWidthNm: (spec.highNm - spec.lowNm) / spec.bins, counts: new Array(spec.bins).fill(0), below: 0, above: 0 };
 }
@@ -171,7 +225,8 @@ function addToHistogram(h: { counts: number[]; below: number; above: number }, b
 /**
  * All per-sample aggregates over the vesicle rows of `linkRunIds`: counts, marker-positive fractions
  * with Wilson intervals, phenotype combinations, diameter/height histograms (overall and per
- * phenotype) and a per-field breakdown with the latest registration's FRE.
+ * phenotype) and a per-field breakdown: FRE/TRE of the registration each released link run was made with
+ * (of the latest registration in the live preview, `release` null).
  */
 export async function getSampleResults(
   db: Db,
@@ -202,15 +257,30 @@ export async function getSampleResults(
          from link_run_histograms where link_run_id = any($1::uuid[]) group by 1, 2, 3`,
       [ids],
     ),
+    // One row per field with a link run in the selection. For a release, the registration is the one that
+    // run was made with and the status is the field's as of the release (its run's last review by then; every
+    // released field was approved, createRelease sees to it), so re-registering or sending a field back later
+    // never changes a released table. The live preview shows the field's latest registration and status.
     rows<Record<string, unknown>>(
       db,
-      `select f.id as "fieldId", f.name, f.status, f.afm_pixel_nm as "afmPixelNm", f.fl_pixel_nm as "flPixelNm",
+      `select f.id as "fieldId", f.name,
+              case when $3::timestamptz is null then f.status::text
+                   else coalesce((select case fr.decision when 'approved' then 'approved' else 'registered' end
+                                    from field_reviews fr
+                                   where fr.link_run_id = lr.id and fr.reviewed_at <= $3::timestamptz
+                                   order by fr.reviewed_at desc limit 1), 'approved') end as status,
+              f.afm_pixel_nm as "afmPixelNm", f.fl_pixel_nm as "flPixelNm",
               r.fre_nm as "freNm", r.tre_nm as "treNm", r.version as "registrationVersion", r.nb as "nbFiducials",
               coalesce(v.n, 0)::int as n${panel.map((c) => `, coalesce(v.p${c.channelIndex}, 0)::int as p${c.channelIndex}`).join('')}
          from fields f
+         -- only fields in the selection: a collaborator must not learn of fields added after the release
+         join lateral (
+           select id, registration_id from link_runs where field_id = f.id and id = any($2::uuid[]) order by created_at desc limit 1
+         ) lr on true
          left join lateral (
            select fre_nm, tre_nm, version, jsonb_array_length(pairs)::int as nb from registrations
-            where field_id = f.id order by version desc limit 1
+            where case when $3::timestamptz is null then field_id = f.id else id = lr.registration_id end
+            order by version desc limit 1
          ) r on true
          left join (
            select lr.field_id, sum(p.n)::int as n${panel.length ? ', ' + markerSumColumns(panel, 'p') : ''}
@@ -218,10 +288,8 @@ export async function getSampleResults(
             where lr.id = any($2::uuid[]) group by lr.field_id
          ) v on v.field_id = f.id
         where f.sample_id = $1
-          -- only fields in the selection: a collaborator must not learn of fields added after the release
-          and exists (select 1 from link_runs lr where lr.field_id = f.id and lr.id = any($2::uuid[]))
         order by f.name, f.id`,
-      [sample.id, ids],
+      [sample.id, ids, selection.release?.releasedAt ?? null],
     ),
   ]);
 

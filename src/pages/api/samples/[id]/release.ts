@@ -26,7 +26,12 @@ export const POST = handle(async (ctx) => {
   if (!out.ok) {
     switch (out.reason) {
       case 'no_fields': throw conflict(`Sample ${sample.code} has no fields yet; upload and analyse fields before releasing.`);
-      case 'not_approved': throw conflict(`${out.notApproved} of ${out.total} field(s) of sample ${sample.code} are not approved yet. Approve every field (or delete failed ones) before releasing.`);
+      case 'not_approved': {
+        const listed = out.notApprovedFields.slice(0, 5).map((f) => `${f.name} (${f.status})`).join(', ');
+        const more = out.notApprovedFields.length > 5 ? ` and ${out.notApprovedFields.length - 5} more` : '';
+        throw conflict(`${out.notApproved} of ${out.total} field(s) of sample ${sample.code} are not approved yet: ${listed}${more}. `
+          + 'Approve every field before releasing; a field that failed or is not worth analysing can be removed with "Remove field" on its field page.');
+      }
       case 'no_link_runs': throw conflict(`${out.fieldsWithout} field(s) of sample ${sample.code} have no current linking; link them again before releasing.`);
       case 'version_taken': throw conflict(`Someone else released sample ${sample.code} in the meantime. Reload to see the new version; release again only if the data changed.`);
     }
