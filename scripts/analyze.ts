@@ -9,7 +9,9 @@ import { basename, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { AnalysisError } from '../src/lib/analysis/errors';
 import { fitAffine } from '../src/lib/analysis/geometry';
-import { analyzeField, parseFiducialCsv, vesicleCsv, type FieldStage } from '../src/lib/analysis/pipeline';
+import {
+  analyzeField, parseFiducialCsv, vesicleCsv, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type FieldStage,
+} from '../src/lib/analysis/pipeline';
 import type { FiducialPair } from '../src/lib/analysis/geometry';
 import type { Raster } from '../src/lib/analysis/types';
 import { decodeTiff, ImagingError, type DecodedTiff } from '../src/lib/imaging';
@@ -21,8 +23,7 @@ const USAGE = `Usage: npm run analyze -- --topography A.tif --fluorescence F.tif
 See docs/cli.md ("Batch command line").`;
 
 const CAUTION = 'For research use only; not for diagnosis or treatment decisions.';
-const DEFAULT_EMISSION_NM = 600;
-const DEFAULT_NA = 1.4;
+const DEFAULT_NA = DEFAULT_NUMERICAL_APERTURE;
 
 /** A problem with the command line or the input files that the user can fix: exit code 2. */
 class InputError extends Error {}
@@ -121,7 +122,7 @@ function parseMarkerThresholds(items: readonly string[], markers: readonly strin
     const match = /^([^=]+)=(.+)$/.exec(item);
     const value = match ? Number(match[2]) : Number.NaN;
     if (!match || !Number.isFinite(value)) {
-      throw new InputError(`--marker-threshold must look like CD9=250 (marker=net aperture counts), got "${item}".`);
+      throw new InputError(`--marker-threshold must look like CD9=250 (marker=joint amplitude in counts, the total counts of one vesicle's fitted PSF), got "${item}".`);
     }
     const marker = match[1].trim();
     if (!markers.includes(marker)) {

@@ -9,7 +9,7 @@ import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { demoField } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
-import { applyAffine } from '../../src/lib/analysis/geometry';
+import { applyAffine, fitAffine } from '../../src/lib/analysis/geometry';
 import { createDb, type Db } from '../../src/lib/db/client';
 import { vesicles, linkRuns } from '../../src/lib/db/schema';
 
@@ -94,12 +94,56 @@ describe('linking a field', () => {
     const lines = (await res.text()).trim().split('\n');
     expect(lines[0]).toMatch(/^# Research use only/);
     const header = lines[1].split(',');
-    for (const c of ['x_afm_px', 'y_afm_px', 'height_nm', 'diameter_nm', 'volume_nm3', 'CD9_intensity', 'CD9', 'CD63', 'CD81', 'field_id', 'sample_code', 'transform_version']) expect(header).toContain(c);
+    for (const c of ['x_afm_px', 'y_afm_px', 'height_nm', 'diameter_nm', 'volume_nm3', 'CD9_intensity', 'CD9_snr', 'CD9', 'CD63', 'CD81', 'field_id', 'sample_code', 'transform_version']) expect(header).toContain(c);
     const total = (await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}`)).json()).total;
     expect(lines.length - 2).toBe(total);
     const first = lines[2].split(',');
     expect(first[header.indexOf('field_id')]).toBe(fieldId);
     expect(['0', '1', '']).toContain(first[header.indexOf('CD9')]);
+    // the SNR column carries the stored per-marker SNR (2 decimals), not the intensity
+    const snrs = lines.slice(2).map((l) => l.split(',')[header.indexOf('CD9_snr')]).filter((v) => v !== '').map((v) => Number(v) + 0);
+    expect(snrs.length).toBeGreaterThan(0);
+    expect(snrs.every(Number.isFinite)).toBe(true);
+    const page = (await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&pageSize=500`)).json()) as { rows: { markers: { snr: number | null }[] }[] };
+    const stored = page.rows.map((r) => r.markers[0]?.snr).filter((v): v is number => v != null).map((v) => Number(v.toFixed(2)) + 0);
+    expect(stored.length).toBeGreaterThan(0);
+    for (const v of stored) expect(snrs).toContain(v);
+  });
+
+  it('links with the saved transform: a registration saved as a similarity is used as saved, not refitted as an affine', async () => {
+    // the fluorescence picks get a 2 % shear, which a similarity cannot follow, so the similarity the analyst saves and
+    // an affine refit of the same pairs place vesicles apart (up to ~1 px at the frame's edges)
+    const beads = truth.truth.filter((t) => t.kind === 'bead');
+    const exact = beads.map((b) => applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }));
+    const meanY = exact.reduce((a, p) => a + p.y, 0) / exact.length;
+    const pairs = beads.map((b, i) => ({ afm: { x: b.xPx, y: b.yPx }, fl: { x: exact[i].x + 0.02 * (exact[i].y - meanY), y: exact[i].y } }));
+    const versions = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;
+    const save = await analyst.json(`/api/fields/${fieldId}/registration`, 'POST', { basedOnVersion: versions[0].version, model: 'similarity', pairs });
+    expect(save.status).toBe(201);
+    const [reg] = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;
+    expect(reg.model).toBe('similarity');
+    expect((await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status).toBe(202);
+    await waitFor('linked');
+
+    const [run] = await db.select().from(linkRuns).where(eq(linkRuns.fieldId, fieldId));
+    expect(run.registrationId).toBe(reg.id);
+    expect(run.settings.registrationModel).toBe('similarity');
+    expect(run.settings.positivityMeasure).toBe('joint_amplitude');
+    expect(String(run.settings.thresholdMethod)).toMatch(/^CD9: joint NNLS amplitude \(counts of PSF amplitude\) above mean \+ 3 SD of (the )?joint amplitudes/);
+    const affine = fitAffine(pairs.map((p) => p.afm), pairs.map((p) => p.fl)).flFromAfm;
+    const rows = await db.select().from(vesicles).where(eq(vesicles.linkRunId, run.id));
+    expect(rows.length).toBeGreaterThan(10);
+    let maxFromAffine = 0;
+    for (const r of rows) {
+      const want = applyAffine(reg.flFromAfm, { x: r.xAfmPx, y: r.yAfmPx });
+      // stored as 4-byte reals: ~1e-5 px at these magnitudes
+      expect(Math.abs(r.xFlPx! - want.x)).toBeLessThan(1e-3);
+      expect(Math.abs(r.yFlPx! - want.y)).toBeLessThan(1e-3);
+      const other = applyAffine(affine, { x: r.xAfmPx, y: r.yAfmPx });
+      maxFromAffine = Math.max(maxFromAffine, Math.hypot(other.x - want.x, other.y - want.y));
+    }
+    // the check tells the two transforms apart: an affine refit would have moved some vesicle by > 0.2 px
+    expect(maxFromAffine).toBeGreaterThan(0.2);
   });
 
   it('approval: two reviewers at once, exactly one succeeds; the other gets 409', async () => {

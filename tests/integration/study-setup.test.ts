@@ -1,6 +1,7 @@
 import { describe, it, expect, beforeAll } from 'vitest';
 import { signedIn, type AppClient } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { looksIdentifying } from '../../src/lib/reporting/looksIdentifying';
 
 let admin: AppClient;
 let bio: AppClient;
@@ -32,12 +33,25 @@ describe('setting up a study', () => {
 
     const sample = await bio.json(`/api/studies/${id}/samples`, 'POST', { code: 'SET-001', groupLabel: 'patient', controlKind: 'isotype' });
     expect(sample.status).toBe(201);
+    expect((await sample.json()).warnings).toEqual([]);
     const again = await bio.json(`/api/studies/${id}/samples`, 'POST', { code: 'SET-001' });
     expect(again.status).toBe(409);
     const spaces = await bio.json(`/api/studies/${id}/samples`, 'POST', { code: 'Jane Doe' });
     expect(spaces.status).toBe(400);
+    // codes that look like a name or a date of birth: recorded, with the sample form's warnings in the reply
+    const named = await bio.json(`/api/studies/${id}/samples`, 'POST', { code: 'Doe_Jane' });
+    expect(named.status).toBe(201);
+    const namedBody = await named.json();
+    expect(namedBody.id).toMatch(/^[0-9a-f-]{36}$/);
+    expect(namedBody.warnings).toEqual([looksIdentifying('Doe_Jane').reasons[0].message]);
+    expect(namedBody.warnings[0]).toMatch(/looks like a person's name/);
+    const dated = await bio.json(`/api/studies/${id}/samples`, 'POST', { code: 'P-1980-03-12' });
+    expect(dated.status).toBe(201);
+    const datedWarnings: string[] = (await dated.json()).warnings;
+    expect(datedWarnings).toHaveLength(1);
+    expect(datedWarnings[0]).toMatch(/looks like a date/);
     const list = (await (await bio.fetch(`/api/studies/${id}/samples`)).json()).samples;
-    expect(list.map((s: { code: string; controlKind: string }) => [s.code, s.controlKind])).toEqual([['SET-001', 'isotype']]);
+    expect(list.map((s: { code: string; controlKind: string }) => [s.code, s.controlKind])).toEqual([['Doe_Jane', 'none'], ['P-1980-03-12', 'none'], ['SET-001', 'isotype']]);
 
     expect((await admin.json(`/api/studies/${id}/members`, 'PUT', { userId: bioId, role: null })).status).toBe(204);
     expect((await bio.fetch(`/api/studies/${id}`)).status).toBe(403);

@@ -76,7 +76,7 @@ describe('npm run analyze (scripts/analyze.ts)', () => {
     const lines = (await readFile(f('vesicles.csv'), 'utf8')).trimEnd().split('\n');
     expect(lines[0]).toBe(
       'x_afm_px,y_afm_px,x_fl_px,y_fl_px,height_nm,diameter_nm,volume_nm3,area_nm2,circularity,' +
-        'CD9_intensity,CD9,CD63_intensity,CD63,CD81_intensity,CD81,out_of_frame,phenotype',
+        'CD9_intensity,CD9_snr,CD9_amplitude_counts,CD9,CD63_intensity,CD63_snr,CD63_amplitude_counts,CD63,CD81_intensity,CD81_snr,CD81_amplitude_counts,CD81,out_of_frame,phenotype',
     );
     const rows = lines.slice(1).map((l) => l.split(','));
     // the test scene places 24 vesicles; detection finds ≥ 95 % of them with ≥ 95 % precision (core test)
@@ -84,7 +84,7 @@ describe('npm run analyze (scripts/analyze.ts)', () => {
     expect(rows.length).toBeGreaterThanOrEqual(Math.floor(0.95 * truth));
     expect(rows.length).toBeLessThanOrEqual(Math.ceil(truth / 0.95));
     for (const r of rows) {
-      expect(r).toHaveLength(17);
+      expect(r).toHaveLength(23); // 9 geometry + 3 markers × 4 (intensity, snr, amplitude, call) + out_of_frame + phenotype
       expect(Number(r[4])).toBeGreaterThan(2); // heights of 8–30 nm were drawn
     }
     const summary = JSON.parse(await readFile(f('summary.json'), 'utf8'));
@@ -94,7 +94,7 @@ describe('npm run analyze (scripts/analyze.ts)', () => {
     expect(summary.flPixelNm).toBeCloseTo(65, 6);
     expect(summary.registration.source).toBe('fiducials');
     expect(summary.registration.mirrored).toBe(true);
-    expect(summary.nbOutOfFrame).toBe(rows.filter((r) => r[15] === '1').length);
+    expect(summary.nbOutOfFrame).toBe(rows.filter((r) => r[21] === '1').length);
     for (const stage of ['level', 'detect', 'measure', 'spots', 'register', 'link', 'summarise']) {
       expect(run.stderr).toMatch(new RegExp(`\\[analyze\\] ${stage}\\s+\\d+ ms`));
     }

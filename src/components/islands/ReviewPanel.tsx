@@ -18,6 +18,9 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
     window.location.reload();
   }
   const positive = (summary?.positiveByMarker ?? {}) as Record<string, number>;
+  // older runs may carry the linker's own name for the same count
+  const spotsWithoutVesicle = (summary?.spotsWithoutVesicleByMarker ?? summary?.unmatchedSpotsByMarker ?? {}) as Record<string, number>;
+  const channels = (summary?.channels ?? {}) as Record<string, { nbSpots?: number }>;
 
   return (
     <div className="card text-sm space-y-3" data-testid="review-panel">
@@ -29,6 +32,24 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
           <dt className="text-mica-600">Outside the frame</dt><dd>{String(summary.nbOutOfFrame)}</dd>
           <dt className="text-mica-600">No marker</dt><dd>{String(summary.nbVesiclesWithoutMarker)}</dd>
         </dl>
+      )}
+      {summary && Object.keys(spotsWithoutVesicle).length > 0 && (
+        <div className="space-y-1" data-testid="spots-without-vesicle">
+          <h3 className="font-semibold">Spots without a vesicle</h3>
+          <dl className="grid grid-cols-2 gap-y-1">
+            {Object.entries(spotsWithoutVesicle).map(([m, k]) => (
+              <Fragment key={m}>
+                <dt className="text-mica-600">{m}</dt>
+                <dd>{k} spots{channels[m]?.nbSpots != null ? ` of ${channels[m].nbSpots} detected` : ''}</dd>
+              </Fragment>
+            ))}
+          </dl>
+          <p className="text-mica-600 text-xs">
+            Fluorescent spots with no vesicle in the height map and no fiducial bead nearby (within 2 PSF sigmas). Usually
+            free label or antibody aggregates, sometimes vesicles too small or too flat to detect. Many of them suggest
+            washing or blocking was incomplete; they are not counted as vesicle signal.
+          </p>
+        </div>
       )}
       {canAnalyse && ['registered', 'linked'].includes(status) && (
         <button type="button" className="btn w-full justify-center" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/link`)}>{status === 'linked' ? 'Link again' : 'Link vesicles to markers'}</button>

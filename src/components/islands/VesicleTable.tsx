@@ -32,15 +32,23 @@ function Table({ fieldId, sampleId }: Props) {
     col.accessor('diameterNm', { header: 'Diameter (nm)', cell: (c) => n(c.getValue()) }),
     col.accessor('volumeNm3', { header: 'Volume (nm³)', cell: (c) => Math.round(c.getValue()).toLocaleString('en') }),
     col.accessor('sphereDiameterNm', { header: 'Sphere-equiv. diameter (nm)', cell: (c) => n(c.getValue()) }),
-    ...markers.map((m, i) => col.display({
-      id: `m${i}`,
-      header: `${m} (counts)`,
-      cell: (c) => {
-        const k = c.row.original.markers[i];
-        const pos = c.row.original.phenotype.split(' ').includes(`${m}+`);
-        return <span className={pos ? 'text-cap-600 font-semibold' : 'text-mica-600'}>{n(k?.intensity, 0)} {k?.intensity == null ? '' : pos ? '+' : '−'}</span>;
-      },
-    })),
+    // each marker: net counts with the call, then its SNR (net counts over the background noise: dimensionless, no unit)
+    ...markers.flatMap((m, i) => [
+      col.display({
+        id: `m${i}`,
+        header: `${m} (counts)`,
+        cell: (c) => {
+          const k = c.row.original.markers[i];
+          const pos = c.row.original.phenotype.split(' ').includes(`${m}+`);
+          return <span className={pos ? 'text-cap-600 font-semibold' : 'text-mica-600'}>{n(k?.intensity, 0)} {k?.intensity == null ? '' : pos ? '+' : '−'}</span>;
+        },
+      }),
+      col.display({
+        id: `snr${i}`,
+        header: `${m} SNR`,
+        cell: (c) => <span className="text-mica-600">{n(c.row.original.markers[i]?.snr, 1)}</span>,
+      }),
+    ]),
     col.accessor('phenotype', { header: 'Phenotype', cell: (c) => <span className="whitespace-nowrap">{c.getValue()}</span> }),
     col.accessor('outOfFrame', { header: 'Outside frame', cell: (c) => (c.getValue() ? 'yes' : '') }),
   ], [markers.join(',')]);

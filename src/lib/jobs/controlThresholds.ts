@@ -1,7 +1,10 @@
 /**
- * Positivity thresholds from a study's control samples: for each marker, mean + k·SD of the control
- * vesicles' net aperture intensities (k = 3 by default; common practice). Markers without enough
- * control data are left out, so the pipeline falls back to background apertures for them.
+ * Positivity thresholds from a study's control samples, in the unit of the quantity that is called:
+ * for each marker, mean + k·SD of the control vesicles' joint amplitudes (counts of PSF amplitude;
+ * k = 3 by default, common practice). The unconstrained amplitude is used where stored, since the
+ * non-negative one is clipped at 0 and would understate the SD; rows linked before it was stored
+ * give their non-negative amplitude. Markers with fewer than 10 control values are left out, so the
+ * pipeline falls back to amplitudes at empty places of the frame for them.
  */
 import { and, eq, ne } from 'drizzle-orm';
 import type { Db } from '../db/client';
@@ -18,7 +21,12 @@ export async function controlThresholds(db: Db, studyId: string, markers: string
     .limit(200_000);
   const out: Record<string, { thresholdCounts: number; meanCounts: number; sdCounts: number; nbControls: number }> = {};
   markers.forEach((m, i) => {
-    const values = rows.map((r) => r.markers[i]?.intensity).filter((v): v is number => Number.isFinite(v));
+    const values = rows
+      .map((r) => {
+        const c = r.markers[i] as { amplitude?: number | null; amplitudeUnconstrained?: number | null } | undefined;
+        return c?.amplitudeUnconstrained ?? c?.amplitude;
+      })
+      .filter((v): v is number => Number.isFinite(v));
     if (values.length < 10) return;
     const t = thresholdFromControls(values, k);
     out[m] = { thresholdCounts: t.thresholdCounts, meanCounts: t.meanCounts, sdCounts: t.sdCounts, nbControls: t.nbControls };

@@ -37,6 +37,24 @@ async function notifyFieldReady(fieldId: string) {
   }
 }
 
+/** An error that a retry cannot mend: a bad or missing file, or an image the decoder refuses. */
+function isPermanent(e: unknown): boolean {
+  return e instanceof PermanentJobError || e instanceof ImagingError;
+}
+
+/**
+ * Whether a failed attempt is the job's last, so the uploader should hear of the failure now: a permanent error
+ * ends the job at once; any other error ends it only on the last try pg-boss allows (retryCount counts the
+ * retries already started: 0 on the first try, retryLimit on the last).
+ *
+ * @param error - what the attempt threw
+ * @param job - the job's retry count and limit, as pg-boss hands them with `includeMetadata`
+ * @returns true when no further attempt will follow
+ */
+export function isFinalFailure(error: unknown, job: { retryCount: number; retryLimit: number }): boolean {
+  return isPermanent(error) || job.retryCount >= job.retryLimit;
+}
+
 /** Registers the worker's job handlers. */
 export async function registerHandlers(boss: PgBoss) {
   const c = config();
@@ -48,21 +66,23 @@ export async function registerHandlers(boss: PgBoss) {
       console.log(`[worker] linked field ${job.data.fieldId} in ${Date.now() - started} ms`, r?.vesicles);
     } catch (e) {
       console.error(`[worker] linking ${job.data.fieldId} failed:`, (e as Error).message);
-      if (!(e instanceof PermanentJobError || e instanceof ImagingError)) throw e;
+      if (!isPermanent(e)) throw e;
     }
   });
-  await boss.work<{ fieldId: string }>(QUEUES.ingestField, { batchSize: 1 }, async ([job]) => {
+  await boss.work<{ fieldId: string }>(QUEUES.ingestField, { batchSize: 1, includeMetadata: true }, async ([job]) => {
     const started = Date.now();
-    console.log(`[worker] ingesting field ${job.data.fieldId} (job ${job.id})`);
+    console.log(`[worker] ingesting field ${job.data.fieldId} (job ${job.id}, try ${job.retryCount + 1} of ${job.retryLimit + 1})`);
     try {
-      const r = await ingestField({ db: await getDb(), st: await getStorage(), decodeLimits: { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES } }, job.data.fieldId);
+      const r = await ingestField({ db: await getDb(), st: await getStorage(), decodeLimits }, job.data.fieldId);
       console.log(`[worker] ingested field ${job.data.fieldId} in ${Date.now() - started} ms`, r);
     } catch (e) {
       console.error(`[worker] field ${job.data.fieldId} failed:`, (e as Error).message);
+      // Mail the uploader once: when this failure is final, not on every try that a retry may still mend.
+      if (isFinalFailure(e, job)) await notifyFieldReady(job.data.fieldId).catch((m) => console.error('[jobs] notice failed:', (m as Error).message));
       // A bad file will not get better on a retry: the field is marked failed and the job ends.
-      if (!(e instanceof PermanentJobError || e instanceof ImagingError)) throw e;
-    } finally {
-      await notifyFieldReady(job.data.fieldId);
+      if (!isPermanent(e)) throw e;
+      return;
     }
+    await notifyFieldReady(job.data.fieldId);
   });
 }

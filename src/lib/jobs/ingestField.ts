@@ -13,6 +13,7 @@ import { decodeInWorker, ImagingError } from '../imaging';
 import { analyzeHeightMap } from '../analysis/heightmap';
 import { correctBackground, detectSpots, psfSigmaPx } from '../analysis/fluorescence';
 import type { Raster } from '../analysis/types';
+import { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from '../analysis/pipeline/opticsDefaults';
 import { renderHeightLayer, renderChannelLayer, TILE_OVERLAP, TILE_SIZE } from './renderLayers';
 import { setFieldProgress, failField } from './progress';
 import type { FieldDetection } from './detectionTypes';
@@ -54,8 +55,9 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
     const spots: FieldDetection['spots'] = [];
     for (let c = 0; c < frames.length; c++) {
       await progress(`channel ${c + 1} of ${frames.length}: spots and tiles`, 0.4 + (0.55 * c) / frames.length);
-      const emissionNm = field.channelEmissionNm[c] ?? panel[c]?.emissionNm ?? 550;
-      const sigmaPx = psfSigmaPx(emissionNm, field.objectiveNa ?? 1.4, field.flPixelNm!);
+      // the same fallback as linking, so registration shows the spots linking will use
+      const emissionNm = field.channelEmissionNm[c] ?? panel[c]?.emissionNm ?? DEFAULT_EMISSION_NM;
+      const sigmaPx = psfSigmaPx(emissionNm, field.objectiveNa ?? DEFAULT_NUMERICAL_APERTURE, field.flPixelNm!);
       const bg = correctBackground(frames[c], {});
       const found = detectSpots(bg.corrected, { sigmaPx, refine: 'centroid' });
       spots.push({ channelIndex: c, marker: panel[c]?.marker ?? `channel ${c + 1}`, sigmaPx, spots: found.spots.map((s) => ({ x: s.x, y: s.y, integratedCounts: s.integratedCounts, snr: s.snr })) });

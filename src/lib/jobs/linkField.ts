@@ -1,6 +1,7 @@
 /**
- * The linking job: each vesicle of the field, mapped through its latest registration, gets an
- * intensity, SNR, joint amplitude and positive/negative call per marker, and a phenotype. Results
+ * The linking job: each vesicle of the field, mapped through its latest registration's saved
+ * transform (its own model, never refitted), gets an aperture intensity and SNR (reported), a joint
+ * amplitude and a positive/negative call of that joint amplitude per marker, and a phenotype. Results
  * are saved with the settings and transform version that produced them. Idempotent: a re-run
  * replaces the field's current results in one transaction (runs frozen by a release are kept).
  */
@@ -10,13 +11,15 @@ import { fields, fieldFiles, samples, markerChannels, registrations, linkRuns, v
 import type { Storage } from '../storage/client';
 import { getBytes } from '../storage/objects';
 import { decodeInWorker } from '../imaging';
-import { analyzeField, fieldStages, type FieldStage } from '../analysis/pipeline';
+import { analyzeField, fieldStages, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type FieldStage } from '../analysis/pipeline';
+import type { Affine } from '../analysis/types';
 import { summariseLinkRun } from '../db/queries/linkRunSummaries';
 import { setFieldProgress } from './progress';
 import { controlThresholds } from './controlThresholds';
 import { PermanentJobError, type IngestDeps } from './ingestField';
 
 const BATCH = 1000;
+const fin = (v: number) => (Number.isFinite(v) ? v : null);
 
 export async function linkField(deps: IngestDeps, fieldId: string) {
   const { db, st } = deps;
@@ -44,22 +47,31 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     await progress('linking: analysing', 0.1);
     const result = analyzeField(
       {
-        heightNm: topo.pages[0], afmPixelNm: field.afmPixelNm!, flPixelNm: field.flPixelNm!, numericalAperture: field.objectiveNa ?? 1.4,
-        channels: frames.map((raster, c) => ({ marker: markers[c], raster, emissionNm: field.channelEmissionNm[c] ?? panel[c]?.emissionNm ?? 600 })),
-        fiducialPairs: reg.pairs, thresholdCountsByMarker,
+        heightNm: topo.pages[0], afmPixelNm: field.afmPixelNm!, flPixelNm: field.flPixelNm!, numericalAperture: field.objectiveNa ?? DEFAULT_NUMERICAL_APERTURE,
+        // the same emission fallback as ingestion, so linking uses the PSF of the spots shown at registration
+        channels: frames.map((raster, c) => ({ marker: markers[c], raster, emissionNm: field.channelEmissionNm[c] ?? panel[c]?.emissionNm ?? DEFAULT_EMISSION_NM })),
+        // the accepted transform as saved (affine or similarity), not a refit of its pairs
+        savedRegistration: { flFromAfm: reg.flFromAfm as unknown as Affine, model: reg.model, pairs: reg.pairs },
+        thresholdCountsByMarker,
       },
       {
-        tipRadiusNm: field.tipRadiusNm ?? 0, snapRadiusNm: 0,
+        tipRadiusNm: field.tipRadiusNm ?? 0,
         onProgress: (stage, f) => stages.push([stage, f]),
       },
     );
 
     for (const [stage, f] of stages.filter(([, f]) => f === 1)) await progress(`linking: ${stage} done`, 0.1 + 0.75 * ((fieldStages.indexOf(stage) + f) / fieldStages.length));
     await progress('saving results', 0.9);
+    const thresholdSource = (m: string) => controls[m]
+      ? `mean + 3 SD of the joint amplitudes of ${controls[m].nbControls} control-sample vesicles`
+      : `mean + 3 SD of joint amplitudes fitted at ${result.summary.channels[m]?.nbBackgroundApertures ?? '?'} empty places of the frame`;
     const settings = {
       registrationVersion: reg.version,
-      thresholdRule: Object.fromEntries(markers.map((m) => [m, controls[m] ? `control samples: mean + 3 SD of ${controls[m].nbControls} control vesicles` : 'background apertures: mean + 3 SD'])),
-      thresholdMethod: markers.map((m) => `${m}: ${controls[m] ? 'mean + 3 SD of control-sample vesicles' : 'mean + 3 SD of background apertures'}`).join('; '),
+      registrationModel: reg.model,
+      positivityMeasure: 'joint_amplitude',
+      thresholdUnit: result.summary.channels[markers[0]]?.thresholdUnit ?? 'counts',
+      thresholdRule: Object.fromEntries(markers.map((m) => [m, thresholdSource(m)])),
+      thresholdMethod: markers.map((m) => `${m}: joint NNLS amplitude (counts of PSF amplitude) above ${thresholdSource(m)}`).join('; '),
       thresholds: Object.fromEntries(markers.map((m) => [m, result.summary.channels[m]?.thresholdCounts ?? null])),
       k: 3,
       markers,
@@ -80,7 +92,10 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
         const calls = markers.map((m, i) => {
           const c = r.markers[m];
           if (c?.positive) bits |= 1 << i;
-          return { intensity: c?.intensityCounts ?? NaN, snr: c?.intensitySnr ?? NaN, amplitude: c?.amplitudeCounts ?? NaN, spotDistancePx: c?.spotDistancePx ?? null };
+          return {
+            intensity: c?.intensityCounts ?? NaN, snr: c?.intensitySnr ?? NaN, amplitude: c?.amplitudeCounts ?? NaN,
+            amplitudeUnconstrained: c?.unconstrainedAmplitudeCounts ?? NaN, spotDistancePx: c?.spotDistancePx ?? null,
+          };
         });
         return {
           linkRunId: run.id, fieldId, sampleId: sample.id, index: r.index, xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: r.xFlPx, yFlPx: r.yFlPx,
@@ -88,7 +103,10 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
           capRadiusNm: r.cap?.baseRadiusNm ?? null, contactAngleDeg: r.cap?.contactAngleDeg ?? null, sphereDiameterNm: r.cap?.volumeEquivalentDiameterNm ?? null,
           outOfFrame: r.outOfFrame, markerBits: bits, phenotype: r.phenotype,
           // JSON has no NaN: a vesicle outside a frame has null values there
-          markers: calls.map((c) => ({ intensity: Number.isFinite(c.intensity) ? c.intensity : null, snr: Number.isFinite(c.snr) ? c.snr : null, amplitude: Number.isFinite(c.amplitude) ? c.amplitude : null, spotDistancePx: c.spotDistancePx })) as never,
+          // amplitudeUnconstrained (counts, may be < 0) feeds later control-sample thresholds
+          markers: calls.map((c) => ({
+            intensity: fin(c.intensity), snr: fin(c.snr), amplitude: fin(c.amplitude), amplitudeUnconstrained: fin(c.amplitudeUnconstrained), spotDistancePx: c.spotDistancePx,
+          })) as never,
         };
       });
       for (let i = 0; i < rows.length; i += BATCH) await tx.insert(vesicles).values(rows.slice(i, i + BATCH));

@@ -1,6 +1,5 @@
-import KDBush from 'kdbush';
 import type { Point, Raster } from '../types';
-import { AnalysisError } from '../errors';
+import { backgroundPositions } from './backgroundPositions';
 import { aperturePhotometry } from '../fluorescence/aperturePhotometry';
 import { thresholdFromControls, type ThresholdFromControlsResult } from './thresholdFromControls';
 
@@ -37,10 +36,9 @@ export interface BackgroundApertureThresholdResult extends ThresholdFromControls
 }
 
 /**
- * Positivity threshold for one channel when no control sample exists: net aperture counts at empty places of the
- * same frame, mean + k·SD. Candidate centres lie on a square lattice (spacing = annulus diameter, so apertures do not
- * overlap), are kept when they are far from every vesicle and spot and their annulus is inside the frame, and are
- * thinned evenly to `maxApertures`. Deterministic: no random placement.
+ * Aperture-count threshold for one channel: net aperture counts at empty places of the same frame
+ * ({@link backgroundPositions}), mean + k·SD. The pipeline calls markers on the joint amplitude and so uses
+ * {@link backgroundAmplitudeThreshold}; this one stays for comparing with aperture photometry.
  *
  * @param raster - fluorescence frame (counts); not modified
  * @param avoidPx - vesicle and spot positions to stay away from (px); not modified
@@ -53,34 +51,8 @@ export function backgroundApertureThreshold(
   avoidPx: readonly Point[],
   options: BackgroundApertureThresholdOptions,
 ): BackgroundApertureThresholdResult {
-  const { sigmaPx, radiusPx = 2 * sigmaPx, exclusionRadiusPx = 6 * sigmaPx, maxApertures = 400, k = 3 } = options;
-  const inner = Math.max(radiusPx + 1, 3 * sigmaPx);
-  const outer = inner + Math.max(3, 2 * sigmaPx);
-  const spacing = 2 * outer;
-  const index = new KDBush(Math.max(1, avoidPx.length));
-  for (const p of avoidPx) index.add(p.x, p.y);
-  if (avoidPx.length === 0) index.add(-1e9, -1e9);
-  index.finish();
-
-  // candidates
-  const candidates: Point[] = [];
-  for (let y = outer + 1; y < raster.height - outer - 1; y += spacing) {
-    for (let x = outer + 1; x < raster.width - outer - 1; x += spacing) {
-      if (index.within(x, y, exclusionRadiusPx).length === 0) candidates.push({ x, y });
-    }
-  }
-  if (candidates.length < 10) {
-    throw new AnalysisError(
-      'too_few_background_apertures',
-      `only ${candidates.length} empty places for background apertures; need at least 10 (frame too crowded or small)`,
-      { nbCandidates: candidates.length },
-    );
-  }
-  const step = Math.max(1, candidates.length / maxApertures);
-  const positions: Point[] = [];
-  for (let i = 0; i < candidates.length && positions.length < maxApertures; i += step) positions.push(candidates[Math.floor(i)]);
-
-  // measure
+  const { sigmaPx, radiusPx = 2 * sigmaPx, exclusionRadiusPx, maxApertures = 400, k = 3 } = options;
+  const positions = backgroundPositions(raster, avoidPx, { sigmaPx, radiusPx, exclusionRadiusPx, maxPositions: maxApertures });
   const values = positions.map((p) => aperturePhotometry(raster, p, { sigmaPx, radiusPx }).netCounts);
   return { ...thresholdFromControls(values, k), positions };
 }

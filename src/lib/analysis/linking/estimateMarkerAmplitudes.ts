@@ -22,8 +22,18 @@ export interface EstimateMarkerAmplitudesOptions {
 
 /** Amplitude of one vesicle in one channel. */
 export interface MarkerAmplitude {
-  /** Integrated PSF amplitude: the counts this vesicle contributes over the whole plane (counts); NaN out of frame. */
+  /**
+   * Joint NNLS amplitude (≥ 0): the total counts this vesicle contributes, integrated over the whole plane. Each PSF
+   * column sums to 1 over the plane (pixel-integrated Gaussian), so the amplitude is in counts, not counts per pixel.
+   * NaN out of frame.
+   */
   readonly amplitudeCounts: number;
+  /**
+   * The same amplitude from ordinary least squares without the non-negativity constraint (counts, may be < 0). On
+   * empty places it scatters symmetrically around 0, so mean + k·SD of it is a threshold in the unit of
+   * amplitudeCounts that is not biased by clipping at 0. NaN out of frame or when the neighbourhood is singular.
+   */
+  readonly unconstrainedAmplitudeCounts: number;
   /** Standard error of amplitudeCounts from the unconstrained least-squares covariance (counts). */
   readonly stdErrCounts: number;
   /** amplitudeCounts / stdErrCounts. */
@@ -104,6 +114,7 @@ export function estimateMarkerAmplitudes(
 
   const amplitudes: MarkerAmplitude[] = positionsPx.map(() => ({
     amplitudeCounts: Number.NaN,
+    unconstrainedAmplitudeCounts: Number.NaN,
     stdErrCounts: Number.NaN,
     snr: Number.NaN,
     groupIndex: -1,
@@ -159,8 +170,12 @@ export function estimateMarkerAmplitudes(
     const dof = Math.max(1, m - (k + 1));
     const sigma2 = (residualNorm * residualNorm) / dof;
     let covariance: Matrix | undefined;
+    let unconstrained: Matrix | undefined;
     try {
-      covariance = inverse(design.transpose().mmul(design)).mul(sigma2);
+      const designT = design.transpose();
+      const normalInverse = inverse(designT.mmul(design));
+      unconstrained = normalInverse.mmul(designT.mmul(Matrix.columnVector(Array.from(b))));
+      covariance = normalInverse.mul(sigma2);
     } catch {
       covariance = undefined;
     }
@@ -169,6 +184,7 @@ export function estimateMarkerAmplitudes(
       const se = covariance ? Math.sqrt(Math.max(0, covariance.get(c, c))) : Number.NaN;
       amplitudes[i] = {
         amplitudeCounts: amplitude,
+        unconstrainedAmplitudeCounts: unconstrained ? unconstrained.get(c, 0) : Number.NaN,
         stdErrCounts: se,
         snr: se > 0 ? amplitude / se : Number.NaN,
         groupIndex,

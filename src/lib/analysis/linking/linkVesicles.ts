@@ -11,11 +11,19 @@ export interface LinkVesiclesOptions {
   /** Positivity threshold per marker, in the unit of `positivityMeasure` (counts). Required for every marker. */
   thresholdCountsByMarker: Readonly<Record<string, number>>;
   /**
-   * Which intensity is compared with the threshold: net aperture counts or the joint NNLS amplitude (total counts).
-   * Thresholds from {@link backgroundApertureThreshold} are in aperture counts.
-   * @default 'aperture'
+   * Which intensity is compared with the threshold. 'jointAmplitude': the NNLS amplitude of the vesicle's PSF fitted
+   * jointly with its neighbours (total counts of that PSF), so light from a neighbour closer than the PSF is not
+   * counted; thresholds from {@link backgroundAmplitudeThreshold} or control vesicles' amplitudes. 'aperture': net
+   * aperture counts, which also collect a close neighbour's light; thresholds from {@link backgroundApertureThreshold}.
+   * @default 'jointAmplitude'
    */
   positivityMeasure?: 'aperture' | 'jointAmplitude';
+  /**
+   * Other light sources at known positions in the fluorescence frame (px), such as fiducial beads: each gets a
+   * PSF column in the joint fit, so a bright bead next to a vesicle does not lend it light. Not reported.
+   * @default none
+   */
+  otherSourcesPx?: readonly Point[];
   /**
    * Largest vesicle–spot distance that counts as a match (px).
    * @default 2·sigmaPx of the channel
@@ -25,11 +33,15 @@ export interface LinkVesiclesOptions {
 
 /** One vesicle's measurement in one channel; null fields when the vesicle is outside that frame. */
 export interface ChannelCall {
+  /** Net aperture counts (counts); reported, compared with the threshold only when positivityMeasure is 'aperture'. */
   readonly apertureCounts: number | null;
   readonly apertureSnr: number | null;
   /** True when the aperture or its annulus reached outside the frame. */
   readonly apertureLeavesFrame: boolean;
+  /** Joint NNLS amplitude (total counts of this vesicle's PSF); compared with the threshold by default. */
   readonly amplitudeCounts: number | null;
+  /** Unconstrained least-squares amplitude (counts, may be < 0); for control-based thresholds. */
+  readonly unconstrainedAmplitudeCounts: number | null;
   readonly amplitudeStdErrCounts: number | null;
   readonly amplitudeSnr: number | null;
   /** Index into that channel's spot list of the nearest spot within the match radius, else null. */
@@ -65,8 +77,8 @@ export interface LinkVesiclesResult {
 
 /**
  * Links AFM-detected vesicles (already mapped into fluorescence pixels) to every marker channel: aperture
- * photometry with SNR, joint NNLS amplitude, nearest detected spot, a positivity call against the marker's
- * threshold and a phenotype string. Vesicles mapped outside a frame are flagged, not dropped.
+ * photometry with SNR (reported), joint NNLS amplitude, nearest detected spot, a positivity call of the joint
+ * amplitude (by default) against the marker's threshold and a phenotype string. Vesicles mapped outside a frame are flagged, not dropped.
  *
  * @param vesiclesFl - vesicle centres in fluorescence pixels (px); not modified
  * @param spotsPerChannel - detected spots per marker (px); not modified; a missing marker means no spots
@@ -81,7 +93,7 @@ export function linkVesicles(
   rastersPerChannel: Readonly<Record<string, Raster>>,
   options: LinkVesiclesOptions,
 ): LinkVesiclesResult {
-  const { sigmaPxByMarker, thresholdCountsByMarker, positivityMeasure = 'aperture', spotMatchRadiusPx } = options;
+  const { sigmaPxByMarker, thresholdCountsByMarker, otherSourcesPx = [], positivityMeasure = 'jointAmplitude', spotMatchRadiusPx } = options;
   const markers = Object.keys(rastersPerChannel);
   for (const marker of markers) {
     if (!(sigmaPxByMarker[marker] > 0)) throw new RangeError(`sigmaPxByMarker.${marker} must be a positive number`);
@@ -100,7 +112,8 @@ export function linkVesicles(
     const threshold = thresholdCountsByMarker[marker];
     const matchPx = spotMatchRadiusPx ?? 2 * sigmaPx;
     const spots = spotsPerChannel[marker] ?? [];
-    const joint = estimateMarkerAmplitudes(raster, vesiclesFl, { sigmaPx }).amplitudes;
+    // the first n amplitudes are the vesicles'; the other sources only take their own light
+    const joint = estimateMarkerAmplitudes(raster, otherSourcesPx.length ? [...vesiclesFl, ...otherSourcesPx] : vesiclesFl, { sigmaPx }).amplitudes;
 
     // nearest spot per vesicle, and spots with no vesicle
     const spotIndex = new KDBush(Math.max(1, spots.length));
@@ -129,7 +142,7 @@ export function linkVesicles(
       }
       if (joint[i].outOfFrame) {
         return {
-          apertureCounts: null, apertureSnr: null, apertureLeavesFrame: true, amplitudeCounts: null,
+          apertureCounts: null, apertureSnr: null, apertureLeavesFrame: true, amplitudeCounts: null, unconstrainedAmplitudeCounts: null,
           amplitudeStdErrCounts: null, amplitudeSnr: null, spotIndex: nearest, spotDistancePx: nearestD, positive: null,
         };
       }
@@ -142,6 +155,7 @@ export function linkVesicles(
         apertureSnr: ap.snr,
         apertureLeavesFrame: ap.leavesFrame,
         amplitudeCounts: joint[i].amplitudeCounts,
+        unconstrainedAmplitudeCounts: joint[i].unconstrainedAmplitudeCounts,
         amplitudeStdErrCounts: joint[i].stdErrCounts,
         amplitudeSnr: joint[i].snr,
         spotIndex: nearest,

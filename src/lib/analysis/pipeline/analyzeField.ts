@@ -1,10 +1,12 @@
 import KDBush from 'kdbush';
 import { AnalysisError } from '../errors';
 import { correctBackground, detectSpots, psfSigmaPx, type FluorescenceSpot } from '../fluorescence';
-import { applyAffine, evaluateRegistration, findPairsRansac, invertAffine, type FiducialPair } from '../geometry';
+import {
+  applyAffine, decomposeAffine, describeAffine, evaluateRegistration, findPairsRansac, invertAffine, residuals, type FiducialPair,
+} from '../geometry';
 import { detectVesicles, levelHeightMap, measureVesicle, selectThreshold } from '../heightmap';
 import type { MeasureVesicleResult } from '../heightmap/types';
-import { backgroundApertureThreshold, linkVesicles } from '../linking';
+import { backgroundAmplitudeThreshold, linkVesicles } from '../linking';
 import type { Point, Raster } from '../types';
 import { mergeSpots } from './mergeSpots';
 import { refineFiducialPairs } from './refineFiducialPairs';
@@ -14,23 +16,26 @@ import type {
   AnalyzeFieldResult,
   FieldChannelSummary,
   FieldRegistration,
+  SavedRegistration,
   VesicleMarkerCall,
   VesicleRecord,
 } from './types';
 
 /**
  * Analyses one correlative field end to end: level the height map, detect and measure vesicles and fiducial
- * candidates, detect spots in every fluorescence channel, register AFM to fluorescence (refined fiducial picks, or
- * automatic pairing of AFM candidates with spots), map every vesicle into fluorescence pixels, measure and call
- * each marker (aperture photometry against a given threshold or mean + 3 SD of empty apertures, joint NNLS
- * amplitude, nearest spot) and gather per-vesicle records and field counts. Pure and deterministic.
+ * candidates, detect spots in every fluorescence channel, register AFM to fluorescence (a saved transform as is,
+ * refined fiducial picks, or automatic pairing of AFM candidates with spots), map every vesicle into fluorescence
+ * pixels, measure each marker (aperture photometry and SNR, reported; joint NNLS amplitude of each vesicle's PSF
+ * with its neighbours; nearest spot), call it by comparing the joint amplitude with a given threshold or mean + 3 SD
+ * of amplitudes fitted at empty places, and gather per-vesicle records and field counts. Pure and deterministic.
  *
  * @param input - rasters, pixel sizes (nm/px), optics, optional fiducials and thresholds; not modified
  * @param options - see {@link AnalyzeFieldOptions}
  * @returns per-vesicle records, a field summary and the intermediate detections
  * @throws AnalysisError `no_channels`, `duplicate_marker`, `channel_size_mismatch`, `unknown_marker_threshold`;
  *   the codes of levelling and thresholds (`insufficient_background`, ...), of registration (`too_few_fiducials`,
- *   `duplicate_fiducials`, `degenerate_fiducials`, `no_consistent_pairing`) and `too_few_background_apertures`
+ *   `duplicate_fiducials`, `degenerate_fiducials`, `no_consistent_pairing`), `invalid_saved_transform` and
+ *   `too_few_background_apertures`
  * @throws RangeError for non-positive pixel sizes, NA or wavelengths
  */
 export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOptions = {}): AnalyzeFieldResult {
@@ -38,7 +43,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     thresholdNm, level = {}, tipRadiusNm = 0, cameraOffsetCounts = 0, spotThresholdK = 5, snapRadiusNm = 300,
     mergeSpotsPx = 1.5, pairingToleranceFlPx = 2, seed = 1, onProgress = () => undefined,
   } = options;
-  const { heightNm, afmPixelNm, channels, flPixelNm, numericalAperture, fiducialPairs, thresholdCountsByMarker = {} } = input;
+  const { heightNm, afmPixelNm, channels, flPixelNm, numericalAperture, fiducialPairs, savedRegistration, thresholdCountsByMarker = {} } = input;
   validateInput(input);
   const markers = channels.map((c) => c.marker);
   const sigmaPxByMarker: Record<string, number> = {};
@@ -84,7 +89,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
 
   // register
   onProgress('register', 0);
-  const registration = fiducialPairs
+  const registration = savedRegistration
+    ? registerFromSaved(savedRegistration, { afmPixelNm, flPixelNm })
+    : fiducialPairs
     ? registerFromPicks(fiducialPairs, vesicles, fiducialCandidates, detection.labels, heightNm.width, spotsPerChannel, {
         afmPixelNm, flPixelNm, snapRadiusNm,
       })
@@ -95,7 +102,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   const fiducialsFl = fiducialCandidates.map((f) => applyAffine(registration.flFromAfm, f.centroidPx));
   onProgress('register', 1);
 
-  // link: thresholds first (given, else empty apertures of the same frame), then calls
+  // link: thresholds first (given, else amplitudes at empty places of the same frame), then calls of the joint amplitude
   onProgress('link', 0);
   const rastersPerChannel: Record<string, Raster> = {};
   for (const c of channels) rastersPerChannel[c.marker] = c.raster;
@@ -108,17 +115,17 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       thresholdInfo[c.marker] = { thresholdSource: 'given', backgroundMeanCounts: null, backgroundSdCounts: null, nbBackgroundApertures: null };
     } else {
       const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[c.marker]];
-      const t = backgroundApertureThreshold(c.raster, avoid, { sigmaPx: sigmaPxByMarker[c.marker], k: 3 });
+      const t = backgroundAmplitudeThreshold(c.raster, avoid, { sigmaPx: sigmaPxByMarker[c.marker], k: 3 });
       thresholds[c.marker] = t.thresholdCounts;
       thresholdInfo[c.marker] = {
-        thresholdSource: 'background_apertures', backgroundMeanCounts: t.meanCounts, backgroundSdCounts: t.sdCounts,
+        thresholdSource: 'background_amplitudes', backgroundMeanCounts: t.meanCounts, backgroundSdCounts: t.sdCounts,
         nbBackgroundApertures: t.nbControls,
       };
     }
     onProgress('link', (0.5 * (i + 1)) / channels.length);
   });
   const links = linkVesicles(vesiclesFl, spotsByMarker, rastersPerChannel, {
-    sigmaPxByMarker, thresholdCountsByMarker: thresholds,
+    sigmaPxByMarker, thresholdCountsByMarker: thresholds, positivityMeasure: 'jointAmplitude', otherSourcesPx: fiducialsFl,
   });
   onProgress('link', 1);
 
@@ -131,6 +138,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       const c = link.channels[m];
       calls[m] = {
         intensityCounts: c.apertureCounts, intensitySnr: c.apertureSnr, amplitudeCounts: c.amplitudeCounts,
+        unconstrainedAmplitudeCounts: c.unconstrainedAmplitudeCounts, amplitudeSnr: c.amplitudeSnr,
         spotDistancePx: c.spotDistancePx, positive: c.positive,
       };
     }
@@ -174,6 +182,8 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       psfSigmaPx: sigma,
       nbSpots: spots.length,
       thresholdCounts: thresholds[c.marker],
+      thresholdMeasure: 'joint_amplitude',
+      thresholdUnit: AMPLITUDE_UNIT,
       ...thresholdInfo[c.marker],
       nbPositive: links.positiveByMarker[c.marker],
       nbSpotsWithoutVesicle: withoutVesicle,
@@ -208,6 +218,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     fiducialsFl,
   };
 }
+
+/** The unit of joint amplitudes and their thresholds, in words for people. */
+const AMPLITUDE_UNIT = 'counts (total counts of one vesicle\'s fitted PSF, integrated over the plane)';
 
 function validateInput(input: AnalyzeFieldInput): void {
   const { channels, afmPixelNm, flPixelNm, numericalAperture, thresholdCountsByMarker = {} } = input;
@@ -248,6 +261,35 @@ function nearAny(points: readonly Point[], radiusPx: number): (p: Point) => bool
   for (const p of points) index.add(p.x, p.y);
   index.finish();
   return (p) => index.within(p.x, p.y, radiusPx).length > 0;
+}
+
+/**
+ * A saved registration used as is: the vesicles are mapped with its transform, whatever a refit of its pairs would
+ * give; the pairs only provide the residuals (FRE) and, fitted with the saved model, the TRE estimates and warnings.
+ */
+function registerFromSaved(saved: SavedRegistration, o: { afmPixelNm: number; flPixelNm: number }): FieldRegistration {
+  const { flFromAfm, model, pairs } = saved;
+  if (flFromAfm.length !== 6 || !flFromAfm.every(Number.isFinite)) {
+    throw new AnalysisError('invalid_saved_transform', 'The saved registration has no valid transform (6 finite numbers); save the registration again.');
+  }
+  const evaluation = evaluateRegistration(pairs, { afmPixelNm: o.afmPixelNm, flPixelNm: o.flPixelNm, model });
+  const res = residuals(pairs.map((p) => p.afm), pairs.map((p) => p.fl), flFromAfm, o.flPixelNm);
+  return {
+    source: 'saved',
+    model,
+    flFromAfm,
+    afmFromFl: invertAffine(flFromAfm),
+    description: describeAffine(flFromAfm),
+    mirrored: decomposeAffine(flFromAfm).mirrored,
+    pairs: pairs.map((p) => ({ afm: { ...p.afm }, fl: { ...p.fl } })),
+    nbPairs: pairs.length,
+    freNm: res.freNm,
+    rmsResidualPx: res.rmsResidualPx,
+    leaveOneOutTreRmsNm: evaluation.leaveOneOutTreRmsNm,
+    predictedTreAtCentroidNm: evaluation.predictedTreAtCentroidNm,
+    warnings: evaluation.warnings,
+    refinement: null,
+  };
 }
 
 function registerFromPicks(
@@ -293,6 +335,7 @@ function describe(
   const evaluation = evaluateRegistration(pairs, { afmPixelNm: o.afmPixelNm, flPixelNm: o.flPixelNm });
   return {
     source,
+    model: evaluation.model,
     flFromAfm: evaluation.flFromAfm,
     afmFromFl: invertAffine(evaluation.flFromAfm),
     description: evaluation.description,

@@ -1,6 +1,7 @@
 export { analyzeField } from './analyzeField';
 export { fieldStages } from './fieldStages';
 export { mergeSpots } from './mergeSpots';
+export { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from './opticsDefaults';
 export { parseFiducialCsv } from './parseFiducialCsv';
 export { refineFiducialPairs, type RefineFiducialPairsOptions } from './refineFiducialPairs';
 export { vesicleCsv, vesicleCsvHeader, vesicleCsvRow } from './vesicleCsv';

@@ -1,5 +1,5 @@
 import type { FluorescenceSpot } from '../fluorescence/types';
-import type { FiducialPair, RegistrationWarning } from '../geometry';
+import type { FiducialPair, RegistrationModel, RegistrationWarning } from '../geometry';
 import type { LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
 import type { Affine, Point, Raster } from '../types';
 
@@ -33,8 +33,27 @@ export interface AnalyzeFieldInput {
    * When absent, the pairs are found automatically.
    */
   readonly fiducialPairs?: readonly FiducialPair[];
-  /** Positivity threshold per marker in net aperture counts; markers without one get mean + 3 SD of empty apertures. */
+  /**
+   * A registration saved earlier (e.g. accepted by an analyst). When given, vesicles are mapped with exactly its
+   * `flFromAfm` and its model; its pairs are not refined or refitted and serve only for the error figures.
+   * Takes precedence over `fiducialPairs`.
+   */
+  readonly savedRegistration?: SavedRegistration;
+  /**
+   * Positivity threshold per marker, in joint-amplitude counts (total counts of one vesicle's PSF, the quantity
+   * called; e.g. mean + 3 SD of control vesicles' amplitudes); markers without one get mean + 3 SD of the
+   * amplitudes fitted at empty places of the same frame.
+   */
   readonly thresholdCountsByMarker?: Readonly<Record<string, number>>;
+}
+
+/** A stored registration: the transform and the model it was fitted with, and the pairs it came from. */
+export interface SavedRegistration {
+  /** AFM px → fluorescence px, as saved. */
+  readonly flFromAfm: Affine;
+  readonly model: RegistrationModel;
+  /** The pairs the transform was fitted to (AFM px, fluorescence px); at least 2. */
+  readonly pairs: readonly FiducialPair[];
 }
 
 /** Options of {@link analyzeField}. */
@@ -79,8 +98,10 @@ export interface FiducialRefinement {
 
 /** The registration used for a field. */
 export interface FieldRegistration {
-  /** 'fiducials' when pairs were given, 'automatic' when found from candidates. */
-  readonly source: 'fiducials' | 'automatic';
+  /** 'saved' when a saved transform was used as is, 'fiducials' when pairs were given, 'automatic' when found. */
+  readonly source: 'saved' | 'fiducials' | 'automatic';
+  /** Transform model ('affine' unless a saved similarity was used). */
+  readonly model: RegistrationModel;
   readonly flFromAfm: Affine;
   readonly afmFromFl: Affine;
   /** Words for people, e.g. "scale ..., rotation ..., mirrored". */
@@ -97,17 +118,24 @@ export interface FieldRegistration {
   /** Predicted RMS target error at the fiducial centroid (nm); null without an error estimate. */
   readonly predictedTreAtCentroidNm: number | null;
   readonly warnings: readonly RegistrationWarning[];
-  /** One entry per given pick; null for automatic pairing. */
+  /** One entry per given pick; null for automatic pairing and for a saved registration. */
   readonly refinement: readonly FiducialRefinement[] | null;
 }
 
 /** One marker's call for one vesicle; null values where the vesicle lies outside the frame. */
 export interface VesicleMarkerCall {
-  /** Net aperture counts (counts), the value compared with the threshold. */
+  /** Net aperture counts (counts); reported, not called (it also collects a close neighbour's light). */
   readonly intensityCounts: number | null;
   readonly intensitySnr: number | null;
-  /** Joint NNLS amplitude: total counts attributed to this vesicle (counts). */
+  /** Joint NNLS amplitude: total counts of this vesicle's PSF (counts), the value compared with the threshold. */
   readonly amplitudeCounts: number | null;
+  /**
+   * The same without the non-negativity constraint (counts, may be < 0); control-sample thresholds use it.
+   * Absent in records rebuilt from storage that did not keep it.
+   */
+  readonly unconstrainedAmplitudeCounts?: number | null;
+  /** amplitudeCounts over its standard error (dimensionless); absent in records rebuilt from storage. */
+  readonly amplitudeSnr?: number | null;
   /** Distance to the nearest detected spot within the match radius (fluorescence px), else null. */
   readonly spotDistancePx: number | null;
   readonly positive: boolean | null;
@@ -149,12 +177,18 @@ export interface FieldChannelSummary {
   readonly emissionNm: number;
   readonly psfSigmaPx: number;
   readonly nbSpots: number;
-  /** Threshold on net aperture counts (counts). */
+  /** Threshold on the joint amplitude (counts of PSF amplitude, see thresholdUnit). */
   readonly thresholdCounts: number;
-  readonly thresholdSource: 'given' | 'background_apertures';
-  /** Ingredients of a background-aperture threshold (counts); null when the threshold was given. */
+  /** The quantity compared with the threshold. */
+  readonly thresholdMeasure: 'joint_amplitude';
+  /** Words for the unit of thresholdCounts and amplitudeCounts, for people. */
+  readonly thresholdUnit: string;
+  /** 'given' (e.g. control samples) or mean + 3 SD of amplitudes fitted at empty places of the frame. */
+  readonly thresholdSource: 'given' | 'background_amplitudes';
+  /** Ingredients of a background threshold (counts of PSF amplitude); null when the threshold was given. */
   readonly backgroundMeanCounts: number | null;
   readonly backgroundSdCounts: number | null;
+  /** Number of empty places fitted for a background threshold (the name is kept for stored summaries). */
   readonly nbBackgroundApertures: number | null;
   readonly nbPositive: number;
   /** Spots with no vesicle and no fiducial within 2 PSF sigmas (possible debris, free dye, missed EVs). */

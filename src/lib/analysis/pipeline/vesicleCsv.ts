@@ -8,7 +8,9 @@ const GEOMETRY_COLUMNS = [
 /**
  * Writes vesicle records as CSV (RFC 4180, CRLF-free: lines end with \n). Columns: x_afm_px, y_afm_px, x_fl_px,
  * y_fl_px, height_nm, diameter_nm, volume_nm3, area_nm2, circularity, then for each marker `<marker>_intensity`
- * (net aperture counts) and `<marker>` (1 positive, 0 negative, empty outside that frame), then out_of_frame (0/1)
+ * (net aperture counts), `<marker>_snr` (net counts over the background noise, dimensionless),
+ * `<marker>_amplitude_counts` (joint NNLS amplitude: total counts of the vesicle's PSF, the value that is called)
+ * and `<marker>` (1 positive, 0 negative, empty outside that frame), then out_of_frame (0/1)
  * and phenotype. Numbers have fixed decimals so equal results give byte-identical files.
  *
  * @param records - vesicle records from {@link analyzeField}; not modified
@@ -28,7 +30,7 @@ export function vesicleCsv(records: readonly VesicleRecord[], markers: readonly 
  * field, sample and transform identifiers). No line break.
  */
 export function vesicleCsvHeader(markers: readonly string[], extra: readonly string[] = []): string {
-  return [...GEOMETRY_COLUMNS, ...markers.flatMap((m) => [`${m}_intensity`, m]), 'out_of_frame', 'phenotype', ...extra].map(csvField).join(',');
+  return [...GEOMETRY_COLUMNS, ...markers.flatMap((m) => [`${m}_intensity`, `${m}_snr`, `${m}_amplitude_counts`, m]), 'out_of_frame', 'phenotype', ...extra].map(csvField).join(',');
 }
 
 /** One data line of {@link vesicleCsv} (no line break), with `extra` values appended. */
@@ -41,6 +43,8 @@ export function vesicleCsvRow(r: VesicleRecord, markers: readonly string[], extr
     const call = r.markers[m];
     if (!call) throw new RangeError(`record ${r.index} has no call for marker ${m}`);
     cells.push(call.intensityCounts === null ? '' : fixed(call.intensityCounts, 1));
+    cells.push(call.intensitySnr === null ? '' : fixed(call.intensitySnr, 2));
+    cells.push(call.amplitudeCounts === null ? '' : fixed(call.amplitudeCounts, 1));
     cells.push(call.positive === null ? '' : call.positive ? '1' : '0');
   }
   cells.push(r.outOfFrame ? '1' : '0', r.phenotype, ...extra);

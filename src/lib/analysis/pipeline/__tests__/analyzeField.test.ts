@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { AnalysisError } from '../../errors';
-import { applyAffine } from '../../geometry';
+import { applyAffine, evaluateRegistration } from '../../geometry';
 import type { Point } from '../../types';
 import { analyzeField, fieldStages, vesicleCsv, type AnalyzeFieldInput, type AnalyzeFieldResult, type FieldStage } from '..';
 import { makeFieldScene, type FieldScene } from './fieldScene';
@@ -139,11 +139,19 @@ describe('analyzeField on a synthetic field with known truth', () => {
     }
   });
 
-  it('derives each threshold from empty apertures as mean + 3 SD (REFERENCES §9, IUPAC limit of detection)', () => {
+  it('derives each threshold from amplitudes at empty places as mean + 3 SD (REFERENCES §9, IUPAC limit of detection)', () => {
+    // the joint amplitude is what is called, so the threshold is in that quantity (it was aperture counts before)
     for (const m of picked.summary.markers) {
       const c = picked.summary.channels[m];
-      expect(c.thresholdSource).toBe('background_apertures');
+      expect(c.thresholdSource).toBe('background_amplitudes');
+      expect(c.thresholdMeasure).toBe('joint_amplitude');
+      expect(c.thresholdUnit).toMatch(/^counts/);
       expect(c.thresholdCounts).toBeCloseTo(c.backgroundMeanCounts! + 3 * c.backgroundSdCounts!, 9);
+      // every call is the joint amplitude against that threshold
+      for (const r of picked.records) {
+        const call = r.markers[m];
+        if (call.positive !== null) expect(call.positive).toBe(call.amplitudeCounts! > c.thresholdCounts);
+      }
       // PSF σ = 0.21·λ/NA/pixel (REFERENCES §4, Zhang et al. 2007): 520 nm, NA 1.4, 65 nm/px → 1.2 px
       if (m === 'CD9') expect(c.psfSigmaPx).toBeCloseTo(1.2, 9);
       // the five beads shine in every channel and are not counted as vesicle-free spots
@@ -238,5 +246,34 @@ describe('analyzeField on a synthetic field with known truth', () => {
       expect(() => analyzeField({ ...input, ...patch })).toThrow(expect.objectContaining({ code: expected }));
     }
     expect(() => analyzeField({ ...input, flPixelNm: 0 })).toThrow(RangeError);
+  });
+
+  it('maps vesicles with a saved similarity exactly as saved, without refining or refitting its pairs', () => {
+    // The scene's true map has a 2 % shear, which a similarity cannot fit. An analyst saved a similarity fitted to
+    // the true bead positions; linking must use that transform (and say so), not an affine refit of the pairs.
+    const pairs = scene.beadsAfm.map((p, i) => ({ afm: p, fl: scene.beadsFl[i] }));
+    const similarity = evaluateRegistration(pairs, { afmPixelNm: scene.afmPixelNm, flPixelNm: scene.flPixelNm, model: 'similarity' });
+    const affine = evaluateRegistration(pairs, { afmPixelNm: scene.afmPixelNm, flPixelNm: scene.flPixelNm, model: 'affine' });
+    const saved = analyzeField({ ...inputOf(scene, true), savedRegistration: { flFromAfm: similarity.flFromAfm, model: 'similarity', pairs } });
+    const reg = saved.summary.registration;
+    expect(reg.source).toBe('saved');
+    expect(reg.model).toBe('similarity');
+    expect(reg.refinement).toBeNull();
+    expect([...reg.flFromAfm]).toEqual([...similarity.flFromAfm]);
+    // FRE against the saved transform equals the similarity fit's own FRE (same pairs, same map)
+    expect(reg.freNm).toBeCloseTo(similarity.freNm, 9);
+    let maxDiffFromAffine = 0;
+    saved.records.forEach((r, i) => {
+      const want = applyAffine(similarity.flFromAfm, saved.vesicles[i].centroidPx);
+      expect(r.xFlPx).toBeCloseTo(want.x, 9);
+      expect(r.yFlPx).toBeCloseTo(want.y, 9);
+      const other = applyAffine(affine.flFromAfm, saved.vesicles[i].centroidPx);
+      maxDiffFromAffine = Math.max(maxDiffFromAffine, Math.hypot(other.x - want.x, other.y - want.y));
+    });
+    // the two models place vesicles measurably apart here (2 % shear over a ~80 px frame ≈ 0.5 px at the edges),
+    // so the check above tells them apart
+    expect(maxDiffFromAffine).toBeGreaterThan(0.2);
+    expect(() => analyzeField({ ...inputOf(scene, true), savedRegistration: { flFromAfm: [1, 0, 0, 0, 1, Number.NaN], model: 'affine', pairs } }))
+      .toThrow(expect.objectContaining({ code: 'invalid_saved_transform' }));
   });
 });

@@ -22,11 +22,11 @@ describe('vesicleCsv', () => {
     });
     const lines = vesicleCsv([record(), outside], ['CD9', 'CD63']).split('\n');
     expect(lines[0]).toBe(
-      'x_afm_px,y_afm_px,x_fl_px,y_fl_px,height_nm,diameter_nm,volume_nm3,area_nm2,circularity,CD9_intensity,CD9,CD63_intensity,CD63,out_of_frame,phenotype',
+      'x_afm_px,y_afm_px,x_fl_px,y_fl_px,height_nm,diameter_nm,volume_nm3,area_nm2,circularity,CD9_intensity,CD9_snr,CD9_amplitude_counts,CD9,CD63_intensity,CD63_snr,CD63_amplitude_counts,CD63,out_of_frame,phenotype',
     );
-    // −0.0001 rounds to 0.000, written without a minus sign
-    expect(lines[1]).toBe('10.123,20.000,1.500,0.000,12.35,80.50,41235,5089,0.988,512.3,1,-3.0,0,0,CD9+ CD63-');
-    expect(lines[2]).toBe('10.123,20.000,1.500,0.000,12.35,80.50,41235,5089,0.988,,,,,1,CD9? CD63?');
+    // −0.0001 rounds to 0.000, written without a minus sign; the called amplitude follows each SNR (1 decimal)
+    expect(lines[1]).toBe('10.123,20.000,1.500,0.000,12.35,80.50,41235,5089,0.988,512.3,9.00,600.0,1,-3.0,-0.10,0.0,0,0,CD9+ CD63-');
+    expect(lines[2]).toBe('10.123,20.000,1.500,0.000,12.35,80.50,41235,5089,0.988,,,,,,,,,1,CD9? CD63?');
     expect(lines[3]).toBe('');
     expect(lines).toHaveLength(4);
   });

@@ -9,6 +9,7 @@ import { samples } from '../../../../lib/db/schema';
 import { audit } from '../../../../lib/audit';
 import { SampleCreateRequest } from '../../../../lib/schemas/fields';
 import { clientAddress } from '../../../../lib/http/context';
+import { looksIdentifying } from '../../../../lib/reporting/looksIdentifying';
 
 export const GET = handle(async (ctx) => {
   const { id } = parseParams(ctx.params, IdParam);
@@ -17,7 +18,11 @@ export const GET = handle(async (ctx) => {
   return Response.json({ samples: await db.select().from(samples).where(eq(samples.studyId, id)).orderBy(asc(samples.code)) });
 }) satisfies APIRoute;
 
-/** Biologists record a de-identified sample. */
+/**
+ * Biologists record a de-identified sample. The reply carries `warnings`: the sample form's messages when the code
+ * looks like a person's name or a date (of birth), so a script or another client hears them too; the sample is
+ * recorded all the same (the check is a heuristic, and the form has already asked for confirmation).
+ */
 export const POST = handle(async (ctx) => {
   const { id } = parseParams(ctx.params, IdParam);
   const db = await getDb();
@@ -26,5 +31,6 @@ export const POST = handle(async (ctx) => {
   const [row] = await db.insert(samples).values({ ...body, studyId: id }).onConflictDoNothing().returning({ id: samples.id });
   if (!row) throw conflict(`This study already has a sample coded ${body.code}.`);
   await audit(db, { action: 'sample.created', actorId: user.id, actorEmail: user.email, targetType: 'sample', targetId: row.id, ip: clientAddress(ctx), details: { code: body.code } });
-  return Response.json({ id: row.id }, { status: 201 });
+  const warnings = looksIdentifying(body.code).reasons.map((r) => r.message);
+  return Response.json({ id: row.id, warnings }, { status: 201 });
 }) satisfies APIRoute;
