@@ -29,6 +29,8 @@ export const fields = pgTable(
     exposureMs: real(),
     /** Emission wavelength (nm) per fluorescence channel, in panel order. */
     channelEmissionNm: jsonb().$type<number[]>().notNull().default([]),
+    /** The analyst's vesicle-detection settings for this field (see src/lib/schemas/detectionSettings.ts); null: automatic defaults. */
+    detectionSettings: jsonb().$type<Record<string, unknown>>(),
     afmWidthPx: integer(),
     afmHeightPx: integer(),
     flWidthPx: integer(),

@@ -55,6 +55,10 @@ export const markerChannels = pgTable(
     fluorophore: text().notNull().default(''),
     excitationNm: real(),
     emissionNm: real(),
+    /** Positivity threshold = mean + k SD of the control vesicles' amplitudes (or of empty places without controls). */
+    positivityK: real().notNull().default(3),
+    /** A threshold set by hand (joint amplitude, counts); when set it replaces the derived one. */
+    manualThresholdCounts: real(),
   },
   (t) => [unique().on(t.studyId, t.channelIndex), unique().on(t.studyId, t.marker), index().on(t.studyId)],
 );
