@@ -1,9 +1,10 @@
 /**
  * Load check (not a test): `npx tsx scripts/load.ts [--connections N] [--duration S] [--max-requests N] [--url URL]`.
- * Signs in as the demo analyst and the demo collaborator, then drives each read route that exists with
- * autocannon: the vesicle table (per-vesicle CSV of a sample), the field detection reply, a tile of the
- * height map, and the study comparison (the results dashboard's API). Prints requests/s, p50/p95/p99
- * latency and errors per route, and PASS/MISS against "no errors and p99 under 300 ms".
+ * Signs every connection in as its own session (as the demo analyst or the demo collaborator), then drives
+ * each read route that exists with autocannon: the vesicle table, the field detection reply, a tile of the
+ * height map, the study comparison and the sample results (the dashboard's API). Connections spread over
+ * the processed demo fields and their samples. Prints requests/s, p50/p95/p99 latency and errors per
+ * route, and PASS/MISS against "no errors and p99 under 300 ms".
  * Talks to 127.0.0.1/localhost only, and stops by itself: each route runs at most --duration seconds
  * and --max-requests requests. Defaults are a quick check (10 connections, 5 s); the documented
  * figure uses --connections 100 --duration 60 (docs/benchmarks.md, "Load").
@@ -64,12 +65,27 @@ const percentile = (sorted: number[], p: number) => (sorted.length ? sorted[Math
 
 interface Outcome { name: string; reqPerS: number; p50: number; p95: number; p99: number; requests: number; errors: number; pass: boolean }
 
-/** One route under load; exact percentiles from every response time (autocannon reports p97.5, not p95). */
-async function drive(name: string, path: string, cookie: string): Promise<Outcome> {
+/** `n` separate sessions of one user, four sign-ins at a time (each is an argon2 check on the server). */
+async function sessions(email: string, n: number): Promise<string[]> {
+  const out: string[] = [];
+  while (out.length < n) out.push(...(await Promise.all(Array.from({ length: Math.min(4, n - out.length) }, () => signIn(email)))));
+  return out;
+}
+
+/**
+ * One route under load; exact percentiles from every response time (autocannon reports p97.5, not p95).
+ * Connection k sends `paths[k % paths.length]` with `cookies[k]`: every client is its own signed-in session.
+ */
+async function drive(name: string, paths: string[], cookies: string[]): Promise<Outcome> {
   const times: number[] = [];
   // autocannon ignores `duration` when `amount` is set, so the request cap applies only when asked for
   const limit = process.argv.includes('--max-requests') ? { amount: maxRequests } : { duration: durationS };
-  const instance = autocannon({ url: base + path, connections, ...limit, timeout: 10, headers: { cookie } });
+  let k = 0;
+  const setupClient = (client: { setRequests(r: Record<string, unknown>[]): void }) => {
+    const i = k++;
+    client.setRequests([{ method: 'GET', path: paths[i % paths.length], headers: { cookie: cookies[i % cookies.length] } }]);
+  };
+  const instance = autocannon({ url: base + paths[0], connections, ...limit, timeout: 10, setupClient });
   instance.on('response', (_client, _status, _bytes, ms) => times.push(ms));
   const r = await instance;
   times.sort((a, b) => a - b);
@@ -81,37 +97,43 @@ async function drive(name: string, path: string, cookie: string): Promise<Outcom
 async function main() {
   const host = new URL(base).hostname;
   if (!['127.0.0.1', 'localhost', '::1', '[::1]'].includes(host)) throw new Error(`refusing to load ${base}: only 127.0.0.1 or localhost`);
-  // a processed demo field and its sample, read from the database the app uses
+  // the processed demo fields and their samples, read from the database the app uses
   const db = createDb(config().DATABASE_URL, 1);
-  const [row] = await db.select({ fieldId: fields.id, sampleId: samples.id, studyId: samples.studyId, width: fields.afmWidthPx })
-    .from(fields).innerJoin(samples, eq(samples.id, fields.sampleId)).where(inArray(fields.status, ['approved', 'linked', 'registered', 'ready'])).orderBy(sql`array_position(array['approved','linked','registered','ready']::field_status[], ${fields.status})`).limit(1);
+  const rows = await db.select({ fieldId: fields.id, sampleId: samples.id, studyId: samples.studyId, width: fields.afmWidthPx })
+    .from(fields).innerJoin(samples, eq(samples.id, fields.sampleId)).where(inArray(fields.status, ['approved', 'linked', 'registered', 'ready']))
+    .orderBy(sql`array_position(array['approved','linked','registered','ready']::field_status[], ${fields.status})`, fields.id).limit(10);
   await db.$client.end();
-  if (!row) throw new Error('no processed field: start the app with the demo (npm start) and let the worker ingest it');
+  if (!rows.length) throw new Error('no processed field: start the app with the demo (npm start) and let the worker ingest it');
 
-  const analyst = await signIn('analyst@demo.heightlight.test');
-  const collaborator = await signIn('collaborator@demo.heightlight.test');
+  console.log(`load: signing in ${connections} analyst and ${connections} collaborator sessions ...`);
+  const analyst = await sessions('analyst@demo.heightlight.test', connections);
+  const collaborator = await sessions('collaborator@demo.heightlight.test', connections);
   // deepest Deep Zoom level of the height map (level = ceil(log2(max side)))
-  const level = Math.ceil(Math.log2(row.width ?? 1));
+  const level = (w: number | null) => Math.ceil(Math.log2(w ?? 1));
   const targets = [
-    { name: 'vesicle table (page of 50, sorted by height)', file: 'vesicles/index.ts', path: `/api/vesicles?sampleId=${row.sampleId}&page=0&pageSize=50&sort=heightNm&dir=desc`, cookie: analyst },
-    { name: 'field detection', file: 'fields/[id]/detection.ts', path: `/api/fields/${row.fieldId}/detection`, cookie: analyst },
-    { name: 'height tile', file: 'fields/[id]/tiles/[...path].ts', path: `/api/fields/${row.fieldId}/tiles/height_files/${level}/0_0.png`, cookie: analyst },
-    { name: 'dashboard (comparison)', file: 'studies/[id]/comparison.ts', path: `/api/studies/${row.studyId}/comparison`, cookie: collaborator },
-    { name: 'dashboard (sample results)', file: 'samples/[id]/results.ts', path: `/api/samples/${row.sampleId}/results?source=current`, cookie: analyst },
+    { name: 'vesicle table (page of 50, sorted by height)', file: 'vesicles/index.ts', paths: rows.map((r) => `/api/vesicles?sampleId=${r.sampleId}&page=0&pageSize=50&sort=heightNm&dir=desc`), cookies: analyst },
+    { name: 'field detection', file: 'fields/[id]/detection.ts', paths: rows.map((r) => `/api/fields/${r.fieldId}/detection`), cookies: analyst },
+    { name: 'height tile', file: 'fields/[id]/tiles/[...path].ts', paths: rows.map((r) => `/api/fields/${r.fieldId}/tiles/height_files/${level(r.width)}/0_0.png`), cookies: analyst },
+    { name: 'dashboard (comparison)', file: 'studies/[id]/comparison.ts', paths: [...new Set(rows.map((r) => `/api/studies/${r.studyId}/comparison`))], cookies: collaborator },
+    { name: 'dashboard (sample results)', file: 'samples/[id]/results.ts', paths: [...new Set(rows.map((r) => `/api/samples/${r.sampleId}/results?source=current`))], cookies: analyst },
   ].filter((t) => existsSync(`src/pages/api/${t.file}`));
 
-  console.log(`load: ${base}, ${connections} connections, ${durationS} s per route (at most ${maxRequests} requests each)`);
+  console.log(`load: ${base}, ${connections} connections (one session each), ${durationS} s per route (at most ${maxRequests} requests each), ${rows.length} field(s)`);
   const out: Outcome[] = [];
   for (const t of targets) {
-    // one request first: a route that fails outright is reported, not hammered
-    const probe = await fetch(base + t.path, { headers: { cookie: t.cookie } });
-    await probe.arrayBuffer();
-    if (!probe.ok) {
-      console.log(`${t.name}: ${t.path} answered ${probe.status}; skipped`);
+    // every path once first: a route that fails outright is reported, not hammered
+    let failed = '';
+    for (const path of t.paths) {
+      const probe = await fetch(base + path, { headers: { cookie: t.cookies[0] } });
+      await probe.arrayBuffer();
+      if (!probe.ok) failed ||= `${path} answered ${probe.status}`;
+    }
+    if (failed) {
+      console.log(`${t.name}: ${failed}; skipped`);
       out.push({ name: t.name, reqPerS: 0, p50: NaN, p95: NaN, p99: NaN, requests: 1, errors: 1, pass: false });
       continue;
     }
-    out.push(await drive(t.name, t.path, t.cookie));
+    out.push(await drive(t.name, t.paths, t.cookies));
   }
   const f = (n: number) => (Number.isFinite(n) ? n.toFixed(0) : '-');
   console.log('\nroute                     req/s   p50 ms  p95 ms  p99 ms  requests  errors  verdict');
