@@ -138,6 +138,21 @@ describe('per-channel display in the field viewer', () => {
     const secondReset = await viewerPixels(page, 'display-second-reset');
     expect(meanAbsDiff(secondReset, secondBefore)).toBeLessThan(0.5);
 
+    // a colour of the analyst's choosing: magenta, the stored window; pixel by pixel as channelTransfer predicts
+    await page.getByLabel(`Colour of ${names[1]}`).fill('#ff00ff');
+    expect(await filterOf(second.layer)).toMatch(/^url\("?#.+"?\)$/);
+    const recoloured = await viewerPixels(page, 'display-second-magenta');
+    const tm = channelTransfer(w, { blackCounts: w.lowCounts, whiteCounts: w.highCounts, colour: [255, 0, 255] }, parseTint((second.display as Record<string, unknown>).colour)!);
+    const predictedMagenta = new Float64Array(secondBefore.length);
+    for (let i = 0; i < secondBefore.length; i += 3) predictedMagenta.set(applyChannelTransfer(tm, [secondBefore[i], secondBefore[i + 1], secondBefore[i + 2]]), i);
+    expect(meanAbsDiff(recoloured, predictedMagenta)).toBeLessThan(1.5);
+    // magenta has no green: the green component is dark wherever the channel shows
+    let green = 0;
+    for (let i = 1; i < recoloured.length; i += 3) green += recoloured[i];
+    expect(green / (recoloured.length / 3)).toBeLessThan(1);
+    await page.getByRole('button', { name: `Reset display of ${names[1]}` }).click();
+    expect(await filterOf(second.layer)).toBe('none');
+
     // zoomed in, the following layer stays on the leading one: the beads sit at the same place in both
     await page.mouse.move(box.x + 300, box.y + 250);
     for (let i = 0; i < 4; i++) { await page.mouse.wheel(0, -400); await page.waitForTimeout(150); }

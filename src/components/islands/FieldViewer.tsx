@@ -3,7 +3,7 @@ import OpenSeadragon from 'openseadragon';
 import ChannelFilter from './viewer/ChannelFilter';
 import {
   DEFAULT_HEIGHT_DISPLAY, channelRange, channelTransfer, defaultChannelDisplay, formatCounts, heightFilterCss,
-  isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, type ChannelDisplay, type HeightDisplay,
+  isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, toHex, fromHex, type ChannelDisplay, type HeightDisplay,
 } from './viewer/layerDisplay';
 
 export interface ViewerLayer {
@@ -168,7 +168,7 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
     const w = windows[l.layer];
     const d = chDisplay[l.layer];
     const tint = parseTint(l.display.colour);
-    if (!w || !d || !tint || isDefaultChannelDisplay(w, d)) return { filter: 'none', defs: null };
+    if (!w || !d || !tint || !tint.some((c) => c > 0) || isDefaultChannelDisplay(w, d, tint)) return { filter: 'none', defs: null };
     return { filter: `url(#${filterId(l.layer)})`, defs: <ChannelFilter key={l.layer} id={filterId(l.layer)} transfer={channelTransfer(w, d, tint)} /> };
   };
   const looks = Object.fromEntries(shown.map((l) => [l.layer, layerLook(l)]));
@@ -235,6 +235,9 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
               const w = windows[c.layer];
               if (w) setChDisplay({ ...chDisplay, [c.layer]: setChannelPoint(w, chDisplay[c.layer], which, counts) });
             }}
+            onColour={(colour) => {
+              if (chDisplay[c.layer]) setChDisplay({ ...chDisplay, [c.layer]: { ...chDisplay[c.layer], colour } });
+            }}
             onReset={() => {
               const w = windows[c.layer];
               if (w) setChDisplay({ ...chDisplay, [c.layer]: defaultChannelDisplay(w) });
@@ -250,7 +253,7 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
   );
 }
 
-const ROW = 'grid grid-cols-[8rem_minmax(0,1fr)_minmax(0,1.3fr)_minmax(0,1.3fr)_auto] items-center gap-x-5 px-3 py-2';
+const ROW = 'grid grid-cols-[8rem_4.5rem_minmax(0,1fr)_minmax(0,1.3fr)_minmax(0,1.3fr)_auto] items-center gap-x-5 px-3 py-2';
 
 /** A labelled slider with its current value (and unit) above it. */
 function Slider({ label, shows, valueTestId, ...input }: { label: string; shows: string; valueTestId?: string } & InputHTMLAttributes<HTMLInputElement>) {
@@ -269,6 +272,7 @@ function HeightRow({ display, onChange }: { display: HeightDisplay; onChange: (d
   return (
     <div className={ROW} data-testid="layer-controls-height">
       <span className="font-medium text-mica-800">Height map</span>
+      <span />
       <Slider label="Brightness" shows={`${display.brightnessPct} %`} min={50} max={300} step={5} value={display.brightnessPct}
         aria-label="Brightness of the height map" onChange={(e) => onChange({ ...display, brightnessPct: Number(e.target.value) })} />
       <Slider label="Contrast" shows={`${display.contrastPct} %`} min={50} max={300} step={5} value={display.contrastPct}
@@ -287,20 +291,30 @@ interface ChannelRowProps {
   onOpacity: (o: number) => void;
   display: ChannelDisplay | undefined;
   onDisplay: (which: 'black' | 'white', counts: number) => void;
+  onColour: (colour: [number, number, number]) => void;
   onReset: () => void;
 }
 
-function ChannelRow({ layer, visible, onVisible, opacity, onOpacity, display, onDisplay, onReset }: ChannelRowProps) {
+function ChannelRow({ layer, visible, onVisible, opacity, onOpacity, display, onDisplay, onColour, onReset }: ChannelRowProps) {
   const name = markerOf(layer);
   const w = storedWindow(layer.display);
   const range = w ? channelRange(w) : null;
+  const tint = parseTint(layer.display.colour);
   return (
     <div className={ROW} data-testid={`layer-controls-${layer.layer}`}>
       <label className="inline-flex items-center gap-2 font-medium text-mica-800">
         <input type="checkbox" className="accent-tip-600" aria-label={`Show ${name}`} checked={visible} onChange={(e) => onVisible(e.target.checked)} />
-        <span className="inline-block w-3 h-3 rounded-full" style={{ background: String(layer.display.colour ?? '#fff') }} />
         {name}
       </label>
+      {tint && display ? (
+        <label className="inline-flex items-center gap-1.5 text-xs text-mica-600" title="Display colour (screen only)">
+          <input type="color" className="w-7 h-6 p-0 border border-mica-200 rounded cursor-pointer bg-white" aria-label={`Colour of ${name}`}
+            value={toHex(display.colour ?? tint)} onChange={(e) => { const c = fromHex(e.target.value); if (c) onColour(c); }} />
+          colour
+        </label>
+      ) : (
+        <span className="inline-block w-3 h-3 rounded-full" style={{ background: String(layer.display.colour ?? '#fff') }} />
+      )}
       <Slider label="Opacity" shows={`${Math.round(opacity * 100)} %`} min={0.1} max={1} step={0.05} value={opacity}
         aria-label={`Opacity of ${name}`} onChange={(e) => onOpacity(Number(e.target.value))} />
       {range && display ? (

@@ -4,9 +4,10 @@
  * Fluorescence tiles are rendered at ingestion as `tint × v`, with
  * `v = clamp((counts − lowCounts) / (highCounts − lowCounts), 0, 1)` (src/lib/jobs/renderLayers.ts).
  * A new black and white point in counts is therefore a per-component linear map of the tile's
- * colours, which an SVG `feComponentTransfer` applies on the GPU without refetching tiles:
- * stage 1 turns a tile component back into the new 0–1 level (clamped by the filter), stage 2
- * tints it again. The stored values and the cursor read-out are never touched.
+ * colours, which an SVG filter applies on the GPU without refetching tiles: stage 0 copies the
+ * tint's strongest component into all three, stage 1 turns it back into the new 0–1 level (clamped
+ * by the filter), stage 2 tints it again, in the rendered colour or one the analyst chose. The
+ * stored values and the cursor read-out are never touched.
  */
 
 /** The counts a channel's tiles hold at their darkest (0) and brightest (255) level. */
@@ -19,6 +20,8 @@ export interface StoredWindow {
 export interface ChannelDisplay {
   blackCounts: number;
   whiteCounts: number;
+  /** Display colour (0–255 per component); absent: the colour the tiles were rendered in. */
+  colour?: [number, number, number];
 }
 
 /** Display of the colour-mapped height layer, in percent (100 % = as rendered). */
@@ -33,9 +36,13 @@ export interface LinearTransfer {
   intercept: number;
 }
 
-/** Two linear stages for the R, G and B components; the filter clamps to 0–1 after each stage. */
+/**
+ * The filter's stages: copy component `source` (0 R, 1 G, 2 B) into all three, one linear map to
+ * the level, then one per component to the display colour; the filter clamps to 0–1 after each.
+ */
 export interface ChannelTransfer {
-  toLevel: [LinearTransfer, LinearTransfer, LinearTransfer];
+  source: 0 | 1 | 2;
+  toLevel: LinearTransfer;
   toTint: [LinearTransfer, LinearTransfer, LinearTransfer];
 }
 
@@ -55,8 +62,20 @@ export function defaultChannelDisplay(w: StoredWindow): ChannelDisplay {
 }
 
 /** True when `d` shows the tiles exactly as rendered (so no filter is needed). */
-export function isDefaultChannelDisplay(w: StoredWindow, d: ChannelDisplay): boolean {
-  return d.blackCounts === w.lowCounts && d.whiteCounts === w.highCounts;
+export function isDefaultChannelDisplay(w: StoredWindow, d: ChannelDisplay, tint?: [number, number, number]): boolean {
+  const sameColour = !d.colour || (tint !== undefined && d.colour.every((c, k) => c === tint[k]));
+  return d.blackCounts === w.lowCounts && d.whiteCounts === w.highCounts && sameColour;
+}
+
+/** `#rrggbb` for a colour input, from 0–255 components. */
+export function toHex(c: readonly [number, number, number]): string {
+  return `#${c.map((v) => Math.round(v).toString(16).padStart(2, '0')).join('')}`;
+}
+
+/** 0–255 components from a colour input's `#rrggbb`, or null when it is not one. */
+export function fromHex(hex: string): [number, number, number] | null {
+  const m = /^#([0-9a-f]{2})([0-9a-f]{2})([0-9a-f]{2})$/i.exec(hex);
+  return m ? [parseInt(m[1], 16), parseInt(m[2], 16), parseInt(m[3], 16)] : null;
 }
 
 /** Slider bounds in counts: from the stored low end to one stored span above the stored high end (to dim a channel). */
@@ -89,31 +108,32 @@ export function parseTint(colour: unknown): [number, number, number] | null {
 }
 
 /**
- * The filter stages that show a channel tinted `tint` (0–255 per component) with `d`'s black and
- * white points, given the window its tiles were rendered with. A tile component is
- * `x = (tint/255) × v`; stage 1 gives `v' = (counts − black) / (white − black)` from it, stage 2
- * gives `(tint/255) × v'`. A component the tint does not use stays 0.
+ * The filter stages that show a channel rendered with tint `tint` (0–255 per component) with `d`'s
+ * black and white points and colour. A tile component is `x = (tint/255) × v`; the strongest tint
+ * component carries v best, so stage 0 takes that one, stage 1 gives `v' = (counts − black) / (white − black)`
+ * from it, stage 2 gives `(colour/255) × v'`.
+ * @throws RangeError when the windows are empty or the tint is black
  */
 export function channelTransfer(w: StoredWindow, d: ChannelDisplay, tint: [number, number, number]): ChannelTransfer {
   const span = w.highCounts - w.lowCounts;
   const shown = d.whiteCounts - d.blackCounts;
   if (!(span > 0) || !(shown > 0)) throw new RangeError(`channelTransfer needs low < high and black < white counts, got ${w.lowCounts}–${w.highCounts} and ${d.blackCounts}–${d.whiteCounts}`);
-  const per = (t: number): [LinearTransfer, LinearTransfer] => {
-    const c = t / 255;
-    if (c === 0) return [{ slope: 0, intercept: 0 }, { slope: 0, intercept: 0 }];
-    return [{ slope: span / (c * shown), intercept: (w.lowCounts - d.blackCounts) / shown }, { slope: c, intercept: 0 }];
+  const source = (tint[1] > tint[0] ? (tint[2] > tint[1] ? 2 : 1) : tint[2] > tint[0] ? 2 : 0) as 0 | 1 | 2;
+  const c = tint[source] / 255;
+  if (c === 0) throw new RangeError('channelTransfer needs a tint with a non-zero component');
+  const colour = d.colour ?? tint;
+  return {
+    source,
+    toLevel: { slope: span / (c * shown), intercept: (w.lowCounts - d.blackCounts) / shown },
+    toTint: colour.map((k) => ({ slope: k / 255, intercept: 0 })) as ChannelTransfer['toTint'],
   };
-  const [r, g, b] = tint.map(per);
-  return { toLevel: [r[0], g[0], b[0]], toTint: [r[1], g[1], b[1]] };
 }
 
 /** Applies a transfer to one 0–255 tile pixel the way the filter does (for tests and checks). */
 export function applyChannelTransfer(t: ChannelTransfer, rgb: [number, number, number]): [number, number, number] {
   const clamp = (v: number) => Math.min(1, Math.max(0, v));
-  return rgb.map((v, k) => {
-    const level = clamp(t.toLevel[k].slope * (v / 255) + t.toLevel[k].intercept);
-    return clamp(t.toTint[k].slope * level + t.toTint[k].intercept) * 255;
-  }) as [number, number, number];
+  const level = clamp(t.toLevel.slope * (rgb[t.source] / 255) + t.toLevel.intercept);
+  return t.toTint.map((s) => clamp(s.slope * level + s.intercept) * 255) as [number, number, number];
 }
 
 /** CSS filter for the height layer (`none` when unchanged, so the colours stay exactly as rendered). */

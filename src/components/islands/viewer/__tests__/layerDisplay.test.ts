@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import {
   applyChannelTransfer, channelRange, channelTransfer, defaultChannelDisplay, formatCounts, heightFilterCss,
-  isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow,
+  isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, toHex, fromHex,
 } from '../layerDisplay';
 
 // The tile encoding of renderChannelLayer (src/lib/jobs/renderLayers.ts): tint × clamp((counts − low) / span), 8-bit.
@@ -27,8 +27,8 @@ describe('channelTransfer', () => {
   it('maps a worked pixel to the new window (hand computation)', () => {
     // counts 550 with low 100, high 1100: tile level 0.45. New window 300–800: (550 − 300) / 500 = 0.5.
     const t = channelTransfer(w, { blackCounts: 300, whiteCounts: 800 }, [255, 255, 255]);
-    expect(t.toLevel[0].slope).toBeCloseTo(2, 12); // span 1000 / (1 × 500)
-    expect(t.toLevel[0].intercept).toBeCloseTo(-0.4, 12); // (100 − 300) / 500
+    expect(t.toLevel.slope).toBeCloseTo(2, 12); // span 1000 / (1 × 500)
+    expect(t.toLevel.intercept).toBeCloseTo(-0.4, 12); // (100 − 300) / 500
     expect(applyChannelTransfer(t, [0.45 * 255, 0.45 * 255, 0.45 * 255])[0]).toBeCloseTo(127.5, 9);
   });
 
@@ -62,6 +62,29 @@ describe('channelTransfer', () => {
 
   it('refuses an empty window', () => {
     expect(() => channelTransfer(w, { blackCounts: 500, whiteCounts: 500 }, [255, 0, 0])).toThrow(RangeError);
+  });
+
+  it('recolours: a green channel shown in magenta keeps its levels (hand computation)', () => {
+    // rendered green (0, 255, 0); a tile pixel (0, 102, 0) is level 0.4. Shown in magenta (255, 0, 255) with
+    // the stored window: (0.4 × 255, 0, 0.4 × 255) = (102, 0, 102). The level comes from G, the only component
+    // the tile has, so it crosses into R and B.
+    const d = { ...defaultChannelDisplay(w), colour: [255, 0, 255] as [number, number, number] };
+    const t = channelTransfer(w, d, [0, 255, 0]);
+    expect(t.source).toBe(1);
+    expect(applyChannelTransfer(t, [0, 102, 0]).map((v) => Math.round(v * 1e9) / 1e9)).toEqual([102, 0, 102]);
+    // a new window and a new colour together: counts 550 → level 0.5 in the 300–800 window, cyan (0, 200, 200)
+    const t2 = channelTransfer(w, { blackCounts: 300, whiteCounts: 800, colour: [0, 200, 200] }, [0, 255, 0]);
+    expect(applyChannelTransfer(t2, [0, 0.45 * 255, 0]).map((v) => Math.round(v * 1e9) / 1e9)).toEqual([0, 100, 100]);
+    // no filter is needed only when the colour is the rendered one
+    expect(isDefaultChannelDisplay(w, d, [0, 255, 0])).toBe(false);
+    expect(isDefaultChannelDisplay(w, { ...d, colour: [0, 255, 0] }, [0, 255, 0])).toBe(true);
+    expect(() => channelTransfer(w, d, [0, 0, 0])).toThrow(RangeError);
+  });
+
+  it('reads and writes colour-input values', () => {
+    expect(toHex([255, 0, 128])).toBe('#ff0080');
+    expect(fromHex('#FF0080')).toEqual([255, 0, 128]);
+    expect(fromHex('red')).toBeNull();
   });
 });
 
