@@ -82,4 +82,23 @@ describe('saving registrations', () => {
     expect(body.nbInliers).toBeGreaterThanOrEqual(10);
     expect(body.rmsResidualPx).toBeLessThan(1);
   });
+
+  it('find pairs fits the model asked for: a similarity has equal axis scales and no shear', async () => {
+    const affine = await (await analyst.json(`/api/fields/${fieldId}/registration/auto`, 'POST', { model: 'affine' })).json();
+    expect(affine.model).toBe('affine');
+    const r = await analyst.json(`/api/fields/${fieldId}/registration/auto`, 'POST', { model: 'similarity' });
+    expect(r.status).toBe(200);
+    const body = await r.json();
+    expect(body.model).toBe('similarity');
+    expect(body.nbInliers).toBeGreaterThanOrEqual(10);
+    // the demo scene's map is a mirrored rotation + scale (fixtures/demoScene.ts), so the constrained model fits as well
+    expect(body.rmsResidualPx).toBeLessThan(1);
+    // mirrored similarity k·R(θ)·diag(1, −1): a = −e and b = d exactly (Umeyama, IEEE TPAMI 13(4), 1991)
+    const [a, b, , d, e] = body.flFromAfm;
+    expect(Math.abs(a + e)).toBeLessThan(1e-12);
+    expect(Math.abs(b - d)).toBeLessThan(1e-12);
+    // while the free affine's two columns differ by noise
+    const [fa, fb, , fd, fe] = affine.flFromAfm;
+    expect(Math.abs(fa + fe) + Math.abs(fb - fd)).toBeGreaterThan(1e-9);
+  });
 });

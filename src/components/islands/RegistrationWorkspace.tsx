@@ -7,6 +7,8 @@ import type { SavedRegistration } from '../../lib/schemas/registration';
 import AlignmentCheck, { type CheckLayer } from './registration/AlignmentCheck';
 
 interface Pair { afm: Point; fl: Point }
+/** A partner proposed through the current transform for a point the analyst clicked; not a pair until accepted. */
+interface Suggestion extends Pair { from: 'afm' | 'fl'; offsetPx: number }
 interface Props {
   fieldId: string;
   afmPixelNm: number;
@@ -71,6 +73,7 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
   const [pairs, setPairs] = useState<Pair[]>(latest?.pairs ?? []);
   const [history, setHistory] = useState<Pair[][]>([]);
   const [pending, setPending] = useState<{ side: 'afm' | 'fl'; p: Point } | null>(null);
+  const [suggestion, setSuggestion] = useState<Suggestion | null>(null);
   const [selected, setSelected] = useState<number | null>(null);
   const [model, setModel] = useState<'affine' | 'similarity'>(latest?.model ?? 'affine');
   const [baseVersion, setBaseVersion] = useState(latest?.version ?? 0);
@@ -114,23 +117,40 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
       commit(pairs.map((q, i) => (i === selected ? { ...q, [side]: p } : q)));
       return;
     }
-    if (pending && pending.side !== side) {
-      commit([...pairs, side === 'afm' ? { afm: p, fl: pending.p } : { afm: pending.p, fl: p }]);
+    // a click in the other image places the partner by hand instead of the proposed one
+    const start = suggestion ? { side: suggestion.from, p: suggestion[suggestion.from] } : pending;
+    if (start && start.side !== side) {
+      commit([...pairs, side === 'afm' ? { afm: p, fl: start.p } : { afm: start.p, fl: p }]);
       setPending(null);
+      setSuggestion(null);
       return;
     }
-    // after 3 pairs a click on one image proposes its partner on the other
+    setSuggestion(null);
+    // after 3 pairs a click on one image proposes its partner on the other (snapped to a detected feature);
+    // the analyst accepts it (Enter), clicks the partner by hand, or cancels (Esc)
     if (transform && side === 'afm') {
       const prop = proposePartner(p, transform, flCandidates, { maxDistancePx: 3 });
-      if (prop.candidate) return commit([...pairs, { afm: p, fl: prop.candidate.point }]);
+      if (prop.candidate) {
+        setPending(null);
+        return setSuggestion({ from: 'afm', afm: p, fl: prop.candidate.point, offsetPx: prop.candidate.distancePx });
+      }
     }
     if (transform && side === 'fl') {
       const back = applyAffine(invertAffine(transform), p);
       const hit = snapToNearest(back, afmCandidates, SNAP_PX);
-      if (hit) return commit([...pairs, { afm: hit.point, fl: p }]);
+      if (hit) {
+        setPending(null);
+        return setSuggestion({ from: 'fl', afm: hit.point, fl: p, offsetPx: hit.distancePx });
+      }
     }
     setPending({ side, p });
-  }, [pairs, pending, selected, transform, afmCandidates, flCandidates, commit]);
+  }, [pairs, pending, suggestion, selected, transform, afmCandidates, flCandidates, commit]);
+
+  const acceptSuggestion = useCallback(() => {
+    if (!suggestion) return;
+    commit([...pairs, { afm: suggestion.afm, fl: suggestion.fl }]);
+    setSuggestion(null);
+  }, [suggestion, pairs, commit]);
   const clickRef = useRef(click);
   clickRef.current = click;
 
@@ -169,11 +189,20 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
       flMarks.push({ p: q.fl, r: 1.5, cls: 'hl-proposal' });
     }
     if (pending) (pending.side === 'afm' ? afmMarks : flMarks).push({ p: pending.p, r: pending.side === 'afm' ? 6 : 1.5, cls: 'hl-pending' });
+    if (suggestion) {
+      // the clicked point as pending, its proposed partner with its own marker
+      const clicked = suggestion.from === 'afm' ? afmMarks : flMarks;
+      const other = suggestion.from === 'afm' ? flMarks : afmMarks;
+      clicked.push({ p: suggestion[suggestion.from], r: suggestion.from === 'afm' ? 6 : 1.5, cls: 'hl-pending' });
+      const to = suggestion.from === 'afm' ? 'fl' : 'afm';
+      other.push({ p: suggestion[to], r: to === 'afm' ? 10 : 3, cls: 'hl-suggested', label: '?' }); // larger than a pair's ring, so it stands out
+    }
     drawMarkers(left.current, afmMarks);
     drawMarkers(right.current, flMarks);
-  }, [pairs, pending, selected, proposals, transform, det, showMapped, ready, flCandidates]);
+  }, [pairs, pending, suggestion, selected, proposals, transform, det, showMapped, ready, flCandidates]);
 
   const undo = useCallback(() => {
+    setSuggestion(null); // it was proposed through the transform being undone
     setHistory((h) => {
       if (!h.length) return h;
       setPairs(h[h.length - 1]);
@@ -190,7 +219,7 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
     setBusy(false);
     if (!r.ok) return setMsg({ ok: false, text: body.message });
     setProposals(body.pairs);
-    setMsg({ ok: true, text: `${body.pairs.length} pairs proposed (RMS ${fmt(body.rmsResidualPx * flPixelNm)} nm). Review them: accept or drop each.` });
+    setMsg({ ok: true, text: `${body.pairs.length} pairs proposed with the ${body.model} model (RMS ${fmt(body.rmsResidualPx * flPixelNm)} nm). Review them: accept or drop each.` });
   }
 
   async function save() {
@@ -209,7 +238,8 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
       if ((e.target as HTMLElement)?.closest('input, select, textarea')) return;
       if ((e.key === 'z' && (e.ctrlKey || e.metaKey)) || e.key === 'u') { e.preventDefault(); undo(); }
       else if ((e.key === 'Delete' || e.key === 'Backspace') && selected !== null) { e.preventDefault(); remove(selected); }
-      else if (e.key === 'Escape') { setPending(null); setSelected(null); }
+      else if (e.key === 'Escape') { setPending(null); setSuggestion(null); setSelected(null); }
+      else if (e.key === 'Enter' && suggestion && !(e.target as HTMLElement)?.closest('button, a')) { e.preventDefault(); acceptSuggestion(); }
       else if (e.key === 's' && (e.ctrlKey || e.metaKey)) { e.preventDefault(); void save(); }
       else if (e.key === 'f') void findPairs();
     };
@@ -224,6 +254,7 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
         .hl-pair{border:2px solid #ff8a66;border-radius:50%;color:#fff;font:600 11px/1 sans-serif;display:flex;align-items:flex-start;justify-content:flex-end;pointer-events:none}
         .hl-selected{border-color:#fff;box-shadow:0 0 0 2px #5b4fc4}
         .hl-pending{border:2px dashed #fff;border-radius:50%;pointer-events:none}
+        .hl-suggested{border:2px dashed #ffd166;border-radius:50%;color:#ffd166;font:700 11px/1 sans-serif;display:flex;align-items:flex-start;justify-content:flex-end;pointer-events:none}
         .hl-proposal{border:2px dotted #7ee2b0;border-radius:50%;pointer-events:none}
         .hl-outline{border:1px solid rgba(255,255,255,${overlay});border-radius:50%;pointer-events:none}
         .hl-spot{background:rgba(255,138,102,${overlay * 0.6});border-radius:50%;pointer-events:none}
@@ -252,13 +283,25 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
           <div ref={rightEl} className="h-[460px] bg-black rounded-lg" data-testid="fl-pick" />
         </div>
       </div>
+      {suggestion && (
+        <div className="notice notice-ok flex flex-wrap items-center gap-3 text-sm" data-testid="partner-proposal">
+          <span>
+            Proposed partner on the {suggestion.from === 'afm' ? 'fluorescence frame' : 'height map'} at{' '}
+            {fmt(suggestion[suggestion.from === 'afm' ? 'fl' : 'afm'].x, 2)}, {fmt(suggestion[suggestion.from === 'afm' ? 'fl' : 'afm'].y, 2)} px
+            ({fmt(suggestion.offsetPx * (suggestion.from === 'afm' ? flPixelNm : afmPixelNm))} nm from where the transform puts it).
+            Accept it, click the partner on the other image by hand, or cancel.
+          </span>
+          <button type="button" className="btn" onClick={acceptSuggestion} title="Enter">Accept partner</button>
+          <button type="button" className="btn btn-quiet" onClick={() => setSuggestion(null)} title="Esc">Cancel</button>
+        </div>
+      )}
       {pending && <p className="text-sm text-tip-700">Point placed on the {pending.side === 'afm' ? 'height map' : 'fluorescence frame'}; click its partner on the other image (Esc cancels).</p>}
       <div className="grid gap-4 lg:grid-cols-[1fr_360px]">
         <table className="data-table card w-full text-sm" data-testid="pairs-table">
           <thead><tr><th>#</th><th>AFM x, y (px)</th><th>Fluor. x, y (px)</th><th>Residual (nm)</th><th>Held-out error (nm)</th><th></th></tr></thead>
           <tbody>
             {pairs.map((q, i) => (
-              <tr key={i} className={selected === i ? 'bg-tip-50' : ''} onClick={() => setSelected(selected === i ? null : i)}>
+              <tr key={i} data-testid="pair-row" className={selected === i ? 'bg-tip-50' : ''} onClick={() => { setSuggestion(null); setSelected(selected === i ? null : i); }}>
                 <td>{i + 1}</td>
                 <td>{fmt(q.afm.x, 2)}, {fmt(q.afm.y, 2)}</td>
                 <td>{fmt(q.fl.x, 2)}, {fmt(q.fl.y, 2)}</td>
@@ -287,11 +330,11 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
               <div className="flex justify-between"><span>Predicted error at the centre</span><strong>{fmt(res.predictedTreAtCentroidNm)} nm</strong></div>
               <div className="flex justify-between"><span>Pairs</span><strong>{res.nbFiducials}</strong></div>
               <p className="text-mica-600" data-testid="transform-words">{res.description}</p>
-              <p className="text-xs text-mica-400 font-mono">[{res.flFromAfm.map((v) => v.toFixed(5)).join(', ')}]</p>
+              <p className="text-xs text-mica-400 font-mono" data-testid="transform-matrix" title="AFM px → fluorescence px: [a, b, c, d, e, f], x′ = a·x + b·y + c, y′ = d·x + e·y + f">[{res.flFromAfm.map((v) => v.toFixed(5)).join(', ')}]</p>
               {res.warnings.map((w) => <p key={w.code} className="notice notice-caution text-xs">{w.message}</p>)}
             </>
           )}
-          <p className="text-xs text-mica-400">Keys: u undo · Delete removes the selected pair · Esc cancels · f find pairs · Ctrl+S save. Select a row, then click an image to move that side of the pair.</p>
+          <p className="text-xs text-mica-400">Keys: u undo · Delete removes the selected pair · Enter accepts the proposed partner · Esc cancels · f find pairs · Ctrl+S save. From 3 pairs on, a click on one image proposes its partner on the other (dashed yellow “?”): accept it or click the partner by hand. Select a row, then click an image to move that side of the pair.</p>
         </div>
       </div>
       <AlignmentCheck fieldId={fieldId} transform={transform} afmPixelNm={afmPixelNm} height={checkLayers?.height ?? null} channels={checkLayers?.channels ?? []} />

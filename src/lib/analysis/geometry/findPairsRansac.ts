@@ -3,10 +3,12 @@ import { AnalysisError } from '../errors';
 import type { Affine, Point } from '../types';
 import { applyAffine } from './applyAffine';
 import { buildPointIndex } from './buildPointIndex';
-import { fitAffine } from './fitAffine';
+import { fitModel } from './fitModel';
+import { fitSimilarity } from './fitSimilarity';
 import { mulberry32 } from './mulberry32';
 import { nearestInIndex } from './nearestInIndex';
 import { nearestNeighbours } from './nearestNeighbours';
+import type { RegistrationModel } from './types';
 
 /** Options of {@link findPairsRansac}. */
 export interface FindPairsRansacOptions {
@@ -60,6 +62,12 @@ export interface FindPairsRansacOptions {
    * @default 1
    */
   readonly seed?: number;
+  /**
+   * Transform fitted to each hypothesis and in the refinement: 'affine' (6 parameters) or the
+   * constrained 'similarity' (rotation, uniform scale, shift, optional mirror).
+   * @default 'affine'
+   */
+  readonly model?: RegistrationModel;
 }
 
 /** One proposed correspondence. */
@@ -75,7 +83,9 @@ export interface ProposedPair {
 /** Result of {@link findPairsRansac}. */
 export interface FindPairsRansacResult {
   readonly pairs: ProposedPair[];
-  /** Final least-squares affine on the proposed pairs (AFM px → fluorescence px). */
+  /** The model that was fitted. */
+  readonly model: RegistrationModel;
+  /** Final least-squares fit of `model` on the proposed pairs, as a 2×3 matrix (AFM px → fluorescence px). */
   readonly flFromAfm: Affine;
   readonly nbInliers: number;
   /** RMS residual of the proposed pairs (fluorescence pixels). */
@@ -139,6 +149,20 @@ function affineFromThree(p: readonly Point[], q: readonly Point[]): Affine | nul
   return [a, b, q[0].x - a * p[0].x - b * p[0].y, d, e, q[0].y - d * p[0].x - e * p[0].y];
 }
 
+/**
+ * Least-squares similarity through three correspondences, or null if it is degenerate or cannot
+ * bring all three within the inlier tolerance (the two triangles differ by more than rotation and scale).
+ */
+function similarityFromThree(p: readonly Point[], q: readonly Point[], allowMirror: boolean, tolerancePx: number): Affine | null {
+  try {
+    const r = fitSimilarity(p, q, { allowReflection: allowMirror });
+    return Math.max(...r.residualsPx) <= tolerancePx ? r.flFromAfmMatrix : null;
+  } catch (error) {
+    if (error instanceof AnalysisError) return null;
+    throw error;
+  }
+}
+
 /** Singular values of the 2×2 linear part. */
 function singularValues(t: Affine): [number, number] {
   const [a, b, , d, e] = t;
@@ -171,9 +195,10 @@ function matchPoints(
 /**
  * Automatic pairing of detected AFM and fluorescence spots when no fiducials are placed yet.
  * Hypotheses pair a triangle of near neighbours in each image whose side-length ratios agree and whose
- * size ratio fits the recorded pixel sizes; each gives an exact affine from 3 correspondences, which
- * is kept if its scales fit the pixel-size ratio and scored by counting inliers. The best is refined by
- * repeated nearest-neighbour matching (kdbush) and least-squares refitting. Deterministic for a seed.
+ * size ratio fits the recorded pixel sizes; each gives a transform from 3 correspondences (the exact
+ * affine, or the least-squares similarity when `model` is 'similarity'), which is kept if its scales fit
+ * the pixel-size ratio and scored by counting inliers. The best is refined by repeated nearest-neighbour
+ * matching (kdbush) and least-squares refitting of the same model. Deterministic for a seed.
  *
  * @param afmCandidates - detected points in AFM pixels (may include spots with no partner)
  * @param flCandidates - detected points in fluorescence pixels (may include spots with no partner)
@@ -199,6 +224,7 @@ export function findPairsRansac(
     allowMirror = true,
     minInliers = 5,
     seed = 1,
+    model = 'affine',
   } = options;
   if (!(afmPixelNm > 0) || !(flPixelNm > 0)) {
     throw new RangeError(`pixel sizes must be positive nm values; got afm ${afmPixelNm}, fl ${flPixelNm}`);
@@ -250,7 +276,9 @@ export function findPairsRansac(
     nbIterations++;
     const ta = afmTriangles[hypotheses[h][0]];
     const tf = flTriangles[hypotheses[h][1]];
-    const transform = affineFromThree(ta.v.map((i) => afmCandidates[i]), tf.v.map((i) => flCandidates[i]));
+    const p3 = ta.v.map((i) => afmCandidates[i]);
+    const q3 = tf.v.map((i) => flCandidates[i]);
+    const transform = model === 'affine' ? affineFromThree(p3, q3) : similarityFromThree(p3, q3, allowMirror, inlierTolerancePx);
     if (transform === null) continue;
     const [sMax, sMin] = singularValues(transform);
     if (sMax > hi || sMin < lo) continue;
@@ -282,7 +310,7 @@ export function findPairsRansac(
     if (key === previousKey || entries.length < 3) break;
     previousKey = key;
     try {
-      transform = fitAffine(entries.map(([, m]) => afmCandidates[m.afmIndex]), entries.map(([f]) => flCandidates[f])).flFromAfm;
+      transform = fitModel(entries.map(([, m]) => afmCandidates[m.afmIndex]), entries.map(([f]) => flCandidates[f]), { model, allowReflection: allowMirror }).flFromAfm;
     } catch (error) {
       if (error instanceof AnalysisError) break;
       throw error;
@@ -302,6 +330,7 @@ export function findPairsRansac(
   const rmsResidualPx = Math.sqrt(pairs.reduce((s, p) => s + p.residualPx ** 2, 0) / Math.max(pairs.length, 1));
   return {
     pairs,
+    model,
     flFromAfm: transform,
     nbInliers: pairs.length,
     rmsResidualPx,

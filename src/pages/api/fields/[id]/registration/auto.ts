@@ -11,7 +11,7 @@ import { HttpError } from '../../../../../lib/http/errors';
 import { AutoPairRequest } from '../../../../../lib/schemas/registration';
 import type { FieldDetection } from '../../../../../lib/jobs/detectionTypes';
 
-/** Proposes fiducial pairs without clicks (RANSAC over detected beads/vesicles and spots); nothing is saved. */
+/** Proposes fiducial pairs without clicks (RANSAC of the chosen model over detected beads/vesicles and spots); nothing is saved. */
 export const POST = handle(async (ctx) => {
   const { id } = parseParams(ctx.params, IdParam);
   const db = await getDb();
@@ -19,5 +19,5 @@ export const POST = handle(async (ctx) => {
   const body = await parseJson(ctx.request, AutoPairRequest);
   if (!['ready', 'registered', 'linked'].includes(field.status)) throw new HttpError(409, 'not_ready', 'The field has not been processed yet.');
   const detection = JSON.parse(new TextDecoder().decode(await getBytes(await getStorage(), detectionKey(id)))) as FieldDetection;
-  return Response.json(proposePairs(detection, { afmPixelNm: field.afmPixelNm ?? 1, flPixelNm: field.flPixelNm ?? 1, inlierTolerancePx: body.inlierTolerancePx }));
+  return Response.json(proposePairs(detection, { afmPixelNm: field.afmPixelNm ?? 1, flPixelNm: field.flPixelNm ?? 1, inlierTolerancePx: body.inlierTolerancePx, model: body.model }));
 }) satisfies APIRoute;
