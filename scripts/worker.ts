@@ -7,6 +7,8 @@ import { registerHandlers } from '../src/lib/jobs/handlers';
 import { config } from '../src/lib/config';
 import { getStorage } from '../src/lib/storage/client';
 import { deleteOlderThan } from '../src/lib/storage/objects';
+import { getDb } from '../src/lib/db/client';
+import { sweepOrphanObjects } from '../src/lib/jobs/sweepOrphanObjects';
 
 // A database restart can reject a queue call nobody awaits (pg-boss bookkeeping): log it and keep
 // working; pg-boss reconnects and retries the job when its lease expires.
@@ -18,13 +20,21 @@ async function main() {
   const boss = await getBoss(config().DATABASE_URL);
   await registerHandlers(boss);
   console.log('[worker] waiting for jobs');
-  // uploads staged but never confirmed (the browser closed, a rejected field) are swept after a day
+  // uploads staged but never confirmed (the browser closed, a rejected field) are swept after a day,
+  // and so are field copies left without a field row (object store failed partway through createField)
   const sweep = async () => {
+    const dayAgo = new Date(Date.now() - 24 * 3600 * 1000);
     try {
-      const n = await deleteOlderThan(await getStorage(), 'staging/', new Date(Date.now() - 24 * 3600 * 1000));
+      const n = await deleteOlderThan(await getStorage(), 'staging/', dayAgo);
       if (n) console.log(`[worker] removed ${n} abandoned staged upload(s)`);
     } catch (e) {
       console.error('[worker] staging sweep failed:', (e as Error).message);
+    }
+    try {
+      const r = await sweepOrphanObjects(await getDb(), await getStorage(), dayAgo);
+      if (r.prefixes.length) console.log(`[worker] removed ${r.objects} object(s) of ${r.prefixes.length} field(s) without a database row`);
+    } catch (e) {
+      console.error('[worker] orphan field sweep failed:', (e as Error).message);
     }
   };
   void sweep();

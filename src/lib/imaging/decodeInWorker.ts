@@ -1,6 +1,7 @@
 import { Worker } from 'node:worker_threads';
+import { availableParallelism } from 'node:os';
 import {
-  ImagingError, WORKER_KIND, type DecodedTiff, type ImagingErrorCode, type TiffLimits,
+  ImagingError, type DecodedTiff, type ImagingErrorCode, type TiffLimits,
 } from './decodeWorker.mjs';
 
 export interface DecodeInWorkerOptions {
@@ -16,6 +17,7 @@ export interface DecodeInWorkerOptions {
 }
 
 interface WorkerReply {
+  id: number;
   ok: boolean;
   result?: DecodedTiff;
   code?: ImagingErrorCode;
@@ -23,9 +25,152 @@ interface WorkerReply {
   details?: Record<string, unknown>;
 }
 
+// The worker's loop. decodeWorker.mjs answers one request per thread (its own entry point checks a
+// different workerData marker, so importing it here does nothing by itself); this loop answers any
+// number, one at a time, so that the ~0.2 s spent starting a thread and loading geotiff is paid once
+// per thread instead of once per file.
+const LOOP_SOURCE = `
+const { parentPort, workerData } = require('node:worker_threads');
+import(workerData.url).then(({ decodeTiff, ImagingError }) => {
+  parentPort.on('message', async ({ id, bytes, limits }) => {
+    try {
+      const result = await decodeTiff(bytes, limits);
+      parentPort.postMessage({ id, ok: true, result }, result.pages.map((p) => p.data.buffer));
+    } catch (err) {
+      const e = err instanceof ImagingError ? err : { code: 'corrupt', message: undefined, details: { cause: String(err) } };
+      parentPort.postMessage({ id, ok: false, code: e.code, message: e.message, details: e.details });
+    }
+  });
+});
+`;
+
+/** Idle threads kept per (worker file, heap limit); more run at once when callers overlap. */
+const MAX_IDLE_PER_KIND = Math.max(1, availableParallelism());
+/** An idle thread is stopped after this long, so that a quiet server holds no decoder heap. */
+const IDLE_STOP_MS = 30_000;
+
+interface Pending {
+  id: number;
+  resolve: (r: DecodedTiff) => void;
+  reject: (e: ImagingError) => void;
+  timer: NodeJS.Timeout;
+}
+
+interface DecoderThread {
+  kind: string;
+  worker: Worker;
+  pending: Pending | null;
+  idleTimer: NodeJS.Timeout | null;
+  dead: boolean;
+}
+
+const idle = new Map<string, DecoderThread[]>();
+const live = new Set<DecoderThread>();
+let started = 0;
+let nextId = 1;
+
+function removeIdle(t: DecoderThread): void {
+  const list = idle.get(t.kind);
+  const i = list?.indexOf(t) ?? -1;
+  if (list && i >= 0) list.splice(i, 1);
+  if (t.idleTimer) clearTimeout(t.idleTimer);
+  t.idleTimer = null;
+}
+
+/** Stops a thread for good: after a timeout, a crash or an out-of-memory stop it is never reused. */
+function retire(t: DecoderThread): Promise<unknown> {
+  if (t.dead) return Promise.resolve();
+  t.dead = true;
+  removeIdle(t);
+  live.delete(t);
+  return t.worker.terminate();
+}
+
+function settle(t: DecoderThread, fn: (p: Pending) => void): void {
+  const p = t.pending;
+  if (!p) return;
+  t.pending = null;
+  clearTimeout(p.timer);
+  fn(p);
+}
+
+function startThread(kind: string, workerUrl: URL, maxHeapMb: number): DecoderThread {
+  const worker = new Worker(LOOP_SOURCE, {
+    eval: true,
+    workerData: { url: workerUrl.href },
+    resourceLimits: {
+      maxOldGenerationSizeMb: maxHeapMb,
+      maxYoungGenerationSizeMb: Math.min(64, Math.max(8, Math.floor(maxHeapMb / 8))),
+      stackSizeMb: 4,
+    },
+  });
+  const t: DecoderThread = { kind, worker, pending: null, idleTimer: null, dead: false };
+  started++;
+  live.add(t);
+  worker.on('message', (reply: WorkerReply) => {
+    if (t.pending?.id !== reply.id) return; // a late answer to a request that already timed out
+    settle(t, (p) => {
+      if (reply.ok && reply.result) p.resolve(reply.result);
+      else p.reject(new ImagingError(reply.code ?? 'worker_failed', reply.message ?? 'The image could not be read.', reply.details));
+    });
+    release(t);
+  });
+  worker.on('error', (err: Error & { code?: string }) => {
+    settle(t, (p) => p.reject(err.code === 'ERR_WORKER_OUT_OF_MEMORY'
+      ? new ImagingError(
+        'too_large',
+        'Reading the image needed more memory than Heightlight allows. The file may be damaged, or its compressed data expands to more than it declares.',
+        { cause: err.message },
+      )
+      : new ImagingError('worker_failed', 'The image reader stopped unexpectedly. Try again; if it happens again, export the file again.', { cause: err.message })));
+    void retire(t);
+  });
+  worker.on('exit', (exitCode) => {
+    settle(t, (p) => p.reject(new ImagingError(
+      'worker_failed',
+      'The image reader stopped before it finished. Try again; if it happens again, export the file again.',
+      { exitCode },
+    )));
+    t.dead = true;
+    removeIdle(t);
+    live.delete(t);
+  });
+  return t;
+}
+
+/** Puts a thread that answered back in the idle list, or stops it when enough are idle. */
+function release(t: DecoderThread): void {
+  if (t.dead) return;
+  const list = idle.get(t.kind) ?? [];
+  if (list.length >= MAX_IDLE_PER_KIND) {
+    void retire(t);
+    return;
+  }
+  list.push(t);
+  idle.set(t.kind, list);
+  t.worker.unref(); // an idle decoder must not keep a script or the test runner alive
+  t.idleTimer = setTimeout(() => void retire(t), IDLE_STOP_MS);
+  t.idleTimer.unref();
+}
+
+function acquire(workerUrl: URL, maxHeapMb: number): DecoderThread {
+  const kind = `${workerUrl.href}|${maxHeapMb}`;
+  const list = idle.get(kind);
+  const t = list?.pop();
+  if (t) {
+    if (t.idleTimer) clearTimeout(t.idleTimer);
+    t.idleTimer = null;
+    t.worker.ref();
+    return t;
+  }
+  return startThread(kind, workerUrl, maxHeapMb);
+}
+
 /**
  * Runs decodeTiff in a worker thread with a heap limit and a timeout, so that a hostile or broken file
- * cannot stall or crash the server. The input is copied; the decoded pages are transferred back.
+ * cannot stall or crash the server. Threads are reused between files while they answer normally; a
+ * thread that runs over its time, runs out of heap or stops is terminated and never reused, so a bad
+ * file only ever takes down its own thread. The input is copied; the decoded pages are transferred back.
  * @param bytes - the whole file (not modified, not detached)
  * @param limits - size limits checked before decoding; missing fields take DEFAULT_LIMITS
  * @param options - timeout, heap limit and worker location
@@ -42,55 +187,28 @@ export function decodeInWorker(
   const copy = bytes instanceof Uint8Array ? bytes.slice() : new Uint8Array(bytes.slice(0));
 
   return new Promise<DecodedTiff>((resolve, reject) => {
-    let settled = false;
-    const worker = new Worker(workerUrl, {
-      workerData: { kind: WORKER_KIND },
-      resourceLimits: {
-        maxOldGenerationSizeMb: maxHeapMb,
-        maxYoungGenerationSizeMb: Math.min(64, Math.max(8, Math.floor(maxHeapMb / 8))),
-        stackSizeMb: 4,
-      },
-    });
-    const finish = (fn: () => void): void => {
-      if (settled) return;
-      settled = true;
-      clearTimeout(timer);
-      fn();
-      void worker.terminate();
-    };
+    const t = acquire(workerUrl, maxHeapMb);
+    const id = nextId++;
     const timer = setTimeout(() => {
-      finish(() => reject(new ImagingError(
+      settle(t, (p) => p.reject(new ImagingError(
         'timeout',
         `Reading the image took longer than ${(timeoutMs / 1000).toFixed(1)} s and was stopped. The file may be damaged or unusually large; try exporting it again.`,
       )));
+      void retire(t);
     }, timeoutMs);
-
-    worker.once('message', (reply: WorkerReply) => {
-      finish(() => {
-        if (reply.ok && reply.result) resolve(reply.result);
-        else reject(new ImagingError(reply.code ?? 'worker_failed', reply.message ?? 'The image could not be read.', reply.details));
-      });
-    });
-    worker.once('error', (err: Error & { code?: string }) => {
-      finish(() => {
-        if (err.code === 'ERR_WORKER_OUT_OF_MEMORY') {
-          reject(new ImagingError(
-            'too_large',
-            'Reading the image needed more memory than Heightlight allows. The file may be damaged, or its compressed data expands to more than it declares.',
-            { cause: err.message },
-          ));
-        } else {
-          reject(new ImagingError('worker_failed', 'The image reader stopped unexpectedly. Try again; if it happens again, export the file again.', { cause: err.message }));
-        }
-      });
-    });
-    worker.once('exit', (exitCode) => {
-      finish(() => reject(new ImagingError(
-        'worker_failed',
-        'The image reader stopped before it finished. Try again; if it happens again, export the file again.',
-        { exitCode },
-      )));
-    });
-    worker.postMessage({ bytes: copy, limits }, [copy.buffer]);
+    t.pending = { id, resolve, reject, timer };
+    t.worker.postMessage({ id, bytes: copy, limits }, [copy.buffer]);
   });
+}
+
+/** Counts for tests and diagnostics: threads started since the process began, and threads alive now (busy or idle). */
+export function decodeThreadStats(): { started: number; live: number; idle: number } {
+  let nbIdle = 0;
+  for (const list of idle.values()) nbIdle += list.length;
+  return { started, live: live.size, idle: nbIdle };
+}
+
+/** Stops every decoder thread (idle or busy; a busy caller gets worker_failed). For shutdown and tests. */
+export async function closeDecodeThreads(): Promise<void> {
+  await Promise.all([...live].map(retire));
 }

@@ -1,5 +1,5 @@
 import {
-  PutObjectCommand, GetObjectCommand, HeadObjectCommand, DeleteObjectCommand, ListObjectsV2Command, DeleteObjectsCommand, CopyObjectCommand,
+  PutObjectCommand, GetObjectCommand, HeadObjectCommand, DeleteObjectCommand, ListObjectsCommand, DeleteObjectsCommand, CopyObjectCommand,
   type _Object,
 } from '@aws-sdk/client-s3';
 import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
@@ -46,14 +46,21 @@ export async function deleteObject(st: Storage, key: string) {
   await st.s3.send(new DeleteObjectCommand({ Bucket: st.bucket, Key: key }));
 }
 
-/** The objects under `prefix`, one ListObjectsV2 page (up to 1,000) at a time. */
+/**
+ * The objects under `prefix`, one listing page (up to 1,000) at a time, in key order.
+ * ListObjects version 1 (Marker = the last key seen) rather than V2: s3rver, the embedded store,
+ * answers a truncated V2 listing with an error on OpenSSL 3 (its continuation token uses a cipher
+ * OpenSSL 3 disables), so a V2 pager stops at 1,000 objects there. Real S3 serves both.
+ */
 export async function* listPages(st: Storage, prefix = ''): AsyncGenerator<_Object[]> {
-  let token: string | undefined;
-  do {
-    const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket, Prefix: prefix || undefined, ContinuationToken: token }));
-    yield page.Contents ?? [];
-    token = page.IsTruncated ? page.NextContinuationToken : undefined;
-  } while (token);
+  let marker: string | undefined;
+  for (;;) {
+    const page = await st.s3.send(new ListObjectsCommand({ Bucket: st.bucket, Prefix: prefix || undefined, Marker: marker }));
+    const objects = page.Contents ?? [];
+    yield objects;
+    if (!page.IsTruncated || !objects.length) return;
+    marker = objects[objects.length - 1].Key;
+  }
 }
 
 /** Deletes every object under `prefix` (a field's tiles when it is re-ingested or removed). */
@@ -86,4 +93,38 @@ export async function deleteOlderThan(st: Storage, prefix: string, olderThan: Da
     n += old.length;
   }
   return n;
+}
+
+/**
+ * The next-level "folders" under `prefix` that hold at least one object, in key order: for 'fields/'
+ * these are 'fields/<id>/'. One ListObjectsV2 request per folder: each asks for the first key after
+ * the folder just found (StartAfter), so the objects inside a folder are never listed.
+ * Why not Delimiter '/': s3rver, the embedded store, omits folders whose objects all sit deeper than
+ * one level (fields/<id>/raw/<file>.tif only, exactly what an interrupted field creation leaves).
+ * ListObjects (version 1, Marker) rather than V2: s3rver answers a truncated V2 listing with an error
+ * on OpenSSL 3 (its continuation token uses a cipher OpenSSL 3 disables), and MaxKeys 1 always truncates.
+ * An object named exactly `<folder>0` directly under `prefix` is skipped over; it is no folder anyway.
+ */
+export async function* listSubPrefixes(st: Storage, prefix: string): AsyncGenerator<string> {
+  let after = prefix;
+  for (;;) {
+    const page = await st.s3.send(new ListObjectsCommand({ Bucket: st.bucket, Prefix: prefix, Marker: after, MaxKeys: 1 }));
+    const key = page.Contents?.[0]?.Key;
+    if (!key) return;
+    const slash = key.indexOf('/', prefix.length);
+    if (slash === -1) {
+      after = key; // an object directly under prefix
+      continue;
+    }
+    yield key.slice(0, slash + 1);
+    // '0' is the character after '/': every key inside this folder sorts before `<folder>0`
+    after = `${key.slice(0, slash)}0`;
+  }
+}
+
+/** Deletes the given keys, up to 1,000 per DeleteObjects request. */
+export async function deleteKeys(st: Storage, keys: string[]) {
+  for (let i = 0; i < keys.length; i += 1000) {
+    await st.s3.send(new DeleteObjectsCommand({ Bucket: st.bucket, Delete: { Objects: keys.slice(i, i + 1000).map((Key) => ({ Key })) } }));
+  }
 }

@@ -1,14 +1,18 @@
 // Mutation fuzzing of the TIFF reader. Every mutated file must either decode or be rejected with an
 // ImagingError: any other error type, or a case slower than 5 s, fails the test with its seed.
-// FUZZ_CASES=50000 npx vitest run --project unit src/lib/imaging/__tests__/fuzz.test.ts  for a long run.
+// FUZZ_CASES=50000 (50,000 in process, 25,000 through the worker) npx vitest run --project unit src/lib/imaging/__tests__/fuzz.test.ts  for a long run.
 import { describe, expect, it } from 'vitest';
-import { decodeInWorker } from '../decodeInWorker';
+import { decodeInWorker, decodeThreadStats } from '../decodeInWorker';
+import { config } from '../../config';
 import { decodeTiff, ImagingError, inspectTiff } from '../decodeWorker.mjs';
 import { baseFiles, mutate, prng } from './fuzzCases';
 
 const NB_CASES = Number(process.env.FUZZ_CASES ?? 5000);
-const NB_WORKER_CASES = 20;
+// the long mode scales both counts; the normal run keeps at least 2,000 through the job's worker path
+const NB_WORKER_CASES = Math.max(2000, Math.round(NB_CASES / 2));
 const CASE_BUDGET_MS = 5000;
+// the long mode runs past vitest's 60 s default: allow ~10 ms a case (measured: ~1 ms in process, ~2 ms through the worker)
+const testTimeout = (n: number) => Math.max(60_000, n * 10);
 
 describe('fuzz: mutated TIFF files decode or fail with ImagingError only', () => {
   const bases = baseFiles();
@@ -42,22 +46,59 @@ describe('fuzz: mutated TIFF files decode or fail with ImagingError only', () =>
     // the mutators must exercise both paths, or the test proves nothing
     expect(outcomes.decoded ?? 0).toBeGreaterThan(NB_CASES * 0.05);
     expect(Object.keys(outcomes).length).toBeGreaterThanOrEqual(5);
-  });
+  }, testTimeout(NB_CASES));
 
-  it(`${NB_WORKER_CASES} cases through decodeInWorker`, async () => {
-    const codes: string[] = [];
-    for (let c = 0; c < NB_WORKER_CASES; c++) {
-      const seed = 900_000 + c;
-      const { file, steps } = mutate(bases[c % bases.length], seed);
-      try {
-        await decodeInWorker(file, {}, { timeoutMs: CASE_BUDGET_MS });
-        codes.push('decoded');
-      } catch (err) {
-        expect(err, `seed ${seed} [${steps}]`).toBeInstanceOf(ImagingError);
-        codes.push((err as ImagingError).code);
+  // The ingestion and linking jobs' decode call (src/lib/jobs/ingestField.ts, linkField.ts):
+  // decodeInWorker(bytes, decodeLimits, { timeoutMs: 120_000, maxHeapMb: 4096 }), with decodeLimits
+  // built from the configuration as in src/lib/jobs/handlers.ts.
+  const c = config();
+  const JOB_LIMITS = { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES };
+  const JOB_OPTIONS = { timeoutMs: 120_000, maxHeapMb: 4096 };
+
+  it(`${NB_WORKER_CASES} cases through the ingestion job's decodeInWorker call`, async () => {
+    const failures: string[] = [];
+    const outcomes: Record<string, number> = {};
+    let slowestMs = 0;
+    const threads0 = decodeThreadStats().started;
+    const t0 = performance.now();
+    for (let k = 0; k < NB_WORKER_CASES; k++) {
+      const seed = 2_000_000 + k;
+      const { file, steps } = mutate(bases[k % bases.length], seed);
+      const tag = `seed ${seed} [${steps}]`;
+      const start = performance.now();
+      const got = await decodeInWorker(file, JOB_LIMITS, JOB_OPTIONS).then((r) => ({ ok: true as const, r }), (e: unknown) => ({ ok: false as const, e }));
+      const ms = performance.now() - start;
+      slowestMs = Math.max(slowestMs, ms);
+      if (ms > CASE_BUDGET_MS) failures.push(`${tag} took ${ms.toFixed(0)} ms`);
+      // the same file read in this process: the thread must give the same answer (no mixed-up replies between files)
+      const here = await decodeTiff(file, JOB_LIMITS).then((r) => ({ ok: true as const, r }), (e: unknown) => ({ ok: false as const, e }));
+      if (got.ok) {
+        outcomes.decoded = (outcomes.decoded ?? 0) + 1;
+        const pages = got.r.pages;
+        const valid = pages.length > 0 && pages.every((p) => p.width > 0 && p.height > 0 && p.data instanceof Float32Array && p.data.length === p.width * p.height);
+        if (!valid) failures.push(`${tag} resolved with a malformed raster`);
+        else if (!here.ok) failures.push(`${tag} decoded in the thread but not in process`);
+        else if (here.r.pages.length !== pages.length || !here.r.pages.every((p, i) => p.width === pages[i].width && Buffer.from(p.data.buffer, p.data.byteOffset, p.data.byteLength).equals(Buffer.from(pages[i].data.buffer)))) {
+          failures.push(`${tag} thread and in-process pixels differ`);
+        }
+      } else if (!(got.e instanceof ImagingError)) {
+        failures.push(`${tag} rejected with ${String(got.e)} instead of an ImagingError`);
+      } else {
+        const e = got.e;
+        outcomes[e.code] = (outcomes[e.code] ?? 0) + 1;
+        // timeout and worker_failed mean a thread hung or died; a message must be a sentence without internals
+        if (e.code === 'timeout' || e.code === 'worker_failed') failures.push(`${tag} ${e.code}`);
+        if (e.message.length < 20 || /node_modules|\/work\/|\bat \w+ \(/.test(e.message)) failures.push(`${tag} message ${JSON.stringify(e.message)}`);
+        if (here.ok || (here.e as ImagingError).code !== e.code) failures.push(`${tag} thread said ${e.code}, in process ${here.ok ? 'decoded' : (here.e as ImagingError).code}`);
       }
     }
-    expect(codes).not.toContain('timeout');
-    expect(codes).not.toContain('worker_failed');
-  });
+    const totalMs = performance.now() - t0;
+    const threads = decodeThreadStats().started - threads0;
+    console.info(`fuzz (worker): ${NB_WORKER_CASES} cases in ${(totalMs / 1000).toFixed(1)} s, slowest ${slowestMs.toFixed(0)} ms, ${threads} thread(s), outcomes ${JSON.stringify(outcomes)}`);
+    expect(failures).toEqual([]);
+    expect(outcomes.decoded ?? 0).toBeGreaterThan(NB_WORKER_CASES * 0.05);
+    expect(Object.keys(outcomes).length).toBeGreaterThanOrEqual(5);
+    // sequential calls share one thread; a new thread per case would be a regression in cost, not safety
+    expect(threads).toBeLessThanOrEqual(1);
+  }, testTimeout(NB_WORKER_CASES));
 });
