@@ -10,7 +10,7 @@ export const AUDIT_ACTIONS = [
   'sign_in.succeeded', 'sign_in.failed', 'sign_in.blocked',
   'user.invited', 'user.password_set', 'user.password_reset_requested', 'user.role_changed', 'user.deactivated',
   'study.created', 'membership.changed', 'panel.changed',
-  'sample.created', 'field.uploaded', 'field.removed',
+  'sample.created', 'field.uploaded', 'field.removed', 'field.detection_changed',
   'registration.saved', 'field.approved', 'field.sent_back', 'sample.released',
 ] as const;
 

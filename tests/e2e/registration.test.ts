@@ -106,6 +106,8 @@ describe('registration workspace in Chromium', () => {
     await first.keyboard.press('Escape');
     await proposal.waitFor({ state: 'detached' });
     expect(await pairRows(first)).toBe(4);
+    // two clicks on one spot within OpenSeadragon's double-click time (300 ms) would zoom in instead
+    await first.waitForTimeout(500);
     await clickAfm(first, beads[4]);
     await proposal.waitFor();
     await first.keyboard.press('Enter');
@@ -120,6 +122,7 @@ describe('registration workspace in Chromium', () => {
     // undo takes back the hand-placed pair only
     await first.keyboard.press('u');
     await waitForPairs(first, 5);
+    await first.waitForTimeout(500); // the same spot again: not a double-click
     await clickAfm(first, beads[5]);
     await proposal.waitFor();
     await first.getByRole('button', { name: 'Accept partner' }).click();

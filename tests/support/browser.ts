@@ -16,6 +16,18 @@ export async function islandsReady(page: Page) {
   await page.waitForFunction(() => !document.querySelector('astro-island[ssr]'), undefined, { timeout: 30_000 });
 }
 
+/**
+ * Waits until the island holding `testId` is hydrated. For `client:visible` islands on long pages,
+ * where islands below the fold stay unhydrated until scrolled to.
+ */
+export async function islandReady(page: Page, testId: string) {
+  await page.getByTestId(testId).scrollIntoViewIfNeeded();
+  await page.waitForFunction((id) => {
+    const el = document.querySelector(`[data-testid="${id}"]`);
+    return !!el && !el.closest('astro-island[ssr]');
+  }, testId, { timeout: 30_000 });
+}
+
 /** Signs in through the real sign-in form. */
 export async function signInAs(page: Page, email: string, password: string) {
   await page.goto(`${APP_URL}/signin`);

@@ -73,3 +73,15 @@ ROUTES.push(
   // Field removal: the empty body is refused (400) after the guard, so the matrix never removes its probe field.
   { file: 'fields/[id]/index.ts', method: 'DELETE', path: '/api/fields/:field', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true, body: {} },
 );
+
+ROUTES.push(
+  // Detection settings: the empty body is refused (400) after the guard, so the matrix never re-runs the probe field's ingestion.
+  { file: 'fields/[id]/detection-settings.ts', method: 'PUT', path: '/api/fields/:field/detection-settings', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+);
+
+// Positivity settings per marker (k, hand-set threshold) and re-linking the fields linked with other settings.
+ROUTES.push(
+  { file: 'studies/[id]/positivity.ts', method: 'GET', path: '/api/studies/:study/positivity', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'studies/[id]/positivity.ts', method: 'PUT', path: '/api/studies/:study/positivity', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+  { file: 'studies/[id]/relink.ts', method: 'POST', path: '/api/studies/:study/relink', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+);

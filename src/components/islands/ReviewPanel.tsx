@@ -1,10 +1,15 @@
 import { Fragment, useState } from 'react';
+import { describeRule, positivityUsed } from '../../lib/jobs/positivitySettings';
 
 interface Review { decision: string; comment: string; reviewedAt: string; reviewer: string | null }
-interface Props { fieldId: string; status: string; version: number; canAnalyse: boolean; reviews: Review[]; summary: Record<string, unknown> | null }
+interface Props {
+  fieldId: string; status: string; version: number; canAnalyse: boolean; reviews: Review[]; summary: Record<string, unknown> | null;
+  /** The current link run's settings: per marker the threshold rule, k and threshold used. */
+  settings?: Record<string, unknown> | null;
+}
 
 /** Linking, approval and send-back of a field, with the record of earlier reviews. */
-export default function ReviewPanel({ fieldId, status, version, canAnalyse, reviews, summary }: Props) {
+export default function ReviewPanel({ fieldId, status, version, canAnalyse, reviews, summary, settings = null }: Props) {
   const [comment, setComment] = useState('');
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const [busy, setBusy] = useState(false);
@@ -20,7 +25,13 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
   const positive = (summary?.positiveByMarker ?? {}) as Record<string, number>;
   // older runs may carry the linker's own name for the same count
   const spotsWithoutVesicle = (summary?.spotsWithoutVesicleByMarker ?? summary?.unmatchedSpotsByMarker ?? {}) as Record<string, number>;
-  const channels = (summary?.channels ?? {}) as Record<string, { nbSpots?: number }>;
+  const channels = (summary?.channels ?? {}) as Record<string, { nbSpots?: number; thresholdCounts?: number }>;
+  // what each marker was called against; older runs without settings show the summary's threshold only
+  const markerNames = (Array.isArray(settings?.markers) ? settings.markers : Object.keys(positive)) as string[];
+  const thresholds = markerNames.map((m) => {
+    const used = positivityUsed(settings, m);
+    return { marker: m, counts: used?.thresholdCounts ?? channels[m]?.thresholdCounts ?? null, words: used ? describeRule(used) : null };
+  });
 
   return (
     <div className="card text-sm space-y-3" data-testid="review-panel">
@@ -32,6 +43,23 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
           <dt className="text-mica-600">Outside the frame</dt><dd>{String(summary.nbOutOfFrame)}</dd>
           <dt className="text-mica-600">No marker</dt><dd>{String(summary.nbVesiclesWithoutMarker)}</dd>
         </dl>
+      )}
+      {summary && thresholds.length > 0 && (
+        <div className="space-y-1" data-testid="positivity-thresholds">
+          <h3 className="font-semibold">Positivity thresholds</h3>
+          <dl className="grid grid-cols-2 gap-y-1">
+            {thresholds.map((t) => (
+              <Fragment key={t.marker}>
+                <dt className="text-mica-600">{t.marker}</dt>
+                <dd>
+                  {t.counts == null ? '–' : `${Number(t.counts.toPrecision(6))} counts`}
+                  {t.words && <span className="block text-xs text-mica-600">{t.words}</span>}
+                </dd>
+              </Fragment>
+            ))}
+          </dl>
+          <p className="text-mica-600 text-xs">Joint amplitude above the threshold: positive. Thresholds are set per marker on the study page.</p>
+        </div>
       )}
       {summary && Object.keys(spotsWithoutVesicle).length > 0 && (
         <div className="space-y-1" data-testid="spots-without-vesicle">

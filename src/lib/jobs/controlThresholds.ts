@@ -11,7 +11,12 @@ import type { Db } from '../db/client';
 import { vesicles, samples, linkRuns } from '../db/schema';
 import { thresholdFromControls } from '../analysis/linking';
 
-export async function controlThresholds(db: Db, studyId: string, markers: string[], k = 3) {
+/**
+ * @param markers - every marker of the panel in channel order (values are read by channel index)
+ * @param k - k of mean + k·SD, one number for every marker or one per marker (markers left out get 3)
+ * @returns per marker with at least 10 control values: threshold, mean and SD (counts), number of values and k
+ */
+export async function controlThresholds(db: Db, studyId: string, markers: string[], k: number | Readonly<Record<string, number>> = 3) {
   const rows = await db
     .select({ markers: vesicles.markers })
     .from(vesicles)
@@ -19,7 +24,7 @@ export async function controlThresholds(db: Db, studyId: string, markers: string
     .innerJoin(linkRuns, and(eq(linkRuns.id, vesicles.linkRunId), eq(linkRuns.current, true)))
     .where(and(eq(samples.studyId, studyId), ne(samples.controlKind, 'none'), eq(vesicles.outOfFrame, false)))
     .limit(200_000);
-  const out: Record<string, { thresholdCounts: number; meanCounts: number; sdCounts: number; nbControls: number }> = {};
+  const out: Record<string, { thresholdCounts: number; meanCounts: number; sdCounts: number; nbControls: number; k: number }> = {};
   markers.forEach((m, i) => {
     const values = rows
       .map((r) => {
@@ -28,8 +33,9 @@ export async function controlThresholds(db: Db, studyId: string, markers: string
       })
       .filter((v): v is number => Number.isFinite(v));
     if (values.length < 10) return;
-    const t = thresholdFromControls(values, k);
-    out[m] = { thresholdCounts: t.thresholdCounts, meanCounts: t.meanCounts, sdCounts: t.sdCounts, nbControls: t.nbControls };
+    const km = typeof k === 'number' ? k : (k[m] ?? 3);
+    const t = thresholdFromControls(values, km);
+    out[m] = { thresholdCounts: t.thresholdCounts, meanCounts: t.meanCounts, sdCounts: t.sdCounts, nbControls: t.nbControls, k: km };
   });
   return out;
 }

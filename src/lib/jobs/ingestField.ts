@@ -5,7 +5,7 @@
  */
 import { eq, asc, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { fields, fieldFiles, tileSets, samples, markerChannels } from '../db/schema';
+import { fields, fieldFiles, tileSets, samples, markerChannels, registrations } from '../db/schema';
 import type { Storage } from '../storage/client';
 import { getBytes, putBytes } from '../storage/objects';
 import { detectionKey, tilePrefix } from '../storage/keys';
@@ -17,6 +17,7 @@ import { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from '../analysis/pip
 import { renderHeightLayer, renderChannelLayer, TILE_OVERLAP, TILE_SIZE } from './renderLayers';
 import { setFieldProgress, failField } from './progress';
 import type { FieldDetection } from './detectionTypes';
+import { DetectionSettings, DEFAULT_MIN_AREA_PX, defaultDetectionSettings, detectionOptions } from '../schemas/detectionSettings';
 
 export interface IngestDeps { db: Db; st: Storage; decodeLimits: { maxFileBytes: number; maxPixels: number; maxDecodedBytes: number } }
 
@@ -42,7 +43,17 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
     const height: Raster = topo.pages[0];
 
     await progress('levelling and detecting vesicles', 0.15);
-    const afm = analyzeHeightMap(height, field.afmPixelNm!, { measure: { tipRadiusNm: field.tipRadiusNm ?? 0 } });
+    // settings saved by an analyst (validated again: the column is plain JSON); none = the analysis defaults
+    const parsed = field.detectionSettings == null ? null : DetectionSettings.safeParse(field.detectionSettings);
+    if (parsed && !parsed.success) throw new PermanentJobError('The saved detection settings are not valid; save them again on the field page.');
+    const chosen = parsed?.data ?? null;
+    const options = detectionOptions(chosen, field.afmPixelNm!, field.tipRadiusNm ?? 0);
+    const afm = analyzeHeightMap(height, field.afmPixelNm!, options);
+    const settingsUsed: NonNullable<FieldDetection['settings']> = {
+      ...(chosen ?? defaultDetectionSettings(field.afmPixelNm!)),
+      minAreaPx: options.detect?.minAreaPx ?? DEFAULT_MIN_AREA_PX,
+      source: chosen ? 'analyst' : 'defaults',
+    };
 
     await progress('rendering the height map', 0.3);
     const layers: { layer: string; prefix: string; width: number; height: number; display: Record<string, unknown> }[] = [];
@@ -68,6 +79,7 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
     const detection: FieldDetection = {
       afmPixelNm: field.afmPixelNm!,
       flPixelNm: field.flPixelNm!,
+      settings: settingsUsed,
       thresholdNm: afm.threshold.thresholdNm,
       backgroundSigmaNm: afm.levelling.backgroundSigmaNm,
       vesicles: afm.vesicles.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.equivalentDiameterNm })),
@@ -84,7 +96,9 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
       for (const l of layers) {
         await tx.insert(tileSets).values({ fieldId, layer: l.layer, prefix: l.prefix, widthPx: l.width, heightPx: l.height, tileSize: TILE_SIZE, overlap: TILE_OVERLAP, format: 'png', display: l.display });
       }
-      await tx.update(fields).set({ status: 'ready', failureReason: null, progress: { stage: 'done', fraction: 1 }, version: sql`${fields.version} + 1`, updatedAt: sql`now()` }).where(eq(fields.id, fieldId));
+      // new vesicles make any earlier linking stale: back to "registered" when a registration exists, else "ready"
+      const [reg] = await tx.select({ id: registrations.id }).from(registrations).where(eq(registrations.fieldId, fieldId)).limit(1);
+      await tx.update(fields).set({ status: reg ? 'registered' : 'ready', failureReason: null, progress: { stage: 'done', fraction: 1 }, version: sql`${fields.version} + 1`, updatedAt: sql`now()` }).where(eq(fields.id, fieldId));
     });
     return { vesicles: detection.vesicles.length, fiducials: detection.fiducialCandidates.length, spots: spots.map((s) => s.spots.length) };
   } catch (e) {

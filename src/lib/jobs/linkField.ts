@@ -17,6 +17,7 @@ import { summariseLinkRun } from '../db/queries/linkRunSummaries';
 import { setFieldProgress } from './progress';
 import { controlThresholds } from './controlThresholds';
 import { PermanentJobError, type IngestDeps } from './ingestField';
+import { DEFAULT_POSITIVITY_K, roundK, type MarkerPositivityUsed } from './positivitySettings';
 
 const BATCH = 1000;
 const fin = (v: number) => (Number.isFinite(v) ? v : null);
@@ -38,8 +39,16 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     const frames = [];
     for (const f of files.filter((x) => x.kind === 'fluorescence')) frames.push(...(await decode(f.objectKey)).pages);
     const markers = frames.map((_, c) => panel[c]?.marker ?? `ch${c + 1}`);
-    const controls = sample.controlKind === 'none' ? await controlThresholds(db, sample.studyId, markers) : {};
-    const thresholdCountsByMarker = Object.fromEntries(Object.entries(controls).map(([m, t]) => [m, t.thresholdCounts]));
+    // the panel's settings per marker: a hand-set threshold wins; else mean + k SD of controls, else of empty places
+    const setting = (m: string) => panel.find((p) => p.marker === m);
+    const kOf = (m: string) => roundK(setting(m)?.positivityK ?? DEFAULT_POSITIVITY_K);
+    const manual = Object.fromEntries(markers.flatMap((m) => (setting(m)?.manualThresholdCounts != null ? [[m, setting(m)!.manualThresholdCounts!]] : [])));
+    const positivityKByMarker = Object.fromEntries(markers.map((m) => [m, kOf(m)]));
+    // all markers go in, in channel order (the stored calls are indexed by channel); hand-set ones are dropped after
+    const fromControls = sample.controlKind === 'none' && markers.some((m) => manual[m] === undefined)
+      ? await controlThresholds(db, sample.studyId, markers, positivityKByMarker) : {};
+    const controls = Object.fromEntries(Object.entries(fromControls).filter(([m]) => manual[m] === undefined));
+    const thresholdCountsByMarker: Record<string, number> = { ...Object.fromEntries(Object.entries(controls).map(([m, t]) => [m, t.thresholdCounts])), ...manual };
 
     // analyzeField is synchronous: its stage reports are written in order once it returns
     // (the bar moves reading → analysing → saving), never after the final state.
@@ -56,24 +65,35 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       },
       {
         tipRadiusNm: field.tipRadiusNm ?? 0,
+        positivityKByMarker,
         onProgress: (stage, f) => stages.push([stage, f]),
       },
     );
 
     for (const [stage, f] of stages.filter(([, f]) => f === 1)) await progress(`linking: ${stage} done`, 0.1 + 0.75 * ((fieldStages.indexOf(stage) + f) / fieldStages.length));
     await progress('saving results', 0.9);
-    const thresholdSource = (m: string) => controls[m]
-      ? `mean + 3 SD of the joint amplitudes of ${controls[m].nbControls} control-sample vesicles`
-      : `mean + 3 SD of joint amplitudes fitted at ${result.summary.channels[m]?.nbBackgroundApertures ?? '?'} empty places of the frame`;
+    const used = Object.fromEntries(markers.map((m): [string, MarkerPositivityUsed] => [m, {
+      rule: manual[m] !== undefined ? 'manual' : controls[m] ? 'control_mean_k_sd' : 'background_mean_k_sd',
+      k: manual[m] !== undefined ? null : kOf(m),
+      thresholdCounts: result.summary.channels[m]?.thresholdCounts ?? null,
+    }]));
+    const thresholdSource = (m: string) => used[m].rule === 'manual'
+      ? 'a threshold set by hand'
+      : used[m].rule === 'control_mean_k_sd'
+        ? `mean + ${used[m].k} SD of the joint amplitudes of ${controls[m].nbControls} control-sample vesicles`
+        : `mean + ${used[m].k} SD of joint amplitudes fitted at ${result.summary.channels[m]?.nbBackgroundApertures ?? '?'} empty places of the frame`;
+    // per marker: the rule, its k (null when set by hand) and the threshold compared (counts)
     const settings = {
       registrationVersion: reg.version,
       registrationModel: reg.model,
       positivityMeasure: 'joint_amplitude',
       thresholdUnit: result.summary.channels[markers[0]]?.thresholdUnit ?? 'counts',
-      thresholdRule: Object.fromEntries(markers.map((m) => [m, thresholdSource(m)])),
+      thresholdRule: Object.fromEntries(markers.map((m) => [m, used[m].rule])),
       thresholdMethod: markers.map((m) => `${m}: joint NNLS amplitude (counts of PSF amplitude) above ${thresholdSource(m)}`).join('; '),
-      thresholds: Object.fromEntries(markers.map((m) => [m, result.summary.channels[m]?.thresholdCounts ?? null])),
-      k: 3,
+      thresholds: Object.fromEntries(markers.map((m) => [m, used[m].thresholdCounts])),
+      k: Object.fromEntries(markers.map((m) => [m, used[m].k])),
+      nbThresholdValues: Object.fromEntries(markers.map((m) => [m, used[m].rule === 'manual' ? null
+        : used[m].rule === 'control_mean_k_sd' ? controls[m].nbControls : (result.summary.channels[m]?.nbBackgroundApertures ?? null)])),
       markers,
     };
     await db.transaction(async (tx) => {

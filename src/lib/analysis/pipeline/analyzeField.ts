@@ -26,8 +26,9 @@ import type {
  * candidates, detect spots in every fluorescence channel, register AFM to fluorescence (a saved transform as is,
  * refined fiducial picks, or automatic pairing of AFM candidates with spots), map every vesicle into fluorescence
  * pixels, measure each marker (aperture photometry and SNR, reported; joint NNLS amplitude of each vesicle's PSF
- * with its neighbours; nearest spot), call it by comparing the joint amplitude with a given threshold or mean + 3 SD
- * of amplitudes fitted at empty places, and gather per-vesicle records and field counts. Pure and deterministic.
+ * with its neighbours; nearest spot), call it by comparing the joint amplitude with a given threshold or mean + k SD
+ * (k from `positivityKByMarker`, else 3) of amplitudes fitted at empty places, and gather per-vesicle records and
+ * field counts. Pure and deterministic.
  *
  * @param input - rasters, pixel sizes (nm/px), optics, optional fiducials and thresholds; not modified
  * @param options - see {@link AnalyzeFieldOptions}
@@ -45,6 +46,11 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   } = options;
   const { heightNm, afmPixelNm, channels, flPixelNm, numericalAperture, fiducialPairs, savedRegistration, thresholdCountsByMarker = {} } = input;
   validateInput(input);
+  // k of the background rule per marker (mean + k SD of empty-place amplitudes); 3 is common practice
+  const positivityKByMarker = options.positivityKByMarker ?? {};
+  for (const [m, k] of Object.entries(positivityKByMarker)) {
+    if (!(k > 0) || !Number.isFinite(k)) throw new RangeError(`positivityKByMarker.${m} must be a positive finite number, got ${k}`);
+  }
   const markers = channels.map((c) => c.marker);
   const sigmaPxByMarker: Record<string, number> = {};
   for (const c of channels) sigmaPxByMarker[c.marker] = psfSigmaPx(c.emissionNm, numericalAperture, flPixelNm);
@@ -115,7 +121,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       thresholdInfo[c.marker] = { thresholdSource: 'given', backgroundMeanCounts: null, backgroundSdCounts: null, nbBackgroundApertures: null };
     } else {
       const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[c.marker]];
-      const t = backgroundAmplitudeThreshold(c.raster, avoid, { sigmaPx: sigmaPxByMarker[c.marker], k: 3 });
+      const t = backgroundAmplitudeThreshold(c.raster, avoid, { sigmaPx: sigmaPxByMarker[c.marker], k: positivityKByMarker[c.marker] ?? 3 });
       thresholds[c.marker] = t.thresholdCounts;
       thresholdInfo[c.marker] = {
         thresholdSource: 'background_amplitudes', backgroundMeanCounts: t.meanCounts, backgroundSdCounts: t.sdCounts,

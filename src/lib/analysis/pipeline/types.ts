@@ -41,7 +41,7 @@ export interface AnalyzeFieldInput {
   readonly savedRegistration?: SavedRegistration;
   /**
    * Positivity threshold per marker, in joint-amplitude counts (total counts of one vesicle's PSF, the quantity
-   * called; e.g. mean + 3 SD of control vesicles' amplitudes); markers without one get mean + 3 SD of the
+   * called; e.g. mean + 3 SD of control vesicles' amplitudes); markers without one get mean + k SD of the
    * amplitudes fitted at empty places of the same frame.
    */
   readonly thresholdCountsByMarker?: Readonly<Record<string, number>>;
@@ -68,6 +68,11 @@ export interface AnalyzeFieldOptions {
   cameraOffsetCounts?: number;
   /** Spot detection threshold in robust SDs of the LoG response. @default 5 */
   spotThresholdK?: number;
+  /**
+   * k of the background positivity rule per marker: markers without a given threshold are called positive above
+   * mean + k SD of the amplitudes fitted at empty places of the frame. @default 3 for every marker (common practice)
+   */
+  positivityKByMarker?: Readonly<Record<string, number>>;
   /** A fiducial pick snaps to a candidate at most this far away in either image (nm of sample); 0 keeps picks as given. @default 300 */
   snapRadiusNm?: number;
   /** Spots of different channels closer than this are one candidate for automatic pairing (fluorescence px). @default 1.5 */
@@ -183,7 +188,7 @@ export interface FieldChannelSummary {
   readonly thresholdMeasure: 'joint_amplitude';
   /** Words for the unit of thresholdCounts and amplitudeCounts, for people. */
   readonly thresholdUnit: string;
-  /** 'given' (e.g. control samples) or mean + 3 SD of amplitudes fitted at empty places of the frame. */
+  /** 'given' (e.g. control samples) or mean + k SD of amplitudes fitted at empty places of the frame. */
   readonly thresholdSource: 'given' | 'background_amplitudes';
   /** Ingredients of a background threshold (counts of PSF amplitude); null when the threshold was given. */
   readonly backgroundMeanCounts: number | null;

@@ -27,7 +27,9 @@ export const PUT = handle(async (ctx) => {
   }
   await db.transaction(async (tx) => {
     await tx.delete(markerChannels).where(eq(markerChannels.studyId, id));
-    await tx.insert(markerChannels).values(body.channels.map((c, channelIndex) => ({ ...c, studyId: id, channelIndex })));
+    // a marker keeps the positivity settings analysts gave it (k, hand-set threshold) when the panel is edited
+    const kept = new Map(current.map((c) => [c.marker, { positivityK: c.positivityK, manualThresholdCounts: c.manualThresholdCounts }]));
+    await tx.insert(markerChannels).values(body.channels.map((c, channelIndex) => ({ ...kept.get(c.marker), ...c, studyId: id, channelIndex })));
   });
   appAccessCache(db)?.forget({ panelOf: id });
   await audit(db, { action: 'panel.changed', actorId: user.id, actorEmail: user.email, targetType: 'study', targetId: id, ip: clientAddress(ctx), details: { panel: body.channels.map((c) => c.marker) } });

@@ -1,0 +1,47 @@
+/** k of the background positivity rule per marker: x_L = x̄_blank + k·s_blank (REFERENCES §9, IUPAC Gold Book L03540). */
+import { beforeAll, describe, expect, it } from 'vitest';
+import { analyzeField, type AnalyzeFieldInput, type AnalyzeFieldResult } from '..';
+import { makeFieldScene } from './fieldScene';
+
+describe('analyzeField with a k per marker', () => {
+  let input: AnalyzeFieldInput;
+  let k3: AnalyzeFieldResult;
+  let k5: AnalyzeFieldResult;
+
+  beforeAll(() => {
+    const scene = makeFieldScene();
+    input = {
+      heightNm: scene.afm.raster, afmPixelNm: scene.afmPixelNm, channels: scene.channels, flPixelNm: scene.flPixelNm,
+      numericalAperture: scene.numericalAperture, fiducialPairs: scene.beadsAfm.map((p, i) => ({ afm: p, fl: scene.beadsFl[i] })),
+    };
+    k3 = analyzeField(input);
+    k5 = analyzeField(input, { positivityKByMarker: { CD63: 5 } });
+  });
+
+  it('uses mean + 5 SD of the same empty places for the marker given k = 5, and mean + 3 SD for the others', () => {
+    const a = k3.summary.channels.CD63;
+    const b = k5.summary.channels.CD63;
+    expect(b.thresholdSource).toBe('background_amplitudes');
+    // same places, same amplitudes: only k differs
+    expect(b.backgroundMeanCounts).toBe(a.backgroundMeanCounts);
+    expect(b.backgroundSdCounts).toBe(a.backgroundSdCounts);
+    expect(b.backgroundSdCounts!).toBeGreaterThan(0);
+    expect(b.thresholdCounts).toBeCloseTo(b.backgroundMeanCounts! + 5 * b.backgroundSdCounts!, 9);
+    expect(b.thresholdCounts - a.thresholdCounts).toBeCloseTo(2 * a.backgroundSdCounts!, 9);
+    for (const m of ['CD9', 'CD81']) expect(k5.summary.channels[m].thresholdCounts).toBe(k3.summary.channels[m].thresholdCounts);
+  });
+
+  it('calls CD63 against the higher threshold: positives are exactly the amplitudes above it', () => {
+    const t = k5.summary.channels.CD63.thresholdCounts;
+    const above = k5.records.filter((r) => (r.markers.CD63?.amplitudeCounts ?? -Infinity) > t).length;
+    expect(k5.summary.positiveByMarker.CD63).toBe(above);
+    expect(k5.records.filter((r) => r.markers.CD63?.positive).length).toBe(above);
+    expect(k5.summary.positiveByMarker.CD63).toBeLessThanOrEqual(k3.summary.positiveByMarker.CD63);
+    expect(k5.summary.positiveByMarker.CD9).toBe(k3.summary.positiveByMarker.CD9);
+  });
+
+  it('refuses a k that is not a positive number', () => {
+    expect(() => analyzeField(input, { positivityKByMarker: { CD63: 0 } })).toThrow(RangeError);
+    expect(() => analyzeField(input, { positivityKByMarker: { CD63: Number.NaN } })).toThrow(RangeError);
+  });
+});

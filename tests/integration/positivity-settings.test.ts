@@ -1,0 +1,231 @@
+/**
+ * Per-marker positivity settings (k of mean + k SD, a threshold set by hand) through the real app, database and job
+ * worker: validation and roles, the fields linked with other settings, and re-linking a demo field with them.
+ * The rule x_L = x̄_blank + k·s_blank is REFERENCES §9 (IUPAC Gold Book L03540).
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { and, desc, eq, ne } from 'drizzle-orm';
+import { signedIn, type AppClient } from '../support/client';
+import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { demoField } from '../support/demoField';
+import { makeDemoPair } from '../../fixtures/demoScene';
+import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
+import { applyAffine } from '../../src/lib/analysis/geometry';
+import { createDb, type Db } from '../../src/lib/db/client';
+import { auditLog, linkRuns, markerChannels, samples, vesicles } from '../../src/lib/db/schema';
+
+let analyst: AppClient;
+let collaborator: AppClient;
+let biologist: AppClient;
+let db: Db;
+let fieldId: string;
+let studyId: string;
+const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-001')!;
+const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
+type Run = typeof linkRuns.$inferSelect;
+
+const currentRun = async (): Promise<Run | undefined> =>
+  (await db.select().from(linkRuns).where(and(eq(linkRuns.fieldId, fieldId), eq(linkRuns.current, true))))[0];
+const panelRows = () => db.select({ marker: markerChannels.marker, k: markerChannels.positivityK, manual: markerChannels.manualThresholdCounts })
+  .from(markerChannels).where(eq(markerChannels.studyId, studyId)).orderBy(markerChannels.channelIndex);
+
+/** Waits until the field is linked by a run other than `previousRunId`. */
+async function waitForNewRun(previousRunId: string | undefined, timeoutMs = 120_000): Promise<Run> {
+  const until = Date.now() + timeoutMs;
+  while (Date.now() < until) {
+    const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    if (f.failureReason) throw new Error(f.failureReason);
+    const run = await currentRun();
+    if (run && run.id !== previousRunId && f.status === 'linked' && (f.progress?.fraction ?? 1) >= 1) return run;
+    await new Promise((r) => setTimeout(r, 500));
+  }
+  throw new Error('the field was not linked again');
+}
+
+const put = (c: AppClient, markers: unknown) => c.json(`/api/studies/${studyId}/positivity`, 'PUT', { markers });
+const relink = (c: AppClient, ids: string[]) => c.json(`/api/studies/${studyId}/relink`, 'POST', { fieldIds: ids });
+
+/** The study's control-sample vesicles' stored amplitudes of one marker (current runs, in frame), as the job reads them. */
+async function controlAmplitudes(channel: number) {
+  const rows = await db.select({ markers: vesicles.markers }).from(vesicles)
+    .innerJoin(samples, eq(samples.id, vesicles.sampleId)).innerJoin(linkRuns, and(eq(linkRuns.id, vesicles.linkRunId), eq(linkRuns.current, true)))
+    .where(and(eq(samples.studyId, studyId), ne(samples.controlKind, 'none'), eq(vesicles.outOfFrame, false)));
+  const v = rows.map((r) => (r.markers as { amplitude: number | null; amplitudeUnconstrained?: number | null }[])[channel])
+    .map((c) => c.amplitudeUnconstrained ?? c.amplitude).filter((x): x is number => x != null);
+  const mean = v.reduce((a, x) => a + x, 0) / v.length;
+  // sample SD (n − 1), REFERENCES §9 worked example
+  return { n: v.length, mean, sd: Math.sqrt(v.reduce((a, x) => a + (x - mean) ** 2, 0) / (v.length - 1)) };
+}
+
+/** Stored joint amplitudes and calls of one marker (in-frame vesicles) of a run. */
+async function callsOf(runId: string, channel: number) {
+  const rows = await db.select({ markers: vesicles.markers, bits: vesicles.markerBits, outOfFrame: vesicles.outOfFrame }).from(vesicles).where(eq(vesicles.linkRunId, runId));
+  const inFrame = rows.filter((r) => !r.outOfFrame);
+  return {
+    amplitudes: inFrame.map((r) => (r.markers as { amplitude: number | null }[])[channel].amplitude).filter((v): v is number => v != null),
+    positive: rows.filter((r) => (r.bits & (1 << channel)) !== 0).length,
+  };
+}
+
+beforeAll(async () => {
+  analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+  collaborator = await signedIn(DEMO.collaborator, DEMO_PASSWORD);
+  biologist = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+  db = createDb(process.env.DATABASE_URL!, 2);
+  fieldId = await demoField(spec.code);
+  [{ studyId }] = await db.select({ studyId: samples.studyId }).from(samples).where(eq(samples.code, spec.code));
+  const status = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field.status;
+  if (status === 'approved') {
+    const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    expect((await analyst.json(`/api/fields/${fieldId}/review`, 'POST', { decision: 'sent_back', comment: 'positivity test', expectedVersion: f.version })).status).toBe(200);
+  }
+  const beads = truth.truth.filter((t) => t.kind === 'bead');
+  const pairs = beads.map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
+  const versions = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;
+  expect((await analyst.json(`/api/fields/${fieldId}/registration`, 'POST', { basedOnVersion: versions[0]?.version ?? 0, pairs })).status).toBe(201);
+  const before = await currentRun();
+  expect((await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status).toBe(202);
+  await waitForNewRun(before?.id);
+}, 240_000);
+
+afterAll(async () => {
+  // leave the demo study's panel and this field as other test files expect them: k = 3, derived thresholds
+  await db.update(markerChannels).set({ positivityK: 3, manualThresholdCounts: null }).where(eq(markerChannels.studyId, studyId));
+  const run = await currentRun();
+  if (run && (await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status === 202) await waitForNewRun(run.id);
+  await db.$client.end();
+}, 180_000);
+
+describe('positivity settings per marker', () => {
+  it('refuses bad input with 400 and changes nothing; collaborators and biologists get 403', async () => {
+    const before = await panelRows();
+    for (const [markers, pattern] of [
+      [[{ marker: 'CD63', positivityK: 0, manualThresholdCounts: null }], /k must be at least 0\.5/],
+      [[{ marker: 'CD63', positivityK: 10.5, manualThresholdCounts: null }], /k must be at most 10/],
+      [[{ marker: 'CD63', positivityK: 3.25, manualThresholdCounts: null }], /steps of 0\.1/],
+      [[{ marker: 'CD9', positivityK: 3, manualThresholdCounts: -1 }], /above 0 counts/],
+      [[{ marker: 'CD47', positivityK: 3, manualThresholdCounts: null }], /"CD47" is not in this study's panel \(CD9, CD63, CD81\)/],
+      [[{ marker: 'CD9', positivityK: 4, manualThresholdCounts: null }, { marker: 'CD9', positivityK: 5, manualThresholdCounts: null }], /Each marker may appear once/],
+      [[], /at least one marker/],
+    ] as const) {
+      const res = await put(analyst, markers);
+      expect(res.status).toBe(400);
+      expect((await res.json()).message).toMatch(pattern);
+    }
+    // a valid change from a role that may not make it
+    for (const c of [collaborator, biologist]) {
+      const res = await put(c, [{ marker: 'CD63', positivityK: 5, manualThresholdCounts: null }]);
+      expect(res.status).toBe(403);
+      expect((await relink(c, [fieldId])).status).toBe(403);
+    }
+    expect((await collaborator.fetch(`/api/studies/${studyId}/positivity`)).status).toBe(403);
+    expect(await panelRows()).toEqual(before);
+  });
+
+  it('k = 5 gives a higher derived threshold than k = 3, listed as linked with other settings until linked again', async () => {
+    const run3 = (await currentRun())!;
+    expect(run3.settings.k).toMatchObject({ CD63: 3 });
+    const t3 = (run3.settings.thresholds as Record<string, number>).CD63;
+    const set = await put(analyst, [{ marker: 'CD63', positivityK: 5, manualThresholdCounts: null }]);
+    expect(set.status).toBe(200);
+    const body = await set.json();
+    expect(body.markers.find((m: { marker: string }) => m.marker === 'CD63')).toMatchObject({ positivityK: 5, manualThresholdCounts: null });
+    const listed = body.fieldsLinkedWithOtherSettings.find((f: { id: string }) => f.id === fieldId);
+    expect(listed.markers.map((m: { marker: string }) => m.marker)).toEqual(['CD63']);
+    expect(listed.markers[0].used).toMatchObject({ k: 3, thresholdCounts: t3 });
+    const [entry] = await db.select().from(auditLog).where(and(eq(auditLog.action, 'panel.changed'), eq(auditLog.targetId, studyId))).orderBy(desc(auditLog.id)).limit(1);
+    expect(entry.actorEmail).toBe(DEMO.analyst);
+    expect(entry.details).toMatchObject({ positivity: [{ marker: 'CD63', from: { k: 3, manualThresholdCounts: null }, to: { k: 5, manualThresholdCounts: null } }] });
+
+    const queued = await relink(analyst, [fieldId]);
+    expect(queued.status).toBe(202);
+    expect((await queued.json()).queued).toEqual([fieldId]);
+    const run5 = await waitForNewRun(run3.id);
+    const t5 = (run5.settings.thresholds as Record<string, number>).CD63;
+    expect(run5.settings.k).toMatchObject({ CD9: 3, CD63: 5, CD81: 3 });
+    expect(t5).toBeGreaterThan(t3);
+    const rule = (run5.settings.thresholdRule as Record<string, string>).CD63;
+    expect(rule).toBe((run3.settings.thresholdRule as Record<string, string>).CD63);
+    if (rule === 'background_mean_k_sd') {
+      // the same empty places of the same frame: the thresholds differ by (5 − 3)·SD
+      const ch = (run5.summary as { channels: Record<string, { backgroundMeanCounts: number; backgroundSdCounts: number }> }).channels.CD63;
+      expect(t5).toBeCloseTo(ch.backgroundMeanCounts + 5 * ch.backgroundSdCounts, 6);
+      expect(t5 - t3).toBeCloseTo(2 * ch.backgroundSdCounts, 6);
+    } else {
+      // control samples linked (e.g. after linking.test.ts): mean + 5 SD (n − 1) of their stored CD63 amplitudes
+      expect(rule).toBe('control_mean_k_sd');
+      const { n, mean, sd } = await controlAmplitudes(1);
+      expect(n).toBeGreaterThanOrEqual(10);
+      expect(t5).toBeCloseTo(mean + 5 * sd, 3);
+      expect(t3).toBeCloseTo(mean + 3 * sd, 3);
+    }
+    expect(String(run5.settings.thresholdMethod)).toMatch(/CD63: joint NNLS amplitude \(counts of PSF amplitude\) above mean \+ 5 SD of/);
+    const after = await (await analyst.fetch(`/api/studies/${studyId}/positivity`)).json();
+    expect(after.fieldsLinkedWithOtherSettings.map((f: { id: string }) => f.id)).not.toContain(fieldId);
+  });
+
+  it('a threshold set by hand for CD9 replaces the derived one: positives are exactly the stored amplitudes above it', async () => {
+    const runBefore = (await currentRun())!;
+    const cd9Before = await callsOf(runBefore.id, 0);
+    const cd81Before = await callsOf(runBefore.id, 2);
+    // about the median stored CD9 amplitude; a whole count + 0.5 is exact in the 4-byte column
+    const sorted = [...cd9Before.amplitudes].sort((a, b) => a - b);
+    const manual = Math.round(sorted[Math.floor(sorted.length / 2)]) + 0.5;
+    expect((await put(analyst, [{ marker: 'CD9', positivityK: 3, manualThresholdCounts: manual }])).status).toBe(200);
+    expect((await relink(analyst, [fieldId])).status).toBe(202);
+    const run = await waitForNewRun(runBefore.id);
+    expect(run.settings.thresholdRule).toMatchObject({ CD9: 'manual' });
+    expect(run.settings.thresholds).toMatchObject({ CD9: manual });
+    expect(run.settings.k).toMatchObject({ CD9: null, CD63: 5 });
+    expect(String(run.settings.thresholdMethod)).toMatch(/CD9: joint NNLS amplitude \(counts of PSF amplitude\) above a threshold set by hand/);
+
+    const cd9 = await callsOf(run.id, 0);
+    expect(cd9.amplitudes.length).toBeGreaterThan(20);
+    expect(cd9.positive).toBe(cd9.amplitudes.filter((a) => a > manual).length);
+    expect(cd9.positive).not.toBe(cd9Before.positive);
+    expect((run.summary as { positiveByMarker: Record<string, number> }).positiveByMarker.CD9).toBe(cd9.positive);
+    // the joint fit does not depend on thresholds: CD81 keeps its calls
+    expect((await callsOf(run.id, 2)).positive).toBe(cd81Before.positive);
+  });
+
+  it('an approved field is listed but not linked again: it must be sent back first', async () => {
+    const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    expect((await analyst.json(`/api/fields/${fieldId}/review`, 'POST', { decision: 'approved', comment: '', expectedVersion: f.version })).status).toBe(200);
+    const set = await (await put(analyst, [{ marker: 'CD63', positivityK: 4.5, manualThresholdCounts: null }])).json();
+    expect(set.fieldsLinkedWithOtherSettings.find((x: { id: string }) => x.id === fieldId)).toMatchObject({ status: 'approved' });
+    const res = await relink(analyst, [fieldId]);
+    expect(res.status).toBe(409);
+    expect((await res.json()).message).toMatch(/approved: send it back before linking again/);
+    const g = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
+    expect((await analyst.json(`/api/fields/${fieldId}/review`, 'POST', { decision: 'sent_back', comment: 'positivity settings changed', expectedVersion: g.version })).status).toBe(200);
+  });
+
+  it('with a control sample linked, k applies to mean + k SD of the control vesicles\' amplitudes; a hand-set threshold still wins', async () => {
+    const iso = DEMO_FIELDS.find((f) => f.code === 'HCP-ISO')!;
+    const isoTruth = makeDemoPair({ seed: iso.seed, positiveFractions: iso.positiveFractions });
+    const isoId = await demoField(iso.code);
+    const isoField = (await (await analyst.fetch(`/api/fields/${isoId}`)).json()).field;
+    if (!['linked', 'approved'].includes(isoField.status)) {
+      const pairs = isoTruth.truth.filter((t) => t.kind === 'bead').map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(isoTruth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
+      const versions = (await (await analyst.fetch(`/api/fields/${isoId}/registration`)).json()).versions;
+      if (!versions.length) expect((await analyst.json(`/api/fields/${isoId}/registration`, 'POST', { basedOnVersion: 0, pairs })).status).toBe(201);
+      expect((await analyst.fetch(`/api/fields/${isoId}/link`, { method: 'POST' })).status).toBe(202);
+      const until = Date.now() + 120_000;
+      while ((await (await analyst.fetch(`/api/fields/${isoId}`)).json()).field.status !== 'linked') {
+        if (Date.now() > until) throw new Error('the control field was not linked');
+        await new Promise((r) => setTimeout(r, 500));
+      }
+    }
+    // HCP-001 was sent back: the field's own link route links it again (CD63 k = 4.5, CD9 set by hand)
+    const before = (await currentRun())!;
+    expect((await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status).toBe(202);
+    const run = await waitForNewRun(before.id);
+    const { n, mean, sd } = await controlAmplitudes(1);
+    expect(n).toBeGreaterThanOrEqual(10);
+    expect(run.settings.thresholdRule).toMatchObject({ CD9: 'manual', CD63: 'control_mean_k_sd', CD81: 'control_mean_k_sd' });
+    expect(run.settings.k).toMatchObject({ CD9: null, CD63: 4.5, CD81: 3 });
+    expect((run.settings.thresholds as Record<string, number>).CD63).toBeCloseTo(mean + 4.5 * sd, 3);
+    expect(run.settings.nbThresholdValues).toMatchObject({ CD63: n });
+    expect(String(run.settings.thresholdMethod)).toContain(`CD63: joint NNLS amplitude (counts of PSF amplitude) above mean + 4.5 SD of the joint amplitudes of ${n} control-sample vesicles`);
+  });
+});
