@@ -97,7 +97,7 @@ export async function deleteOlderThan(st: Storage, prefix: string, olderThan: Da
 
 /**
  * The next-level "folders" under `prefix` that hold at least one object, in key order: for 'fields/'
- * these are 'fields/<id>/'. One ListObjectsV2 request per folder: each asks for the first key after
+ * these are 'fields/<id>/'. One listing request per folder: each asks for the first key after
  * the folder just found (StartAfter), so the objects inside a folder are never listed.
  * Why not Delimiter '/': s3rver, the embedded store, omits folders whose objects all sit deeper than
  * one level (fields/<id>/raw/<file>.tif only, exactly what an interrupted field creation leaves).
