@@ -66,9 +66,21 @@ describe('detection settings on the field page', () => {
     // the page reloads into the running job (the status card's progress bar), then into the result
     await page.waitForEvent('load', { timeout: 20_000 });
     await processed();
-    await page.reload();
+    // the status card reloads the page itself once the job is done: wait for that page, not a reload of our own
+    // (which the card's reload would abort)
+    let after = '';
+    const until = Date.now() + 30_000;
+    while (!after.includes("analyst's") && Date.now() < until) {
+      try {
+        await page.waitForLoadState('load');
+        after = (await page.getByTestId('detection-settings').textContent({ timeout: 2000 })) ?? '';
+      } catch {
+        after = ''; // the page was navigating
+      }
+      if (!after.includes("analyst's")) await page.waitForTimeout(500);
+    }
     await islandsReady(page);
-    const after = (await page.getByTestId('detection-settings').textContent())!;
+    after = (await page.getByTestId('detection-settings').textContent())!;
     expect(after).toContain("analyst's");
     expect(after).toContain('150 nm');
     expect(after).toContain(`${BEAD_FIELD.nbBeads} fiducial candidates`);

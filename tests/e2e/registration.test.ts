@@ -11,7 +11,7 @@ import { APP_URL, AppClient, signedIn } from '../support/client';
 import { waitForMail, linkIn } from '../support/mailSink';
 import { DEMO_STUDY_NAME } from '../../scripts/seed';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
-import { demoField } from '../support/demoField';
+import { ownDemoField } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine } from '../../src/lib/analysis/geometry';
@@ -23,7 +23,8 @@ let fieldId: string;
 const secondAnalyst = { email: `analyst-two-${Date.now()}@lab.example`, password: 'second-analyst-pw-42' };
 beforeAll(async () => {
   browser = await launch();
-  fieldId = await demoField('HCP-001');
+  // a copy of HCP-001's field of its own: other tests register and release the seeded one
+  fieldId = await ownDemoField('HCP-001', 'REG');
   const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
   expect((await admin.json('/api/admin/invitations', 'POST', { email: secondAnalyst.email, name: 'Second Analyst', role: 'analyst' })).status).toBe(201);
   const { token } = linkIn((await waitForMail(secondAnalyst.email, 'invitation')).text);

@@ -6,13 +6,13 @@
  */
 import { describe, it, expect, beforeAll } from 'vitest';
 import { readFileSync } from 'node:fs';
-import { and, eq, inArray } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import { AppClient, signedIn } from '../support/client';
 import { DEMO, DEMO_PASSWORD, type DemoRole } from '../support/demo';
 import { ROUTES, type RouteSpec } from '../support/routes';
 import { createDb } from '../../src/lib/db/client';
 import { samples, fields, users } from '../../src/lib/db/schema';
-import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
+import { ownDemoField } from '../support/demoField';
 
 const bodyRoutes = ROUTES.filter((r) => r.body !== undefined);
 /** Routes whose handler reads the body as JSON (the others ignore a body). */
@@ -60,16 +60,10 @@ beforeAll(async () => {
   clients.anonymous = new AppClient();
   for (const role of ['admin', 'biologist'] as const) clients[role] = await signedIn(DEMO[role], DEMO_PASSWORD);
   const db = createDb(process.env.DATABASE_URL!, 2);
-  // a processed field, so routes that need one judge the body rather than answer 409 not_ready
-  let f: typeof fields.$inferSelect | undefined;
-  const until = Date.now() + 90_000;
-  while (!f && Date.now() < until) {
-    // one of the seeded demo fields: other test files add fields of their own (a bead scene that cannot be paired, say)
-    [f] = (await db.select({ field: fields }).from(fields).innerJoin(samples, eq(samples.id, fields.sampleId))
-      .where(and(eq(fields.status, 'ready'), eq(fields.name, 'grid A1'), inArray(samples.code, DEMO_FIELDS.map((d) => d.code)))).limit(1)).map((r) => r.field);
-    if (!f) await new Promise((r) => setTimeout(r, 1000));
-  }
-  if (!f) throw new Error('no processed demo field within 90 s');
+  // a processed field of its own, so routes that need one judge the body rather than answer 409 not_ready
+  // (the seeded ones are registered, linked or released by other tests in any order)
+  const fieldId = await ownDemoField('HCP-001', 'BADREQ');
+  const [f] = await db.select().from(fields).where(eq(fields.id, fieldId));
   const [s] = await db.select().from(samples).where(eq(samples.id, f.sampleId));
   const [u] = await db.select().from(users).where(eq(users.email, DEMO.collaborator));
   ids = { study: s.studyId, sample: s.id, field: f.id, user: u.id };

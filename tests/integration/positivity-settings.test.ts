@@ -7,7 +7,7 @@ import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { and, desc, eq, ne } from 'drizzle-orm';
 import { signedIn, type AppClient } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
-import { demoField } from '../support/demoField';
+import { ownDemoField, ownStudy } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine } from '../../src/lib/analysis/geometry';
@@ -72,8 +72,9 @@ beforeAll(async () => {
   collaborator = await signedIn(DEMO.collaborator, DEMO_PASSWORD);
   biologist = await signedIn(DEMO.biologist, DEMO_PASSWORD);
   db = createDb(process.env.DATABASE_URL!, 2);
-  fieldId = await demoField(spec.code);
-  [{ studyId }] = await db.select({ studyId: samples.studyId }).from(samples).where(eq(samples.code, spec.code));
+  // a study of its own (the demo panel and members): its thresholds change here while other files link the demo study
+  studyId = await ownStudy('Positivity settings test');
+  fieldId = await ownDemoField(spec.code, 'POS', 120_000, studyId);
   const status = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field.status;
   if (status === 'approved') {
     const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
@@ -89,12 +90,8 @@ beforeAll(async () => {
 }, 240_000);
 
 afterAll(async () => {
-  // leave the demo study's panel and this field as other test files expect them: k = 3, derived thresholds
-  await db.update(markerChannels).set({ positivityK: 3, manualThresholdCounts: null }).where(eq(markerChannels.studyId, studyId));
-  const run = await currentRun();
-  if (run && (await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status === 202) await waitForNewRun(run.id);
   await db.$client.end();
-}, 180_000);
+});
 
 describe('positivity settings per marker', () => {
   it('refuses bad input with 400 and changes nothing; collaborators and biologists get 403', async () => {
@@ -203,7 +200,7 @@ describe('positivity settings per marker', () => {
   it('with a control sample linked, k applies to mean + k SD of the control vesicles\' amplitudes; a hand-set threshold still wins', async () => {
     const iso = DEMO_FIELDS.find((f) => f.code === 'HCP-ISO')!;
     const isoTruth = makeDemoPair({ seed: iso.seed, positiveFractions: iso.positiveFractions });
-    const isoId = await demoField(iso.code);
+    const isoId = await ownDemoField(iso.code, 'POS-ISO', 120_000, studyId);
     const isoField = (await (await analyst.fetch(`/api/fields/${isoId}`)).json()).field;
     if (!['linked', 'approved'].includes(isoField.status)) {
       const pairs = isoTruth.truth.filter((t) => t.kind === 'bead').map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(isoTruth.flFromAfm, { x: b.xPx, y: b.yPx }) }));

@@ -46,8 +46,9 @@ describe('decodeInWorker (worker_threads sandbox)', () => {
 
   describe('thread reuse', () => {
     const small = () => writeTiff([{ data: [1, 2, 3, 4, 5, 6], width: 3, height: 2 }], { bitsPerSample: 16, sampleFormat: 'uint', compression: 'deflate' });
-    // 1024 × 1024 deflate takes far longer than 30 ms to inflate and convert: a stand-in for a file that hangs
-    const slow = () => writeTiff([{ data: new Array(1024 * 1024).fill(3), width: 1024, height: 1024 }], { bitsPerSample: 16, sampleFormat: 'uint', compression: 'deflate' });
+    // 4096 × 4096 deflate takes about 0.4 s to inflate and convert here (measured; 1024² took 26–51 ms, too close to
+    // a short timeout on a faster machine): against a 20 ms timeout, a stand-in for a file that hangs
+    const slow = () => writeTiff([{ data: new Uint16Array(4096 * 4096).fill(3), width: 4096, height: 4096 }], { bitsPerSample: 16, sampleFormat: 'uint', compression: 'deflate' });
     // 2048 × 2048 float64 through inflate with a 2 MiB heap: V8 stops the thread (as in the test above)
     const oom = () => writeTiff([{ data: new Float64Array(2048 * 2048), width: 2048, height: 2048 }], { bitsPerSample: 64, sampleFormat: 'float', compression: 'deflate' });
 
@@ -68,7 +69,7 @@ describe('decodeInWorker (worker_threads sandbox)', () => {
       await decodeInWorker(small(), {}, { maxHeapMb: 302 }); // one idle thread of this kind
       const s0 = decodeThreadStats();
       const [hung, beside] = await Promise.allSettled([
-        decodeInWorker(slow(), {}, { maxHeapMb: 302, timeoutMs: 30 }),
+        decodeInWorker(slow(), {}, { maxHeapMb: 302, timeoutMs: 20 }),
         decodeInWorker(small(), {}, { maxHeapMb: 302, timeoutMs: 5000 }),
       ]);
       expect(hung.status).toBe('rejected');
