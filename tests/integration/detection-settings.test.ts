@@ -11,7 +11,7 @@ import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { BEAD_FIELD, beadFluorescence, beadScene, insertBeadField } from '../support/beadField';
 import { applyAffine } from '../../src/lib/analysis/geometry';
 import { createDb, type Db } from '../../src/lib/db/client';
-import { fields, samples } from '../../src/lib/db/schema';
+import { fields, linkRuns, samples } from '../../src/lib/db/schema';
 import type { FieldDetection } from '../../src/lib/jobs/detectionTypes';
 import type { DetectionSettings } from '../../src/lib/schemas/detectionSettings';
 
@@ -175,7 +175,11 @@ describe('detection settings of a field', () => {
     const save = await analyst.json(`/api/fields/${fieldId}/registration`, 'POST', { basedOnVersion: 0, pairs });
     expect(save.status).toBe(201);
     expect((await row()).status).toBe('registered');
+    // a link run of the old vesicles (as the linking job leaves it): no longer current once detection changes
+    const [run] = await db.insert(linkRuns).values({ fieldId, settings: {}, summary: {}, current: true }).returning();
     const d = await detectAgain(null);
+    const [runAfter] = await db.select().from(linkRuns).where(eq(linkRuns.id, run.id));
+    expect(runAfter.current).toBe(false);
     expect(await processed()).toBe('registered');
     expect((await row()).detectionSettings).toBeNull();
     expect(d.settings?.source).toBe('defaults');

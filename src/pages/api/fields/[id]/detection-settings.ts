@@ -4,7 +4,7 @@ import { handle } from '../../../../lib/http/respond';
 import { parseJson, parseParams, IdParam } from '../../../../lib/http/parse';
 import { conflict, HttpError } from '../../../../lib/http/errors';
 import { getDb } from '../../../../lib/db/client';
-import { fields } from '../../../../lib/db/schema';
+import { fields, linkRuns } from '../../../../lib/db/schema';
 import { requireFieldAction } from '../../../../lib/auth/fieldAccess';
 import { enqueueIngest } from '../../../../lib/jobs/enqueue';
 import { DetectionSettingsRequest } from '../../../../lib/schemas/detectionSettings';
@@ -16,7 +16,8 @@ const REDETECTABLE = ['ready', 'registered', 'linked', 'failed'] as const;
 
 /**
  * Saves a field's vesicle-detection settings (null = automatic defaults) and queues its ingestion again
- * (analysts). The job ends "registered" when the field has a registration, else "ready": linking must be re-run.
+ * (analysts). The job ends "registered" when the field has a registration, else "ready": linking must be re-run,
+ * and the field's current link run stops being current at once.
  */
 export const PUT = handle(async (ctx) => {
   const { id } = parseParams(ctx.params, IdParam);
@@ -32,6 +33,9 @@ export const PUT = handle(async (ctx) => {
     ))
     .returning({ version: fields.version });
   if (!row) throw await whyRefused(id, body.expectedVersion);
+  // the vesicles change, so the field's linking no longer describes them: it stops being current (the rows stay,
+  // and a release keeps its own) until linking is run again
+  await db.update(linkRuns).set({ current: false }).where(and(eq(linkRuns.fieldId, id), eq(linkRuns.current, true)));
   await enqueueIngest(id);
   await audit(db, {
     action: 'field.detection_changed', actorId: user.id, actorEmail: user.email, targetType: 'field', targetId: id, ip: clientAddress(ctx),
