@@ -9,6 +9,7 @@ import { config } from '../config';
 import { fields, samples, users, studyMembers } from '../db/schema';
 import { send } from '../mail';
 import { ImagingError } from '../imaging';
+import { jobDecodeLimits } from './decodeStoredFile';
 
 async function notifyFieldReady(fieldId: string) {
   const db = await getDb();
@@ -58,7 +59,7 @@ export function isFinalFailure(error: unknown, job: { retryCount: number; retryL
 /** Registers the worker's job handlers. */
 export async function registerHandlers(boss: PgBoss) {
   const c = config();
-  const decodeLimits = { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES };
+  const decodeLimits = jobDecodeLimits(c);
   await boss.work<{ fieldId: string }>(QUEUES.linkField, { batchSize: 1 }, async ([job]) => {
     const started = Date.now();
     try {

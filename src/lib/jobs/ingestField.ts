@@ -7,9 +7,10 @@ import { eq, asc, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { fields, fieldFiles, tileSets, samples, markerChannels, registrations } from '../db/schema';
 import type { Storage } from '../storage/client';
-import { getBytes, putBytes } from '../storage/objects';
+import { putBytes } from '../storage/objects';
 import { detectionKey, tilePrefix } from '../storage/keys';
-import { decodeInWorker, ImagingError } from '../imaging';
+import { ImagingError } from '../imaging';
+import { decodeStoredFile, type DecodeLimits } from './decodeStoredFile';
 import { analyzeHeightMap } from '../analysis/heightmap';
 import { correctBackground, detectSpots, psfSigmaPx } from '../analysis/fluorescence';
 import type { Raster } from '../analysis/types';
@@ -19,7 +20,7 @@ import { setFieldProgress, failField } from './progress';
 import type { FieldDetection } from './detectionTypes';
 import { DetectionSettings, DEFAULT_MIN_AREA_PX, defaultDetectionSettings, detectionOptions } from '../schemas/detectionSettings';
 
-export interface IngestDeps { db: Db; st: Storage; decodeLimits: { maxFileBytes: number; maxPixels: number; maxDecodedBytes: number } }
+export interface IngestDeps { db: Db; st: Storage; decodeLimits: DecodeLimits }
 
 /** Thrown for a problem with the data itself: the job fails at once, without retries. */
 export class PermanentJobError extends Error {}
@@ -36,7 +37,7 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
   try {
     await db.update(fields).set({ status: 'ingesting', failureReason: null }).where(eq(fields.id, fieldId));
     await progress('reading files', 0.02);
-    const decode = async (key: string) => decodeInWorker(await getBytes(st, key), deps.decodeLimits, { timeoutMs: 120_000, maxHeapMb: 4096 });
+    const decode = (key: string) => decodeStoredFile(st, key, deps.decodeLimits);
     const topoFile = files.find((f) => f.kind === 'topography');
     if (!topoFile) throw new PermanentJobError('The field has no height map file.');
     const topo = await decode(topoFile.objectKey);

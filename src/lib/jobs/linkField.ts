@@ -9,8 +9,7 @@ import { asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { fields, fieldFiles, samples, markerChannels, registrations, linkRuns, vesicles, releases } from '../db/schema';
 import type { Storage } from '../storage/client';
-import { getBytes } from '../storage/objects';
-import { decodeInWorker } from '../imaging';
+import { decodeStoredFile } from './decodeStoredFile';
 import { analyzeField, fieldStages, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type FieldStage } from '../analysis/pipeline';
 import type { Affine } from '../analysis/types';
 import { summariseLinkRun } from '../db/queries/linkRunSummaries';
@@ -34,7 +33,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     if (!reg) throw new PermanentJobError('The field has no saved registration: register it before linking.');
     const files = await db.select().from(fieldFiles).where(eq(fieldFiles.fieldId, fieldId)).orderBy(asc(fieldFiles.channelIndex));
     await progress('reading files', 0.02);
-    const decode = async (key: string) => decodeInWorker(await getBytes(st, key), deps.decodeLimits, { timeoutMs: 120_000, maxHeapMb: 4096 });
+    const decode = (key: string) => decodeStoredFile(st, key, deps.decodeLimits);
     const topo = await decode(files.find((f) => f.kind === 'topography')!.objectKey);
     const frames = [];
     for (const f of files.filter((x) => x.kind === 'fluorescence')) frames.push(...(await decode(f.objectKey)).pages);

@@ -168,6 +168,20 @@ export type FieldRemoval =
   | { ok: false; reason: 'stale'; name: string; version: number }
   | { ok: false; reason: 'released'; name: string; releaseVersions: number[] };
 
+/** Anything with pg's `query(text, params)`: the pool, or a client inside a transaction. */
+interface Queryable { query(text: string, params: unknown[]): Promise<{ rows: unknown[] }> }
+
+/** Versions of the releases (of the field's own sample) that hold one of the field's link runs, ascending. */
+export async function fieldReleaseVersions(q: Queryable, fieldId: string): Promise<number[]> {
+  const { rows } = await q.query(
+    `select r.version from releases r join fields f on f.sample_id = r.sample_id
+      where f.id = $1 and r.link_run_ids ?| array(select lr.id::text from link_runs lr where lr.field_id = $1)
+      order by r.version`,
+    [fieldId],
+  );
+  return (rows as { version: number }[]).map((r) => r.version);
+}
+
 /**
  * Removes a field and, by cascade, its files, tiles, registrations, link runs, vesicles and reviews, in one
  * transaction. Refused for an approved field, for one being ingested (the job would write tiles after the
@@ -190,14 +204,8 @@ export async function removeField(db: Db, fieldId: string, expectedVersion: numb
       if (field.version !== expectedVersion) return { ok: false, reason: 'stale', name: field.name, version: field.version };
       if (field.status === 'approved') return { ok: false, reason: 'approved', name: field.name };
       if (field.status === 'ingesting') return { ok: false, reason: 'processing', name: field.name };
-      const released = await one<{ version: number }>(
-        `select r.version from releases r
-          where r.sample_id = $2
-            and r.link_run_ids ?| array(select lr.id::text from link_runs lr where lr.field_id = $1)
-          order by r.version`,
-        [fieldId, field.sampleId],
-      );
-      if (released.length) return { ok: false, reason: 'released', name: field.name, releaseVersions: released.map((r) => r.version) };
+      const released = await fieldReleaseVersions(client, fieldId);
+      if (released.length) return { ok: false, reason: 'released', name: field.name, releaseVersions: released };
       const files = await one<{ objectKey: string }>(`select object_key as "objectKey" from field_files where field_id = $1`, [fieldId]);
       await one(`delete from fields where id = $1`, [fieldId]);
       return { ok: true, field, objectKeys: files.map((f) => f.objectKey) };

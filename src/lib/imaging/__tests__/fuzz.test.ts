@@ -3,7 +3,7 @@
 // FUZZ_CASES=50000 (50,000 in process, 25,000 through the worker) npx vitest run --project unit src/lib/imaging/__tests__/fuzz.test.ts  for a long run.
 import { describe, expect, it } from 'vitest';
 import { decodeInWorker, decodeThreadStats } from '../decodeInWorker';
-import { config } from '../../config';
+import { JOB_DECODE_OPTIONS, jobDecodeLimits } from '../../jobs/decodeStoredFile';
 import { decodeTiff, ImagingError, inspectTiff } from '../decodeWorker.mjs';
 import { baseFiles, mutate, prng } from './fuzzCases';
 
@@ -48,12 +48,9 @@ describe('fuzz: mutated TIFF files decode or fail with ImagingError only', () =>
     expect(Object.keys(outcomes).length).toBeGreaterThanOrEqual(5);
   }, testTimeout(NB_CASES));
 
-  // The ingestion and linking jobs' decode call (src/lib/jobs/ingestField.ts, linkField.ts):
-  // decodeInWorker(bytes, decodeLimits, { timeoutMs: 120_000, maxHeapMb: 4096 }), with decodeLimits
-  // built from the configuration as in src/lib/jobs/handlers.ts.
-  const c = config();
-  const JOB_LIMITS = { maxFileBytes: c.MAX_UPLOAD_BYTES, maxPixels: c.MAX_IMAGE_PIXELS, maxDecodedBytes: c.MAX_DECODED_BYTES };
-  const JOB_OPTIONS = { timeoutMs: 120_000, maxHeapMb: 4096 };
+  // The ingestion and linking jobs' decode call (src/lib/jobs/decodeStoredFile.ts), without the bucket fetch.
+  const JOB_LIMITS = jobDecodeLimits();
+  const JOB_OPTIONS = JOB_DECODE_OPTIONS;
 
   it(`${NB_WORKER_CASES} cases through the ingestion job's decodeInWorker call`, async () => {
     const failures: string[] = [];

@@ -1,12 +1,10 @@
 import type { APIRoute } from 'astro';
-import { eq, sql } from 'drizzle-orm';
 import { handle } from '../../../../lib/http/respond';
 import { parseParams, IdParam } from '../../../../lib/http/parse';
 import { HttpError } from '../../../../lib/http/errors';
 import { getDb } from '../../../../lib/db/client';
-import { fields } from '../../../../lib/db/schema';
 import { requireFieldAction } from '../../../../lib/auth/fieldAccess';
-import { enqueueLink } from '../../../../lib/jobs/enqueue';
+import { queueLinking } from '../../../../lib/jobs/enqueue';
 
 /** Queues linking of a registered field (analysts); progress shows on the field. */
 export const POST = handle(async (ctx) => {
@@ -16,7 +14,6 @@ export const POST = handle(async (ctx) => {
   if (!['registered', 'linked'].includes(field.status)) {
     throw new HttpError(409, 'not_registered', field.status === 'approved' ? 'This field is approved; send it back before linking again.' : 'Save a registration for this field before linking it.');
   }
-  await db.update(fields).set({ progress: { stage: 'linking: queued', fraction: 0 }, failureReason: null, updatedAt: sql`now()` }).where(eq(fields.id, id));
-  await enqueueLink(id);
+  await queueLinking(db, [id]);
   return Response.json({ id, queued: true }, { status: 202 });
 }) satisfies APIRoute;

@@ -1,12 +1,12 @@
 import type { APIRoute } from 'astro';
-import { and, eq, inArray, sql } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import { handle } from '../../../../lib/http/respond';
 import { parseJson, parseParams, IdParam } from '../../../../lib/http/parse';
 import { conflict, HttpError } from '../../../../lib/http/errors';
 import { requireStudyAction } from '../../../../lib/auth/session';
 import { getDb } from '../../../../lib/db/client';
 import { fields, samples } from '../../../../lib/db/schema';
-import { enqueueLink } from '../../../../lib/jobs/enqueue';
+import { queueLinking } from '../../../../lib/jobs/enqueue';
 import { RelinkRequest } from '../../../../lib/schemas/positivity';
 
 /**
@@ -29,7 +29,6 @@ export const POST = handle(async (ctx) => {
     else skipped.push({ id: f.id, name: f.name, reason: f.status === 'approved' ? 'approved: send it back before linking again' : `not linked (status ${f.status})` });
   }
   if (!queued.length) throw conflict(`None of the fields can be linked again: ${skipped.map((s) => `${s.name} is ${s.reason}`).join('; ')}.`);
-  await db.update(fields).set({ progress: { stage: 'linking: queued', fraction: 0 }, failureReason: null, updatedAt: sql`now()` }).where(inArray(fields.id, queued));
-  for (const f of queued) await enqueueLink(f);
+  await queueLinking(db, queued);
   return Response.json({ queued, skipped }, { status: 202 });
 }) satisfies APIRoute;
