@@ -7,6 +7,7 @@ declare module 'jstat' {
       inv(p: number, mean: number, sd: number): number;
     };
     chisquare: { cdf(x: number, dof: number): number };
+    studentt: { cdf(x: number, dof: number): number; inv(p: number, dof: number): number };
     gammaln(x: number): number;
   }
   const jstat: { jStat: JStatStatic };

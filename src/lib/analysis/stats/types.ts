@@ -3,3 +3,9 @@ export type Table2x2 = readonly [readonly [number, number], readonly [number, nu
 
 /** Direction of a test. 'greater' asks whether the first group / first sample tends to be larger. */
 export type Alternative = 'two-sided' | 'greater' | 'less';
+
+/** Positive and total vesicles of one cluster (a field) or one sample (counts). */
+export interface FieldCount {
+  readonly positive: number;
+  readonly total: number;
+}
