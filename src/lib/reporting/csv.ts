@@ -1,25 +1,19 @@
-/** CSV writing for exports: RFC 4180 quoting plus a guard against spreadsheet formula injection. */
+/** CSV helpers of the reports; all writing goes through the one writer in lib/csv (formula-escaping, RFC 4180). */
+import { writeCsv, RESEARCH_USE_COMMENT, type CsvCell } from '../csv';
 
 /** First line of every export. */
-export const RESEARCH_USE_LINE = '# Research use only. Not for diagnosis or treatment decisions.';
+export const RESEARCH_USE_LINE = `# ${RESEARCH_USE_COMMENT}`;
 
-export type CsvValue = string | number | boolean | null | undefined;
+export type CsvValue = CsvCell;
 
 /**
- * One CSV cell. Numbers are written as is (NaN/±∞ and null → empty); text that a spreadsheet would
- * run as a formula (starts with = + - @ or a tab) gets a leading apostrophe (common practice, OWASP
- * "CSV injection"); text with a comma, quote or line break is quoted.
+ * One CSV cell (see {@link writeCsv}: formula-like text gets a leading apostrophe, numbers stay numbers).
  *
  * @param value - the cell value
  * @returns the encoded cell
  */
 export function csvCell(value: CsvValue): string {
-  if (value === null || value === undefined) return '';
-  if (typeof value === 'number') return Number.isFinite(value) ? String(value) : '';
-  if (typeof value === 'boolean') return value ? '1' : '0';
-  let s = value;
-  if (/^[=+\-@\t\r]/.test(s)) s = `'${s}`;
-  return /[",\r\n]/.test(s) ? `"${s.replaceAll('"', '""')}"` : s;
+  return writeCsv({ rows: [[value]], lineEnding: '\n' }).slice(0, -1);
 }
 
 /**
@@ -29,7 +23,17 @@ export function csvCell(value: CsvValue): string {
  * @returns the encoded line
  */
 export function csvRow(values: readonly CsvValue[]): string {
-  return values.map(csvCell).join(',') + '\r\n';
+  return writeCsv({ rows: [values] });
+}
+
+/**
+ * `# ` comment lines (each with its CRLF), escaped by the writer.
+ *
+ * @param comments - the comment texts
+ * @returns the encoded lines
+ */
+export function csvComments(comments: readonly string[]): string {
+  return writeCsv({ comments });
 }
 
 /**

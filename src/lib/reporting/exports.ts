@@ -1,5 +1,6 @@
 /** Builders of the CSV exports (pure: result objects in, CSV text out). */
-import { csvRow, RESEARCH_USE_LINE } from './csv';
+import { csvComments, csvRow } from './csv';
+import { RESEARCH_USE_COMMENT } from '../csv';
 import type { SampleResults, StudyComparison } from './types';
 
 /**
@@ -11,7 +12,10 @@ import type { SampleResults, StudyComparison } from './types';
  */
 export function sampleSummaryCsv(r: SampleResults): string {
   const release = r.release ? `release v${r.release.version} of ${r.release.releasedAt}` : 'unreleased preview of the current analysis';
-  let out = `${RESEARCH_USE_LINE}\r\n# Sample ${r.sample.code} (${r.sample.groupLabel || 'no group'}), ${release}; ${r.fieldsAnalysed} field(s), ${r.vesicles} vesicles; median diameter ${r.diameter.medianNm?.toFixed(1) ?? '-'} nm, median height ${r.height.medianNm?.toFixed(1) ?? '-'} nm\r\n`;
+  let out = csvComments([
+    RESEARCH_USE_COMMENT,
+    `Sample ${r.sample.code} (${r.sample.groupLabel || 'no group'}), ${release}; ${r.fieldsAnalysed} field(s), ${r.vesicles} vesicles; median diameter ${r.diameter.medianNm?.toFixed(1) ?? '-'} nm, median height ${r.height.medianNm?.toFixed(1) ?? '-'} nm`,
+  ]);
   out += csvRow(['sample_code', 'group_label', 'release_version', 'row_kind', 'item', 'vesicles_count', 'count', 'fraction', 'wilson95_lower', 'wilson95_upper']);
   const version = r.release?.version ?? null;
   for (const m of r.markers) {
@@ -31,7 +35,10 @@ export function sampleSummaryCsv(r: SampleResults): string {
  * @returns the CSV text, starting with the research-use-only line
  */
 export function comparisonCsv(c: StudyComparison): string {
-  let out = `${RESEARCH_USE_LINE}\r\n# Study ${c.study.name}; ${c.source === 'released' ? 'latest release of each sample' : 'unreleased preview'}; vesicles pooled per group, tests treat vesicles as independent\r\n`;
+  let out = csvComments([
+    RESEARCH_USE_COMMENT,
+    `Study ${c.study.name}; ${c.source === 'released' ? 'latest release of each sample' : 'unreleased preview'}; vesicles pooled per group, tests treat vesicles as independent`,
+  ]);
   out += csvRow(['row_kind', 'group_label', 'sample_code', 'marker', 'vesicles_count', 'positive_count', 'fraction', 'ci95_lower', 'ci95_upper', 'test', 'p_value', 'p_adjusted_bh']);
   for (const s of c.samples) {
     for (const m of s.markers) out += csvRow(['sample', s.groupLabel, s.code, m.marker, m.total, m.count, m.fraction, m.lower, m.upper, '', '', '']);
@@ -54,7 +61,7 @@ export function comparisonCsv(c: StudyComparison): string {
  */
 export function sampleVesicleCsvHeader(markers: readonly string[]): string {
   const safe = markers.map((m) => m.replace(/[^A-Za-z0-9]+/g, '_'));
-  return RESEARCH_USE_LINE + '\r\n' + csvRow([
+  return csvComments([RESEARCH_USE_COMMENT]) + csvRow([
     'sample_code', 'field_id', 'link_run_id', 'vesicle_index', 'height_nm', 'diameter_nm', 'area_nm2', 'volume_nm3',
     ...safe.map((m) => `${m}_intensity`), ...safe,
   ]);

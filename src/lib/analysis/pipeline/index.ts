@@ -4,5 +4,5 @@ export { mergeSpots } from './mergeSpots';
 export { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from './opticsDefaults';
 export { parseFiducialCsv } from './parseFiducialCsv';
 export { refineFiducialPairs, type RefineFiducialPairsOptions } from './refineFiducialPairs';
-export { vesicleCsv, vesicleCsvHeader, vesicleCsvRow } from './vesicleCsv';
+export { vesicleCsv, vesicleCsvColumns, vesicleCsvCells, type VesicleCsvCell } from './vesicleCsv';
 export type * from './types';

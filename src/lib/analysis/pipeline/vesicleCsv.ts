@@ -20,35 +20,50 @@ const GEOMETRY_COLUMNS = [
  * @see RFC 4180 (quoting of fields that hold commas, quotes or line breaks)
  */
 export function vesicleCsv(records: readonly VesicleRecord[], markers: readonly string[]): string {
-  const lines = [vesicleCsvHeader(markers)];
-  for (const r of records) lines.push(vesicleCsvRow(r, markers));
+  const lines = [vesicleCsvColumns(markers).map(csvField).join(',')];
+  for (const r of records) lines.push(vesicleCsvCells(r, markers).map(cellText).join(','));
   return `${lines.join('\n')}\n`;
 }
 
 /**
- * The header line of {@link vesicleCsv}, with `extra` columns appended (the web export adds the
- * field, sample and transform identifiers). No line break.
+ * Column names of {@link vesicleCsv}, with `extra` columns appended (the web export adds the field,
+ * sample and transform identifiers). Hand them to the product's CSV writer (lib/csv writeCsv), which
+ * escapes formula-like names such as a marker called `+1-1`.
  */
-export function vesicleCsvHeader(markers: readonly string[], extra: readonly string[] = []): string {
-  return [...GEOMETRY_COLUMNS, ...markers.flatMap((m) => [`${m}_intensity`, `${m}_snr`, `${m}_amplitude_counts`, m]), 'out_of_frame', 'phenotype', ...extra].map(csvField).join(',');
+export function vesicleCsvColumns(markers: readonly string[], extra: readonly string[] = []): string[] {
+  return [...GEOMETRY_COLUMNS, ...markers.flatMap((m) => [`${m}_intensity`, `${m}_snr`, `${m}_amplitude_counts`, m]), 'out_of_frame', 'phenotype', ...extra];
 }
 
-/** One data line of {@link vesicleCsv} (no line break), with `extra` values appended. */
-export function vesicleCsvRow(r: VesicleRecord, markers: readonly string[], extra: readonly string[] = []): string {
-  const cells = [
-    fixed(r.xAfmPx, 3), fixed(r.yAfmPx, 3), fixed(r.xFlPx, 3), fixed(r.yFlPx, 3),
-    fixed(r.heightNm, 2), fixed(r.diameterNm, 2), fixed(r.volumeNm3, 0), fixed(r.areaNm2, 0), fixed(r.circularity, 3),
+/**
+ * The cells of one vesicle for {@link vesicleCsvColumns}: numbers as `{ value, digits }` (fixed decimals,
+ * the shape lib/csv writeCsv prints), text as strings, null for empty; `extra` values appended.
+ */
+export function vesicleCsvCells(r: VesicleRecord, markers: readonly string[], extra: readonly string[] = []): VesicleCsvCell[] {
+  const cells: VesicleCsvCell[] = [
+    f(r.xAfmPx, 3), f(r.yAfmPx, 3), f(r.xFlPx, 3), f(r.yFlPx, 3),
+    f(r.heightNm, 2), f(r.diameterNm, 2), f(r.volumeNm3, 0), f(r.areaNm2, 0), f(r.circularity, 3),
   ];
   for (const m of markers) {
     const call = r.markers[m];
     if (!call) throw new RangeError(`record ${r.index} has no call for marker ${m}`);
-    cells.push(call.intensityCounts === null ? '' : fixed(call.intensityCounts, 1));
-    cells.push(call.intensitySnr === null ? '' : fixed(call.intensitySnr, 2));
-    cells.push(call.amplitudeCounts === null ? '' : fixed(call.amplitudeCounts, 1));
-    cells.push(call.positive === null ? '' : call.positive ? '1' : '0');
+    cells.push(call.intensityCounts === null ? null : f(call.intensityCounts, 1));
+    cells.push(call.intensitySnr === null ? null : f(call.intensitySnr, 2));
+    cells.push(call.amplitudeCounts === null ? null : f(call.amplitudeCounts, 1));
+    cells.push(call.positive === null ? null : call.positive ? '1' : '0');
   }
   cells.push(r.outOfFrame ? '1' : '0', r.phenotype, ...extra);
-  return cells.map(csvField).join(',');
+  return cells;
+}
+
+/** A cell of {@link vesicleCsvCells}: a fixed-decimals number, text or empty. */
+export type VesicleCsvCell = { readonly value: number; readonly digits: number } | string | null;
+
+const f = (value: number, digits: number) => ({ value, digits });
+
+function cellText(c: VesicleCsvCell): string {
+  if (c === null) return '';
+  if (typeof c === 'string') return csvField(c);
+  return fixed(c.value, c.digits);
 }
 
 function fixed(v: number, digits: number): string {

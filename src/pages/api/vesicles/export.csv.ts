@@ -8,7 +8,8 @@ import { getDb } from '../../../lib/db/client';
 import { vesicles, linkRuns, registrations } from '../../../lib/db/schema';
 import { vesicleFilter } from '../../../lib/db/queries/vesicles';
 import { listPanel } from '../../../lib/db/queries/studies';
-import { vesicleCsvHeader, vesicleCsvRow } from '../../../lib/analysis/pipeline';
+import { vesicleCsvColumns, vesicleCsvCells } from '../../../lib/analysis/pipeline';
+import { writeCsv, RESEARCH_USE_COMMENT } from '../../../lib/csv';
 import { VesicleQuery } from '../../../lib/schemas/vesicles';
 
 const PAGE = 2000;
@@ -28,7 +29,8 @@ export const GET = handle(async (ctx) => {
   let lastId = 0;
   const stream = new ReadableStream<Uint8Array>({
     start(c) {
-      c.enqueue(enc.encode(`# Research use only. Not for diagnosis or treatment decisions.\n${vesicleCsvHeader(markers, ['field_id', 'sample_code', 'transform_version'])}\n`));
+      // every header name (marker names are lab-chosen text) and cell goes through the formula-escaping writer
+      c.enqueue(enc.encode(writeCsv({ comments: [RESEARCH_USE_COMMENT], header: vesicleCsvColumns(markers, ['field_id', 'sample_code', 'transform_version']), lineEnding: '\n' })));
     },
     async pull(c) {
       const { gt, and } = await import('drizzle-orm');
@@ -42,15 +44,15 @@ export const GET = handle(async (ctx) => {
         .limit(PAGE);
       if (!rows.length) return c.close();
       lastId = rows[rows.length - 1].v.id;
-      const text = rows.map(({ v, regVersion }) => vesicleCsvRow({
+      const text = writeCsv({ lineEnding: '\n', rows: rows.map(({ v, regVersion }) => vesicleCsvCells({
         index: v.index, xAfmPx: v.xAfmPx, yAfmPx: v.yAfmPx, xFlPx: v.xFlPx ?? NaN, yFlPx: v.yFlPx ?? NaN, heightNm: v.heightNm, diameterNm: v.diameterNm,
         volumeNm3: v.volumeNm3, areaNm2: v.areaNm2, circularity: v.circularity, meanHeightNm: v.meanHeightNm, cap: null, outOfFrame: v.outOfFrame, phenotype: v.phenotype,
         markers: Object.fromEntries(markers.map((m, i) => [m, {
           intensityCounts: v.markers[i]?.intensity ?? null, intensitySnr: v.markers[i]?.snr ?? null, amplitudeCounts: v.markers[i]?.amplitude ?? null,
           spotDistancePx: v.markers[i]?.spotDistancePx ?? null, positive: v.markers[i]?.intensity == null ? null : (v.markerBits & (1 << i)) !== 0,
         }])),
-      }, markers, [v.fieldId, sampleCode, String(regVersion ?? '')])).join('\n');
-      c.enqueue(enc.encode(text + '\n'));
+      }, markers, [v.fieldId, sampleCode, String(regVersion ?? '')])) });
+      c.enqueue(enc.encode(text));
     },
   });
   const name = `vesicles-${sampleCode}${q.fieldId ? '-field' : ''}.csv`.replace(/[^A-Za-z0-9._-]/g, '_');
