@@ -160,9 +160,8 @@ describe('decodeTiff: pixel values written by writeTiff come back exactly', () =
     const at = view(file).getUint32(entry(file, 273).at + 8, true);
     const bad = setInline(setInline(file, 259, 5), 279, stream.length);
     bad.set(stream, at);
-    const t0 = performance.now();
+    // a decoder that looped on the bad code would run into the test's time-out instead of answering
     const err = await decodeTiff(bad).catch((e: unknown) => e);
     expect(err).toMatchObject({ code: 'corrupt', message: expect.stringContaining('compressed (LZW) data of image 1 is invalid') });
-    expect(performance.now() - t0).toBeLessThan(1000);
   });
 });

@@ -1,5 +1,6 @@
 // Mutation fuzzing of the TIFF reader. Every mutated file must either decode or be rejected with an
-// ImagingError: any other error type, or a case slower than 5 s, fails the test with its seed.
+// ImagingError: any other error type fails the test with its seed. Times are printed, not asserted: a case
+// that hangs runs into the worker's own time limit (a 'timeout' failure) or the test's time-out.
 // FUZZ_CASES=50000 (50,000 in process, 25,000 through the worker) npx vitest run --project unit src/lib/imaging/__tests__/fuzz.test.ts  for a long run.
 import { describe, expect, it } from 'vitest';
 import { decodeInWorker, decodeThreadStats } from '../decodeInWorker';
@@ -10,7 +11,6 @@ import { baseFiles, mutate, prng } from './fuzzCases';
 const NB_CASES = Number(process.env.FUZZ_CASES ?? 5000);
 // the long mode scales both counts; the normal run keeps at least 2,000 through the job's worker path
 const NB_WORKER_CASES = Math.max(2000, Math.round(NB_CASES / 2));
-const CASE_BUDGET_MS = 5000;
 // the long mode runs past vitest's 60 s default: allow ~10 ms a case (measured: ~1 ms in process, ~2 ms through the worker)
 const testTimeout = (n: number) => Math.max(60_000, n * 10);
 
@@ -20,6 +20,7 @@ describe('fuzz: mutated TIFF files decode or fail with ImagingError only', () =>
   it(`${NB_CASES} in-process cases (inspectTiff + decodeTiff)`, async () => {
     const failures: string[] = [];
     const outcomes: Record<string, number> = {};
+    let slowestMs = 0;
     const t0 = performance.now();
     for (let c = 0; c < NB_CASES; c++) {
       const seed = 1000 + c;
@@ -37,11 +38,10 @@ describe('fuzz: mutated TIFF files decode or fail with ImagingError only', () =>
         if (err instanceof ImagingError) outcomes[err.code] = (outcomes[err.code] ?? 0) + 1;
         else failures.push(`seed ${seed} [${steps}] decodeTiff threw ${String(err)}`);
       }
-      const ms = performance.now() - start;
-      if (ms > CASE_BUDGET_MS) failures.push(`seed ${seed} [${steps}] took ${ms.toFixed(0)} ms`);
+      slowestMs = Math.max(slowestMs, performance.now() - start);
     }
     const totalMs = performance.now() - t0;
-    console.info(`fuzz: ${NB_CASES} cases in ${(totalMs / 1000).toFixed(1)} s, outcomes ${JSON.stringify(outcomes)}`);
+    console.info(`fuzz: ${NB_CASES} cases in ${(totalMs / 1000).toFixed(1)} s, slowest ${slowestMs.toFixed(0)} ms, outcomes ${JSON.stringify(outcomes)}`);
     expect(failures).toEqual([]);
     // the mutators must exercise both paths, or the test proves nothing
     expect(outcomes.decoded ?? 0).toBeGreaterThan(NB_CASES * 0.05);
@@ -64,9 +64,7 @@ describe('fuzz: mutated TIFF files decode or fail with ImagingError only', () =>
       const tag = `seed ${seed} [${steps}]`;
       const start = performance.now();
       const got = await decodeInWorker(file, JOB_LIMITS, JOB_OPTIONS).then((r) => ({ ok: true as const, r }), (e: unknown) => ({ ok: false as const, e }));
-      const ms = performance.now() - start;
-      slowestMs = Math.max(slowestMs, ms);
-      if (ms > CASE_BUDGET_MS) failures.push(`${tag} took ${ms.toFixed(0)} ms`);
+      slowestMs = Math.max(slowestMs, performance.now() - start);
       // the same file read in this process: the thread must give the same answer (no mixed-up replies between files)
       const here = await decodeTiff(file, JOB_LIMITS).then((r) => ({ ok: true as const, r }), (e: unknown) => ({ ok: false as const, e }));
       if (got.ok) {

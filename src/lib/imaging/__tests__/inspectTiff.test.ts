@@ -210,15 +210,15 @@ describe('inspectTiff and decodeTiff: every bad input gives its code', () => {
 });
 
 describe('limits are enforced before decoding', () => {
-  it('a header declaring 100000 × 100000 pixels is rejected at once with too_large', () => {
+  it('a header declaring 100000 × 100000 pixels is rejected with too_large before its pixel blocks are looked at', () => {
     const file = setInline(setInline(small(), 256, 100000), 257, 100000);
-    const t0 = performance.now();
     const e = codeOf(() => inspectTiff(file));
-    const ms = performance.now() - t0;
     expect(e.code).toBe('too_large');
     expect(e.message).toContain('100000 × 100000 pixels');
-    // 50 ms: generous for a header walk on a shared machine; decoding 10^10 pixels would take minutes
-    expect(ms).toBeLessThan(50);
+    // the size check comes before the strips are read: a strip offset past the end of the file, which alone
+    // is 'truncated', does not change the answer (no test of speed here: that is for benchmarks)
+    expect(codeOf(() => inspectTiff(setInline(small(), 273, 10_000)))).toMatchObject({ code: 'truncated' });
+    expect(codeOf(() => inspectTiff(setInline(file, 273, 10_000)))).toMatchObject({ code: 'too_large' });
   });
 
   it('maxDecodedBytes counts every page; maxPages bounds the IFD chain; maxFileBytes the input', async () => {
