@@ -28,9 +28,8 @@ describe('hostile files through the upload path', () => {
       if (presign.status === 400) continue; // an empty file is refused before upload
       const { uploadId, url } = await presign.json();
       await fetch(url, { method: 'PUT', body: Buffer.from(file), headers: { 'content-type': 'image/tiff' } });
-      const started = Date.now();
+      // no speed assertion (timings belong to benchmarks): an inspection that hung would run into the test's time-out
       const res = await bio.json(`/api/uploads/${uploadId}/inspect`, 'POST', {});
-      expect(Date.now() - started).toBeLessThan(5000);
       const body = await res.json();
       if (res.status === 200) {
         outcomes.read++;
