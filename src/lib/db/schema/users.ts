@@ -1,4 +1,4 @@
-import { pgTable, pgEnum, uuid, text, timestamp, boolean, index, bigserial } from 'drizzle-orm/pg-core';
+import { pgTable, pgEnum, uuid, text, timestamp, boolean, index, integer, bigint, varchar } from 'drizzle-orm/pg-core';
 
 export const roleEnum = pgEnum('role', ['admin', 'biologist', 'analyst', 'collaborator']);
 export const tokenPurposeEnum = pgEnum('token_purpose', ['invite', 'reset']);
@@ -11,6 +11,11 @@ export const users = pgTable('users', {
   /** argon2id PHC string; null until an invited user sets a password. */
   passwordHash: text(),
   active: boolean().notNull().default(true),
+  /**
+   * Every session cookie carries the version it was issued under; sign-out, a password change, a role change
+   * and deactivation raise it, which ends every existing session of the person at once.
+   */
+  sessionVersion: integer().notNull().default(0),
   createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
 });
 
@@ -29,15 +34,12 @@ export const oneTimeTokens = pgTable(
   (t) => [index().on(t.userId)],
 );
 
-/** Sign-in attempts, for rate limiting per e-mail and per address. */
-export const signInAttempts = pgTable(
-  'sign_in_attempts',
-  {
-    id: bigserial({ mode: 'number' }).primaryKey(),
-    email: text().notNull(),
-    ip: text().notNull(),
-    succeeded: boolean().notNull(),
-    at: timestamp({ withTimezone: true }).notNull().defaultNow(),
-  },
-  (t) => [index().on(t.email, t.at), index().on(t.ip, t.at)],
-);
+/**
+ * Counters of the sign-in and reset limits (rate-limiter-flexible's PostgreSQL store, in its own table layout:
+ * key, points, expire in ms since epoch). Expired rows are pruned by the limiter every 5 minutes.
+ */
+export const rateLimits = pgTable('rate_limits', {
+  key: varchar({ length: 255 }).primaryKey(),
+  points: integer().notNull().default(0),
+  expire: bigint({ mode: 'number' }),
+});
