@@ -9,6 +9,7 @@ import { resolve } from 'node:path';
 import { embeddedSettings } from './lib/env';
 import { startServices } from './lib/services';
 import { seedAll } from './lib/seedAll';
+import { runPilot } from './lib/runPilot';
 
 const log = (m: string) => console.log(`[test] ${m}`);
 
@@ -36,7 +37,24 @@ async function waitForHttp(url: string, timeoutMs: number) {
   throw new Error(`the app did not answer at ${url} within ${timeoutMs / 1000} s`);
 }
 
+/** Projects named on the command line (`--project unit` or `--project=unit`); none means every project. */
+function requestedProjects(argv: string[]): string[] {
+  const out: string[] = [];
+  argv.forEach((a, i) => {
+    if (a === '--project') out.push(argv[i + 1] ?? '');
+    else if (a.startsWith('--project=')) out.push(a.slice('--project='.length));
+  });
+  return out;
+}
+
 async function main() {
+  // Only the pure unit tests asked for: they need no services, no type check and no build.
+  const projects = requestedProjects(process.argv.slice(2));
+  if (projects.length > 0 && projects.every((p) => p === 'unit')) {
+    log('unit tests only: no services, type check or build');
+    const v = spawnSync('npx', ['vitest', 'run', ...process.argv.slice(2)], { stdio: 'inherit' });
+    process.exit(v.status ?? 1);
+  }
   process.env.HEIGHTLIGHT_DATA_DIR ??= resolve('.test-data');
   rmSync(process.env.HEIGHTLIGHT_DATA_DIR, { recursive: true, force: true });
   const s = embeddedSettings('test');
@@ -50,6 +68,9 @@ async function main() {
     ensureChromium();
     services = await startServices(s, log);
     await seedAll(s.env, log);
+    // the worker starts before the type check and the build, so the demo fields' ingestion runs meanwhile
+    const worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
+    children.push(worker);
 
     // Skipping the type check is for quick local iterations only; CI always runs it.
     if (process.env.HEIGHTLIGHT_SKIP_TYPECHECK !== '1' || process.env.CI) {
@@ -64,10 +85,11 @@ async function main() {
     const outDir = process.env.HEIGHTLIGHT_OUT_DIR ?? 'dist';
     const app = spawn(process.execPath, [`${outDir}/server/entry.mjs`], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
     children.push(app);
-    const worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
-    children.push(worker);
     await waitForHttp(`${s.env.PUBLIC_URL}/signin`, 60_000);
     log(`app up at ${s.env.PUBLIC_URL}`);
+    // the demo pilot through registration, linking, approval and release with the worker, before any test
+    // reads it (tests/integration/demo-pilot.test.ts checks what it left); HEIGHTLIGHT_SKIP_PILOT=1 skips it for quick local runs
+    if (process.env.HEIGHTLIGHT_SKIP_PILOT !== '1') await runPilot(s.env, log);
 
     // Asynchronous on purpose: the S3 fake and the SMTP sink live in this process and must keep answering.
     const args = ['vitest', 'run', ...process.argv.slice(2)];
