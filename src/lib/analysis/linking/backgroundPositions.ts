@@ -21,6 +21,17 @@ export interface BackgroundPositionsOptions {
    * @default 400
    */
   maxPositions?: number;
+  /**
+   * Lattice spacing (px); smaller than the default only where each place is fitted alone in a window narrower than
+   * the aperture annulus (e.g. joint-amplitude fits, window ±3·sigmaPx).
+   * @default twice the outer radius of the aperture annulus (≥ 10·sigmaPx)
+   */
+  spacingPx?: number;
+  /**
+   * Fewest places accepted before the error below.
+   * @default 10
+   */
+  minPositions?: number;
 }
 
 /**
@@ -33,13 +44,14 @@ export interface BackgroundPositionsOptions {
  * @param avoidPx - vesicle and spot positions to stay away from (px); not modified
  * @param options - see {@link BackgroundPositionsOptions}
  * @returns the lattice centres (px)
- * @throws AnalysisError `too_few_background_apertures` when fewer than 10 places are free
+ * @throws AnalysisError `too_few_background_apertures` when fewer than minPositions places are free
  */
 export function backgroundPositions(raster: Raster, avoidPx: readonly Point[], options: BackgroundPositionsOptions): Point[] {
-  const { sigmaPx, radiusPx = 2 * sigmaPx, exclusionRadiusPx = 6 * sigmaPx, maxPositions = 400 } = options;
+  const { sigmaPx, radiusPx = 2 * sigmaPx, exclusionRadiusPx = 6 * sigmaPx, maxPositions = 400, minPositions = 10 } = options;
   const inner = Math.max(radiusPx + 1, 3 * sigmaPx);
-  const outer = inner + Math.max(3, 2 * sigmaPx);
-  const spacing = 2 * outer;
+  const annulusOuter = inner + Math.max(3, 2 * sigmaPx);
+  const spacing = options.spacingPx ?? 2 * annulusOuter;
+  const outer = options.spacingPx === undefined ? annulusOuter : Math.max(1, spacing / 2);
   const index = new KDBush(Math.max(1, avoidPx.length));
   for (const p of avoidPx) index.add(p.x, p.y);
   if (avoidPx.length === 0) index.add(-1e9, -1e9);
@@ -51,10 +63,10 @@ export function backgroundPositions(raster: Raster, avoidPx: readonly Point[], o
       if (index.within(x, y, exclusionRadiusPx).length === 0) candidates.push({ x, y });
     }
   }
-  if (candidates.length < 10) {
+  if (candidates.length < minPositions) {
     throw new AnalysisError(
       'too_few_background_apertures',
-      `only ${candidates.length} empty places for background apertures; need at least 10 (frame too crowded or small)`,
+      `only ${candidates.length} empty places for background apertures; need at least ${minPositions} (frame too crowded or small)`,
       { nbCandidates: candidates.length },
     );
   }

@@ -3,6 +3,7 @@ import { Matrix, inverse } from 'ml-matrix';
 import type { Point, Raster } from '../types';
 import { gaussianPixelFraction } from '../fluorescence/gaussianPixelFraction';
 import { solveNnls } from './solveNnls';
+import type { CameraModel } from './types';
 
 /** Options of {@link estimateMarkerAmplitudes}. */
 export interface EstimateMarkerAmplitudesOptions {
@@ -18,6 +19,14 @@ export interface EstimateMarkerAmplitudesOptions {
    * @default 3
    */
   windowMarginSigma?: number;
+  /**
+   * Camera noise model. When given, each pixel's variance is gain·(fitted mean − offset) + read² (counts²), the
+   * amplitudes come from weighted NNLS with those variances (weights from a first unweighted fit) and the standard
+   * errors from (AᵀWA)⁻¹, the stated model; the residuals do not scale them. When absent, the SE is σ̂²·(AᵀA)⁻¹ with
+   * σ̂² = RSS/(m − p) (equal pixel variances).
+   * @default none
+   */
+  camera?: CameraModel;
 }
 
 /** Amplitude of one vesicle in one channel. */
@@ -34,7 +43,7 @@ export interface MarkerAmplitude {
    * amplitudeCounts that is not biased by clipping at 0. NaN out of frame or when the neighbourhood is singular.
    */
   readonly unconstrainedAmplitudeCounts: number;
-  /** Standard error of amplitudeCounts from the unconstrained least-squares covariance (counts). */
+  /** Standard error of amplitudeCounts from the unconstrained (weighted) least-squares covariance (counts). */
   readonly stdErrCounts: number;
   /** amplitudeCounts / stdErrCounts. */
   readonly snr: number;
@@ -61,8 +70,10 @@ export interface EstimateMarkerAmplitudesResult {
  * background, with non-negative amplitudes, so light between two close vesicles goes to the one that emits it.
  *
  * The background is given two columns (+1 and −1) so that, under the non-negativity of NNLS, it may take
- * either sign. Standard errors come from σ̂²·(AᵀA)⁻¹ of the unconstrained model with σ̂² = RSS/(m − p); they assume
- * equal pixel variances (background-dominated noise).
+ * either sign. With a camera model (the pipeline always passes one) the fit is weighted by each pixel's variance
+ * gain·(mean − offset) + read² and the standard error is √[(AᵀWA)⁻¹]ᵢᵢ; for one PSF on a known flat background of b
+ * photons/px at gain 1 this is √(4πσ²b), the least-squares amplitude noise of docs/references.md §4. Without
+ * one, standard errors come from σ̂²·(AᵀA)⁻¹ with σ̂² = RSS/(m − p) (equal pixel variances).
  *
  * @param raster - fluorescence frame (counts; the offset may remain, the background column absorbs it); not modified
  * @param positionsPx - vesicle centres mapped into this frame (px); not modified
@@ -70,13 +81,15 @@ export interface EstimateMarkerAmplitudesResult {
  * @returns per-vesicle amplitude, standard error and SNR
  * @throws RangeError when sigmaPx is not positive
  * @see Lawson CL, Hanson RJ. Solving Least Squares Problems. Prentice-Hall, 1974 (NNLS).
+ * @see Mortensen KI et al. Nat Methods 7:377–381, 2010 (amplitude and background noise of Gaussian spot fits;
+ *   docs/references.md §4).
  */
 export function estimateMarkerAmplitudes(
   raster: Raster,
   positionsPx: readonly Point[],
   options: EstimateMarkerAmplitudesOptions,
 ): EstimateMarkerAmplitudesResult {
-  const { sigmaPx, neighbourDistanceSigma = 3, windowMarginSigma = 3 } = options;
+  const { sigmaPx, neighbourDistanceSigma = 3, windowMarginSigma = 3, camera } = options;
   if (!(sigmaPx > 0)) throw new RangeError(`sigmaPx must be positive, got ${sigmaPx}`);
   const { width, height, data } = raster;
   const n = positionsPx.length;
@@ -160,15 +173,28 @@ export function estimateMarkerAmplitudes(
         row++;
       }
     }
-    // solve
-    const { x: solution, residualNorm } = solveNnls(a, b);
+    // solve: unweighted first; with a camera model, again with each pixel weighted by 1/variance of its fitted mean
+    let { x: solution, residualNorm } = solveNnls(a, b);
+    if (camera) {
+      const fitted = a.mmul(Matrix.columnVector(Array.from(solution)));
+      const { offsetCounts, gainCountsPerPhoton: g, readNoiseCounts: r } = camera;
+      for (let i = 0; i < m; i++) {
+        // at least one photon's variance, so a pixel at or below the offset never gets an infinite weight
+        const variance = Math.max(g * (fitted.get(i, 0) - offsetCounts) + r * r, g + r * r);
+        const w = 1 / Math.sqrt(variance);
+        for (let c = 0; c < k + 2; c++) a.set(i, c, a.get(i, c) * w);
+        b[i] *= w;
+      }
+      ({ x: solution, residualNorm } = solveNnls(a, b));
+    }
     const background = solution[k] - solution[k + 1];
     groupBackgroundCounts.push(background);
 
-    // uncertainty from the unconstrained model (PSF columns + one background column)
+    // uncertainty from the unconstrained model (PSF columns + one background column); with a camera model the
+    // rows are already whitened, so (AᵀWA)⁻¹ is the covariance as it stands
     const design = a.subMatrixColumn([...Array(k + 1).keys()]);
     const dof = Math.max(1, m - (k + 1));
-    const sigma2 = (residualNorm * residualNorm) / dof;
+    const sigma2 = camera ? 1 : (residualNorm * residualNorm) / dof;
     let covariance: Matrix | undefined;
     let unconstrained: Matrix | undefined;
     try {

@@ -3,13 +3,40 @@ import type { Point, Raster } from '../types';
 import type { FluorescenceSpot } from '../fluorescence/types';
 import { aperturePhotometry } from '../fluorescence/aperturePhotometry';
 import { estimateMarkerAmplitudes } from './estimateMarkerAmplitudes';
+import { callMarkerAmplitudes } from './callMarkerAmplitudes';
+import type { CameraModel, MarkerCallRule } from './types';
 
 /** Options of {@link linkVesicles}. */
 export interface LinkVesiclesOptions {
   /** PSF standard deviation per marker (px). Required for every marker in `rastersPerChannel`. */
   sigmaPxByMarker: Readonly<Record<string, number>>;
-  /** Positivity threshold per marker, in the unit of `positivityMeasure` (counts). Required for every marker. */
-  thresholdCountsByMarker: Readonly<Record<string, number>>;
+  /**
+   * How each marker is called (camera noise, control, manual; see {@link MarkerCallRule}). A marker without a rule is
+   * called against its entry of thresholdCountsByMarker (the manual rule).
+   * @default none
+   */
+  ruleByMarker?: Readonly<Record<string, MarkerCallRule>>;
+  /**
+   * Positivity threshold per marker, in the unit of `positivityMeasure` (counts), for markers without a rule.
+   * Every marker needs a rule or a threshold.
+   * @default none
+   */
+  thresholdCountsByMarker?: Readonly<Record<string, number>>;
+  /** Camera noise model of the frames (weighted fit and model standard errors). @default none (residual-based SE) */
+  camera?: CameraModel;
+  /**
+   * Light sources per marker that may lie near vesicles, such as detected spots (dim ones included): each one farther
+   * than ownColumnMinDistancePx from every vesicle gets its own PSF column in the joint fit, so a free dye spot or
+   * debris next to a vesicle keeps its own light. Spots closer than that are taken as the vesicle's own light.
+   * @default spotsPerChannel
+   */
+  sourceSpotsByMarker?: Readonly<Record<string, readonly Point[]>>;
+  /**
+   * A source spot closer than this to a vesicle is that vesicle's light and gets no column (px). 1.5σ stays above the
+   * mapping error of a registered vesicle (tens of nm, a fraction of σ) and below the FWHM (2.35σ) of a neighbour.
+   * @default 1.5·sigmaPx of the channel
+   */
+  ownColumnMinDistancePx?: number;
   /**
    * Which intensity is compared with the threshold. 'jointAmplitude': the NNLS amplitude of the vesicle's PSF fitted
    * jointly with its neighbours (total counts of that PSF), so light from a neighbour closer than the PSF is not
@@ -44,6 +71,13 @@ export interface ChannelCall {
   readonly unconstrainedAmplitudeCounts: number | null;
   readonly amplitudeStdErrCounts: number | null;
   readonly amplitudeSnr: number | null;
+  /** amplitudeCounts / amplitudeStdErrCounts, the same as amplitudeSnr (dimensionless). */
+  readonly z: number | null;
+  /** z calibrated by the frame's null (median, MAD at empty places); N(0, 1) where nothing is. */
+  readonly zCalibrated: number | null;
+  /** One-sided p-value of zCalibrated and its Benjamini–Hochberg q within the frame (this marker). */
+  readonly pValue: number | null;
+  readonly qValue: number | null;
   /** Index into that channel's spot list of the nearest spot within the match radius, else null. */
   readonly spotIndex: number | null;
   readonly spotDistancePx: number | null;
@@ -71,14 +105,20 @@ export interface LinkVesiclesResult {
   /** In-frame everywhere and negative for every marker. */
   readonly nbVesiclesWithoutMarker: number;
   readonly positiveByMarker: Readonly<Record<string, number>>;
+  /** Vesicles inside each marker's frame, the denominator of positiveByMarker (count). */
+  readonly nbMeasuredByMarker: Readonly<Record<string, number>>;
+  /** PSF columns given to spots away from every vesicle, per marker (count). */
+  readonly nbOtherSpotSourcesByMarker: Readonly<Record<string, number>>;
   /** Detected spots with no vesicle within the match radius, per marker (possible debris, free dye or missed EVs). */
   readonly unmatchedSpotsByMarker: Readonly<Record<string, number>>;
 }
 
 /**
  * Links AFM-detected vesicles (already mapped into fluorescence pixels) to every marker channel: aperture
- * photometry with SNR (reported), joint NNLS amplitude, nearest detected spot, a positivity call of the joint
- * amplitude (by default) against the marker's threshold and a phenotype string. Vesicles mapped outside a frame are flagged, not dropped.
+ * photometry with SNR (reported), joint NNLS amplitude fitted together with every other emitter nearby (beads and
+ * spots away from the vesicles), its SE under the camera model, z, p and q ({@link callMarkerAmplitudes}), the call
+ * under the marker's rule and a phenotype string. Vesicles mapped outside a frame are "not measured" there
+ * (positive null), flagged, not dropped, and left out of that marker's denominator (nbMeasuredByMarker).
  *
  * @param vesiclesFl - vesicle centres in fluorescence pixels (px); not modified
  * @param spotsPerChannel - detected spots per marker (px); not modified; a missing marker means no spots
@@ -93,42 +133,56 @@ export function linkVesicles(
   rastersPerChannel: Readonly<Record<string, Raster>>,
   options: LinkVesiclesOptions,
 ): LinkVesiclesResult {
-  const { sigmaPxByMarker, thresholdCountsByMarker, otherSourcesPx = [], positivityMeasure = 'jointAmplitude', spotMatchRadiusPx } = options;
+  const {
+    sigmaPxByMarker, thresholdCountsByMarker = {}, ruleByMarker = {}, camera, otherSourcesPx = [], positivityMeasure = 'jointAmplitude',
+    spotMatchRadiusPx, sourceSpotsByMarker, ownColumnMinDistancePx,
+  } = options;
   const markers = Object.keys(rastersPerChannel);
   for (const marker of markers) {
     if (!(sigmaPxByMarker[marker] > 0)) throw new RangeError(`sigmaPxByMarker.${marker} must be a positive number`);
-    if (!Number.isFinite(thresholdCountsByMarker[marker])) {
-      throw new RangeError(`thresholdCountsByMarker.${marker} must be a finite number`);
+    if (!ruleByMarker[marker] && !Number.isFinite(thresholdCountsByMarker[marker])) {
+      throw new RangeError(`thresholdCountsByMarker.${marker} must be a finite number when the marker has no rule`);
     }
   }
   const n = vesiclesFl.length;
   const perMarker: Record<string, ChannelCall[]> = {};
   const unmatchedSpotsByMarker: Record<string, number> = {};
   const positiveByMarker: Record<string, number> = {};
+  const nbMeasuredByMarker: Record<string, number> = {};
+  const nbOtherSpotSourcesByMarker: Record<string, number> = {};
 
   for (const marker of markers) {
     const raster = rastersPerChannel[marker];
     const sigmaPx = sigmaPxByMarker[marker];
-    const threshold = thresholdCountsByMarker[marker];
+    const rule: MarkerCallRule = ruleByMarker[marker] ?? { rule: 'manual', thresholdCounts: thresholdCountsByMarker[marker] };
     const matchPx = spotMatchRadiusPx ?? 2 * sigmaPx;
     const spots = spotsPerChannel[marker] ?? [];
-    // the first n amplitudes are the vesicles'; the other sources only take their own light
-    const joint = estimateMarkerAmplitudes(raster, otherSourcesPx.length ? [...vesiclesFl, ...otherSourcesPx] : vesiclesFl, { sigmaPx }).amplitudes;
+    const vesicleIndex = new KDBush(Math.max(1, n));
+    for (const v of vesiclesFl) vesicleIndex.add(v.x, v.y);
+    if (n === 0) vesicleIndex.add(-1e9, -1e9);
+    vesicleIndex.finish();
+    // every emitter away from the vesicles gets its own column; the first n amplitudes are the vesicles'
+    const ownPx = ownColumnMinDistancePx ?? 1.5 * sigmaPx;
+    const spotSources = (sourceSpotsByMarker?.[marker] ?? spots)
+      .filter((s) => vesicleIndex.within(s.x, s.y, ownPx).filter((i) => i < n).length === 0)
+      .map((s) => ({ x: s.x, y: s.y }));
+    nbOtherSpotSourcesByMarker[marker] = spotSources.length;
+    const sources = [...otherSourcesPx, ...spotSources];
+    const fitted = estimateMarkerAmplitudes(raster, sources.length ? [...vesiclesFl, ...sources] : vesiclesFl, { sigmaPx, camera }).amplitudes;
+    const joint = fitted.slice(0, n);
+    const tests = callMarkerAmplitudes(joint, rule);
 
     // nearest spot per vesicle, and spots with no vesicle
     const spotIndex = new KDBush(Math.max(1, spots.length));
     for (const s of spots) spotIndex.add(s.x, s.y);
     if (spots.length === 0) spotIndex.add(-1e9, -1e9);
     spotIndex.finish();
-    const vesicleIndex = new KDBush(Math.max(1, n));
-    for (const v of vesiclesFl) vesicleIndex.add(v.x, v.y);
-    if (n === 0) vesicleIndex.add(-1e9, -1e9);
-    vesicleIndex.finish();
     unmatchedSpotsByMarker[marker] = spots.filter(
       (s) => vesicleIndex.within(s.x, s.y, matchPx).filter((i) => i < n).length === 0,
     ).length;
 
     let nbPositive = 0;
+    let nbMeasured = 0;
     perMarker[marker] = vesiclesFl.map((v, i) => {
       let nearest: number | null = null;
       let nearestD: number | null = null;
@@ -143,12 +197,13 @@ export function linkVesicles(
       if (joint[i].outOfFrame) {
         return {
           apertureCounts: null, apertureSnr: null, apertureLeavesFrame: true, amplitudeCounts: null, unconstrainedAmplitudeCounts: null,
-          amplitudeStdErrCounts: null, amplitudeSnr: null, spotIndex: nearest, spotDistancePx: nearestD, positive: null,
+          amplitudeStdErrCounts: null, amplitudeSnr: null, z: null, zCalibrated: null, pValue: null, qValue: null,
+          spotIndex: nearest, spotDistancePx: nearestD, positive: null,
         };
       }
+      nbMeasured++;
       const ap = aperturePhotometry(raster, v, { sigmaPx });
-      const measure = positivityMeasure === 'aperture' ? ap.netCounts : joint[i].amplitudeCounts;
-      const positive = measure > threshold;
+      const positive = positivityMeasure === 'aperture' && rule.rule === 'manual' ? ap.netCounts > rule.thresholdCounts : tests[i].positive === true;
       if (positive) nbPositive++;
       return {
         apertureCounts: ap.netCounts,
@@ -158,12 +213,17 @@ export function linkVesicles(
         unconstrainedAmplitudeCounts: joint[i].unconstrainedAmplitudeCounts,
         amplitudeStdErrCounts: joint[i].stdErrCounts,
         amplitudeSnr: joint[i].snr,
+        z: tests[i].z,
+        zCalibrated: tests[i].zCalibrated,
+        pValue: tests[i].pValue,
+        qValue: tests[i].qValue,
         spotIndex: nearest,
         spotDistancePx: nearestD,
         positive,
       };
     });
     positiveByMarker[marker] = nbPositive;
+    nbMeasuredByMarker[marker] = nbMeasured;
   }
 
   // phenotypes
@@ -188,6 +248,8 @@ export function linkVesicles(
     nbOutOfFrame: vesicles.filter((v) => v.outOfFrame).length,
     nbVesiclesWithoutMarker: vesicles.filter((v) => !v.outOfFrame && v.nbPositive === 0).length,
     positiveByMarker,
+    nbMeasuredByMarker,
+    nbOtherSpotSourcesByMarker,
     unmatchedSpotsByMarker,
   };
 }

@@ -8,6 +8,7 @@ export { wilsonInterval, type WilsonIntervalResult } from './wilsonInterval';
 export type { Alternative, Table2x2 } from './types';
 export { mannWhitneyUBinned, binnedMedian } from './mannWhitneyUBinned';
 export type { BinnedPair, MannWhitneyUBinnedResult } from './mannWhitneyUBinned';
+export { normalUpperTail } from './normalUpperTail';
 export { welchTTest, type WelchTTestResult } from './welchTTest';
 export { empiricalLogit } from './empiricalLogit';
 export { designEffect } from './designEffect';
