@@ -14,6 +14,7 @@ import { isSignInBlocked, recordSignInAttempt } from './src/lib/auth/rateLimit';
 import { audit } from './src/lib/audit';
 import { currentIp } from './src/lib/http/requestContext';
 import { SESSION_MAX_AGE_S } from './src/lib/auth/session';
+import { config } from './src/lib/config';
 
 class TooManyAttempts extends CredentialsSignin {
   code = 'too_many_attempts';
@@ -23,7 +24,7 @@ const SignInInput = z.object({ email: z.string().trim().toLowerCase().email().ma
 
 
 export default defineConfig({
-  secret: process.env.AUTH_SECRET,
+  secret: config().AUTH_SECRET,
   trustHost: true,
   // renewed by the middleware once an hour old, so a session ends 12 h after the last request
   session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },

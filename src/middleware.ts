@@ -6,6 +6,7 @@ import { defineMiddleware } from 'astro:middleware';
 import { getDb } from './lib/db/client';
 import { loadSession, renewedSessionCookie } from './lib/auth/session';
 import { requestContext } from './lib/http/requestContext';
+import { config } from './lib/config';
 
 const PUBLIC_PAGES = ['/signin', '/invite/', '/reset', '/favicon.svg', '/_astro/', '/api/auth/', '/api/invitations/', '/api/password-reset'];
 
@@ -33,7 +34,7 @@ function securityHeaders(original: Response) {
       "img-src 'self' data: blob:",
       "font-src 'self'",
       // Presigned uploads go straight from the browser to the object store.
-      `connect-src 'self' ${process.env.S3_PUBLIC_ENDPOINT ?? process.env.S3_ENDPOINT ?? 'http://127.0.0.1:45678'}`,
+      `connect-src 'self' ${config().S3_PUBLIC_ENDPOINT ?? config().S3_ENDPOINT}`,
       "object-src 'none'",
       "base-uri 'self'",
       "form-action 'self'",

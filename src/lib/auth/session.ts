@@ -10,6 +10,7 @@ import { users, studyMembers, studies } from '../db/schema';
 import { HttpError, unauthorized, forbidden } from '../http/errors';
 import { canInStudy, type Action, type MemberRole, type Role, type SessionUser } from './permissions';
 import { AccessCache } from './accessCache';
+import { authSecret, config } from '../config';
 
 const g = globalThis as unknown as { __heightlightDb?: Db; __heightlightAccess?: AccessCache };
 
@@ -18,7 +19,7 @@ const g = globalThis as unknown as { __heightlightDb?: Db; __heightlightAccess?:
  * (tests and scripts that build their own handle read the database every time). Off with HEIGHTLIGHT_ACCESS_CACHE=off.
  */
 export function appAccessCache(db: Db): AccessCache | null {
-  if (db !== g.__heightlightDb || process.env.HEIGHTLIGHT_ACCESS_CACHE === 'off') return null;
+  if (db !== g.__heightlightDb || config().HEIGHTLIGHT_ACCESS_CACHE === 'off') return null;
   if (!g.__heightlightAccess) {
     const url = (db.$client.options as { connectionString?: string }).connectionString;
     if (!url) return null;
@@ -40,7 +41,7 @@ const usesSecureCookie = (request: Request) => (request.headers.get('cookie') ??
 
 /** The session token's claims as Auth.js's own getToken reads them, or null. */
 const readToken = (request: Request) =>
-  getToken({ req: request, secret: process.env.AUTH_SECRET ?? '', secureCookie: usesSecureCookie(request) }).catch(() => null);
+  getToken({ req: request, secret: authSecret(), secureCookie: usesSecureCookie(request) }).catch(() => null);
 
 /**
  * Reads the session cookie and loads the active user it names, with when the cookie runs out, or null. The
@@ -88,7 +89,7 @@ export async function renewedSessionCookie(request: Request, expiresAtMs: number
   const token = await readToken(request);
   if (!token) return null;
   const { iat: _iat, exp: _exp, jti: _jti, ...claims } = token;
-  const value = await encode({ token: claims, secret: process.env.AUTH_SECRET ?? '', salt: name, maxAge: SESSION_MAX_AGE_S });
+  const value = await encode({ token: claims, secret: authSecret(), salt: name, maxAge: SESSION_MAX_AGE_S });
   return `${name}=${value}; Path=/; Max-Age=${SESSION_MAX_AGE_S}; HttpOnly; SameSite=Lax${secureCookie ? '; Secure' : ''}`;
 }
 

@@ -1,6 +1,7 @@
 /** One pg-boss instance per process, against the app's PostgreSQL (schema `pgboss` unless JOB_QUEUE_SCHEMA says otherwise). */
 import PgBoss from 'pg-boss';
 import { QUEUES } from './queues';
+import { config } from '../config';
 
 let boss: PgBoss | undefined;
 let starting: Promise<PgBoss> | undefined;
@@ -11,8 +12,7 @@ let starting: Promise<PgBoss> | undefined;
  * @returns seconds; 15 minutes unless the environment says otherwise
  */
 export function jobExpireSeconds(): number {
-  const v = Number(process.env.JOB_EXPIRE_SECONDS);
-  return Number.isInteger(v) && v >= 1 ? v : 15 * 60;
+  return config().JOB_EXPIRE_SECONDS;
 }
 
 /**
@@ -21,10 +21,7 @@ export function jobExpireSeconds(): number {
  * @returns a lower-case SQL identifier; `pgboss` unless the environment says otherwise
  */
 export function jobQueueSchema(): string {
-  const v = process.env.JOB_QUEUE_SCHEMA;
-  if (v === undefined || v === '') return 'pgboss';
-  if (!/^[a-z_][a-z0-9_]{0,62}$/.test(v)) throw new Error(`JOB_QUEUE_SCHEMA must be a lower-case SQL name (letters, digits, _), not "${v}"`);
-  return v;
+  return config().JOB_QUEUE_SCHEMA;
 }
 
 export function getBoss(databaseUrl: string): Promise<PgBoss> {

@@ -108,9 +108,12 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       const [run] = await tx.insert(linkRuns).values({ fieldId, registrationId: reg.id, settings, summary: result.summary as unknown as Record<string, unknown>, current: true }).returning();
       const rows = result.records.map((r) => {
         let bits = 0;
+        let measured = 0;
         const calls = markers.map((m, i) => {
           const c = r.markers[m];
           if (c?.positive) bits |= 1 << i;
+          // positive null: outside that channel's frame, no call (leaves that marker's denominator)
+          if (c && c.positive !== null) measured |= 1 << i;
           return {
             intensity: c?.intensityCounts ?? NaN, snr: c?.intensitySnr ?? NaN, amplitude: c?.amplitudeCounts ?? NaN,
             amplitudeUnconstrained: c?.unconstrainedAmplitudeCounts ?? NaN, spotDistancePx: c?.spotDistancePx ?? null,
@@ -118,9 +121,9 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
         });
         return {
           linkRunId: run.id, fieldId, sampleId: sample.id, index: r.index, xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: r.xFlPx, yFlPx: r.yFlPx,
-          heightNm: r.heightNm, meanHeightNm: r.meanHeightNm, areaNm2: r.areaNm2, diameterNm: r.diameterNm, volumeNm3: r.volumeNm3, circularity: r.circularity,
+          heightNm: r.heightNm, meanHeightNm: r.meanHeightNm, areaNm2: r.areaNm2, diameterNm: r.footprintDiameterNm, volumeNm3: r.volumeNm3, circularity: r.circularity,
           capRadiusNm: r.cap?.baseRadiusNm ?? null, contactAngleDeg: r.cap?.contactAngleDeg ?? null, sphereDiameterNm: r.cap?.volumeEquivalentDiameterNm ?? null,
-          outOfFrame: r.outOfFrame, markerBits: bits, phenotype: r.phenotype,
+          outOfFrame: r.outOfFrame, markerBits: bits, measuredBits: measured, phenotype: r.phenotype,
           // JSON has no NaN: a vesicle outside a frame has null values there
           // amplitudeUnconstrained (counts, may be < 0) feeds later control-sample thresholds
           markers: calls.map((c) => ({
@@ -129,7 +132,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
         };
       });
       for (let i = 0; i < rows.length; i += BATCH) await tx.insert(vesicles).values(rows.slice(i, i + BATCH));
-      await summariseLinkRun(tx, run.id);
+      await summariseLinkRun(tx, run.id, markers.length);
       await tx.update(fields).set({ status: 'linked', failureReason: null, progress: { stage: 'done', fraction: 1 }, version: sql`${fields.version} + 1`, updatedAt: sql`now()` }).where(eq(fields.id, fieldId));
     });
     return { vesicles: result.records.length, phenotypes: result.summary.phenotypeCounts };

@@ -7,6 +7,22 @@ export const transformModelEnum = pgEnum('transform_model', ['affine', 'similari
 export const reviewDecisionEnum = pgEnum('review_decision', ['approved', 'sent_back']);
 export const sizeMeasureEnum = pgEnum('size_measure', ['diameter_nm', 'height_nm']);
 
+/** One vesicle's values in one channel (vesicles.markers). Older runs lack the fields marked optional. */
+export interface VesicleMarkerJson {
+  intensity: number | null;
+  snr: number | null;
+  /** Joint NNLS amplitude (counts). */
+  amplitude: number | null;
+  amplitudeUnconstrained?: number | null;
+  spotDistancePx: number | null;
+  /** Standard error of the amplitude (counts). */
+  se?: number | null;
+  z?: number | null;
+  p?: number | null;
+  q?: number | null;
+  call?: 'positive' | 'negative' | 'not_measured';
+}
+
 /** Every saved registration of a field is kept; the highest version is the accepted one. */
 export const registrations = pgTable(
   'registrations',
@@ -36,6 +52,8 @@ export const linkRuns = pgTable(
     registrationId: uuid().references(() => registrations.id, { onDelete: 'set null' }),
     settings: jsonb().$type<Record<string, unknown>>().notNull(),
     summary: jsonb().$type<Record<string, unknown>>().notNull(),
+    /** Per channel, as estimated from the field's beads: offset from the shared transform and PSF width; null before this was measured. */
+    channelRegistration: jsonb().$type<unknown[]>(),
     current: boolean().notNull().default(true),
     createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
   },
@@ -45,6 +63,9 @@ export const linkRuns = pgTable(
 /**
  * One row per detected vesicle. `markerBits` holds the positive calls (bit i = panel channel i),
  * so per-sample counts are SQL aggregates; `sampleId` is repeated here for those aggregates.
+ * `measuredBits` says where a call was possible at all (bit i = the vesicle lies inside channel i's
+ * frame); a vesicle not measured in a channel is neither positive nor negative there and leaves
+ * that marker's denominator. The default -1 (every bit set) means "measured in every channel".
  */
 export const vesicles = pgTable(
   'vesicles',
@@ -61,17 +82,37 @@ export const vesicles = pgTable(
     heightNm: real().notNull(),
     meanHeightNm: real().notNull(),
     areaNm2: real().notNull(),
+    /**
+     * Threshold FOOTPRINT diameter 2·√(A/π) (nm): tip-broadened and threshold-dependent. Kept under this
+     * column name because the summary tables and dashboard bins read diameter_nm; the reviewer's sizes are
+     * the spherical-cap columns below.
+     */
     diameterNm: real().notNull(),
+    /** Σ height × pixel area over the footprint (nm³), tip-broadened; the cap volume is capVolumeNm3. */
     volumeNm3: real().notNull(),
     circularity: real().notNull(),
+    /** Spherical cap after tip correction: base radius (nm). Null where capFlag says the cap was not possible. */
     capRadiusNm: real(),
+    capBaseDiameterNm: real(),
+    capHeightNm: real(),
     contactAngleDeg: real(),
+    capVolumeNm3: real(),
+    /** Diameter of the sphere of the cap's volume (nm). */
     sphereDiameterNm: real(),
+    /** Why the cap sizes are missing or not tip-corrected (no_tip_radius, tip_exceeds_image, overhang, cap_fit_failed); null = sound. */
+    capFlag: text(),
+    /** Cut from a touching pair or cluster: its footprint ends at a saddle, not at the substrate. */
+    split: boolean().notNull().default(false),
     outOfFrame: boolean().notNull().default(false),
     markerBits: integer().notNull().default(0),
+    measuredBits: integer().notNull().default(-1),
     phenotype: text().notNull().default(''),
-    /** Per channel: { intensity, snr, amplitude, spotDistancePx } in panel order. */
-    markers: jsonb().$type<{ intensity: number; snr: number; amplitude: number; spotDistancePx: number | null }[]>().notNull(),
+    /**
+     * Per channel in panel order (see VesicleMarkerJson): aperture intensity and SNR, joint amplitude and its
+     * standard error under the camera noise model, z, one-sided p, q (BH within the field) and the call
+     * ('positive' | 'negative' | 'not_measured'); null numbers where the vesicle lies outside that frame.
+     */
+    markers: jsonb().$type<VesicleMarkerJson[]>().notNull(),
   },
   (t) => [
     index().on(t.linkRunId),
@@ -85,6 +126,29 @@ export const vesicles = pgTable(
   ],
 );
 
+/**
+ * Beads (fiducial particles) of one link run: never vesicles, so kept out of the vesicles table, its
+ * counts and phenotypes. `reason` says why the object is a bead (e.g. taller than any vesicle of the
+ * field, bright in every channel, under a fiducial pick); `markers` holds its per-channel amplitudes.
+ */
+export const beads = pgTable(
+  'beads',
+  {
+    linkRunId: uuid().notNull().references(() => linkRuns.id, { onDelete: 'cascade' }),
+    index: integer().notNull(),
+    xAfmPx: real().notNull(),
+    yAfmPx: real().notNull(),
+    xFlPx: real(),
+    yFlPx: real(),
+    heightNm: real().notNull(),
+    footprintDiameterNm: real().notNull(),
+    reason: text().notNull(),
+    underFiducialPick: boolean().notNull().default(false),
+    markers: jsonb().$type<unknown[]>().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.linkRunId, t.index] })],
+);
+
 /*
  * Summaries of one link run's vesicles, written once in the transaction that writes the vesicles
  * (src/lib/db/queries/linkRunSummaries.ts). Link runs never change after that, so the sums are exact
@@ -92,7 +156,11 @@ export const vesicles = pgTable(
  * start with link_run_id, which also serves as the index on that foreign key.
  */
 
-/** Vesicle count per phenotype bitmask (marker-positive counts and combinations follow from it). */
+/**
+ * Vesicle count per phenotype bitmask. Only vesicles measured in EVERY channel of the run are counted
+ * here (a phenotype needs a call for each marker); per-marker fractions use link_run_marker_counts,
+ * whose denominators also include vesicles measured in that channel only.
+ */
 export const linkRunPhenotypes = pgTable(
   'link_run_phenotypes',
   {
@@ -101,6 +169,22 @@ export const linkRunPhenotypes = pgTable(
     n: integer().notNull(),
   },
   (t) => [primaryKey({ columns: [t.linkRunId, t.markerBits] })],
+);
+
+/**
+ * Per channel of a link run: vesicles measured there (inside that channel's frame) and those called
+ * positive there. The denominator of a marker's positive fraction is `nMeasured`, never the run's
+ * vesicle count.
+ */
+export const linkRunMarkerCounts = pgTable(
+  'link_run_marker_counts',
+  {
+    linkRunId: uuid().notNull().references(() => linkRuns.id, { onDelete: 'cascade' }),
+    channelIndex: integer().notNull(),
+    nMeasured: integer().notNull(),
+    nPositive: integer().notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.linkRunId, t.channelIndex] })],
 );
 
 /** Dashboard histogram counts per phenotype: `bucket` is PostgreSQL's width_bucket over the dashboard's bin edges. */

@@ -10,6 +10,14 @@ export const studies = pgTable('studies', {
   description: text().notNull().default(''),
   createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
   createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  /*
+   * The camera noise model of the study's fluorescence frames (raw counts): a pixel holding N photons reads
+   * offset + gain·N ± read noise. Set by an analyst from the camera's data sheet or a photon-transfer
+   * measurement; all three null = not set (linking then estimates what the frames allow).
+   */
+  cameraOffsetCounts: real(),
+  cameraGainCountsPerPhoton: real(),
+  cameraReadNoiseCounts: real(),
 });
 
 export const studyMembers = pgTable(
