@@ -4,6 +4,23 @@ import node from '@astrojs/node';
 import react from '@astrojs/react';
 import tailwindcss from '@tailwindcss/vite';
 import auth from 'auth-astro';
+import { fileURLToPath } from 'node:url';
+
+// The built server checks its configuration before it listens (src/lib/config.ts): production refuses to
+// start without its secrets, with the message, instead of failing at the first request. Astro loads the
+// middleware and pages lazily, so the check goes into the server entry itself.
+const configModule = fileURLToPath(new URL('./src/lib/config.ts', import.meta.url));
+const checkConfigAtStart = {
+  name: 'heightlight:check-config-at-start',
+  /** @param {string} code @param {string} id */
+  transform(code, id) {
+    if (id !== '\0@astrojs-ssr-virtual-entry') return null;
+    const check = `import { config as checkedConfig } from ${JSON.stringify(configModule)};
+try { checkedConfig(); } catch (e) { console.error(e instanceof Error ? e.message : e); process.exit(1); }
+`;
+    return { code: check + code, map: null };
+  },
+};
 
 const allowedHosts = ['127.0.0.1', 'localhost', ...(process.env.ALLOWED_HOSTS ?? '').split(',').map((h) => h.trim()).filter(Boolean)];
 
@@ -19,7 +36,7 @@ export default defineConfig({
   security: { checkOrigin: true, allowedDomains: allowedHosts.map((hostname) => ({ hostname })) },
   server: { host: '127.0.0.1' },
   vite: {
-    plugins: [tailwindcss()],
+    plugins: [tailwindcss(), checkConfigAtStart],
     ssr: { external: ['sharp', '@node-rs/argon2', 'pg', 'pg-boss', 's3rver', 'smtp-server', 'geotiff', 'utif'] },
   },
 });

@@ -1,4 +1,11 @@
 export { createRng } from './random';
 export type { Rng } from './random';
 export { makeHeightScene } from './makeHeightScene';
+export { dilateWithBallTip } from './dilateWithBallTip';
 export type * from './types';
+export { makeCorrelativeScene } from './makeCorrelativeScene';
+export { tipImagedProfile } from './tipImagedProfile';
+export type { BallConeTip, TipImagedProfile } from './tipImagedProfile';
+export { renderCorrelativeChannel } from './renderCorrelativeChannel';
+export type { CameraModel, ChannelEmitter, RenderCorrelativeChannelOptions, RenderCorrelativeChannelResult } from './renderCorrelativeChannel';
+export type * from './correlativeTypes';
