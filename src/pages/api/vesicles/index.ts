@@ -1,4 +1,5 @@
 import type { APIRoute } from 'astro';
+import { researchUseReply } from '../../../lib/reporting/researchUse';
 import { handle } from '../../../lib/http/respond';
 import { parseQuery } from '../../../lib/http/parse';
 import { requireUser } from '../../../lib/auth/session';
@@ -15,5 +16,5 @@ export const GET = handle(async (ctx) => {
   const db = await getDb();
   const { studyId } = await requireScopeAction(db, ctx.locals, q, 'study.read', 'see vesicle tables');
   const [page, panel] = await Promise.all([pageVesicles(db, q), getPanel(db, studyId)]);
-  return Response.json({ ...page, markers: panel.map((p) => p.marker) });
+  return Response.json(researchUseReply({ ...page, markers: panel.map((p) => p.marker) }));
 }) satisfies APIRoute;

@@ -1,4 +1,5 @@
 import type { APIRoute } from 'astro';
+import { researchUseReply } from '../../../../lib/reporting/researchUse';
 import { handle } from '../../../../lib/http/respond';
 import { sampleResultsFor } from '../../../../lib/reporting/sampleResultsCache';
 import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
@@ -7,5 +8,5 @@ import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
 export const GET = handle(async (ctx) => {
   const { db, sel } = await sampleSelectionFor(ctx);
   const results = await sampleResultsFor(db, sel);
-  return Response.json(results, { headers: { 'cache-control': 'private, no-store' } });
+  return Response.json(researchUseReply(results), { headers: { 'cache-control': 'private, no-store' } });
 }) satisfies APIRoute;
