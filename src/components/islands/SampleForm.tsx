@@ -52,8 +52,9 @@ export default function SampleForm({ studyId }: { studyId: string }) {
       {field('substrate', 'Substrate', 'mica')}
       {field('dilution', 'Dilution', '1:10')}
       <div>
-        <label className="field-label" htmlFor="sf-date">Collection date</label>
-        <input id="sf-date" type="date" className="input" {...register('collectionDate', { setValueAs: (v: string) => v || undefined })} />
+        <label className="field-label" htmlFor="sf-date">Collection month</label>
+        {/* kept to the month: a full date can identify a donor */}
+        <input id="sf-date" type="month" className="input" {...register('collectionDate', { setValueAs: (v: string) => v || undefined })} />
       </div>
       <div>
         <label className="field-label" htmlFor="sf-control">Control kind</label>

@@ -1,5 +1,5 @@
-/** Why a sample code looks like it could identify a person. */
-export type IdentifyingReason = 'date_like' | 'name_like';
+/** Why a sample code or a free text looks like it could identify a person. */
+export type IdentifyingReason = 'date_like' | 'name_like' | 'record_number' | 'initials';
 
 /** Result of {@link looksIdentifying}. */
 export interface LooksIdentifyingResult {
@@ -45,14 +45,45 @@ function dateLike(code: string): boolean {
     if (isValidDate(+s.slice(0, 4), +s.slice(4, 6), +s.slice(6, 8))) return true;
     if (isValidDate(+s.slice(4, 8), +s.slice(2, 4), +s.slice(0, 2)) || isValidDate(+s.slice(4, 8), +s.slice(0, 2), +s.slice(2, 4))) return true;
   }
-  // a month name next to a day or year: 12Mar1980, March-12, 03-mar-80
+  // a month name next to a day: 12Mar1980, March-12, 03-mar-80, 4th of May (a month with only a year is allowed:
+  // collection dates are kept to the month)
   const lower = code.toLowerCase();
   for (const m of lower.matchAll(/[a-z]+/g)) {
     if (!MONTH_WORDS.has(m[0])) continue;
-    const before = lower.slice(Math.max(0, m.index - 3), m.index);
-    const after = lower.slice(m.index + m[0].length, m.index + m[0].length + 5);
-    if (/\d/.test(before) || /^[-./ ]?\d/.test(after)) return true;
+    const before = lower.slice(Math.max(0, m.index - 8), m.index);
+    const after = lower.slice(m.index + m[0].length, m.index + m[0].length + 6);
+    if (/(^|[^\d])\d{1,2}(st|nd|rd|th)?( of)?[-./ ]?$/.test(before) || /^[-./ ]?\d{1,2}(st|nd|rd|th)?(?!\d)/.test(after)) return true;
   }
+  return false;
+}
+
+/**
+ * Record, hospital or insurance numbers: a keyword labs use for them followed by a number of 4 or more digits
+ * ("MRN 00123456", "Hosp no 4471-223", "NHS 943 476 5919"), or a bare run of 7 or more digits, which a
+ * de-identified code never needs (common practice: study codes are short running numbers).
+ */
+function recordNumberLike(text: string): boolean {
+  const keyword = /(^|[^a-z])(mrn|mr ?no|mr#|urn?|hosp(ital)?|record|rec|nhs|chart|pid|patient ?(id|no|nr|number|#)|pt ?(id|no|nr|#)|case ?(no|nr|#)|medicare|medicaid|ssn|insurance|ins ?no|health ?(card|no|number))[\s.:#_-]*(no\.?|nr\.?|num(ber)?|#|id)?[\s.:#_-]*\d[\d\s/-]{2,}\d/i;
+  if (keyword.test(text)) return true;
+  if (/(?<!\d)\d{3}[ -]\d{3}[ -]\d{4}(?!\d)/.test(text)) return true;
+  for (const m of text.matchAll(/(?<!\d)\d{7,}(?!\d)/g)) {
+    // an 8-digit date is reported as a date, not as a number
+    if (!(m[0].length === 8 && dateLike(m[0]))) return true;
+  }
+  return false;
+}
+
+/**
+ * Initials: dotted ("J.D.", "J. D."), after a title or a word for a person ("pt JD", "Mrs K"), labelled
+ * ("initials JD"), or two or three capitals run into a birth year ("JD1975", "AB-1964"). Plain capitals such as
+ * "HC-03" or "PDAC-12" pass: codes are made of them.
+ */
+function initialsLike(text: string): boolean {
+  if (/(^|[^A-Za-z])[A-Z]\.\s?[A-Z](\.|(?![A-Za-z]))/.test(text)) return true;
+  if (/\binitials?\b[\s.:=_-]*[A-Z]{1,3}\b/i.test(text)) return true;
+  if (/\b(pt|patient|donor|subject)\.?[\s_-]+[A-Z]{2,3}\b(?![-_ ]?\d)/.test(text)) return true;
+  if (/\b([Mm]rs?|MRS?|[Mm]s|MS|[Mm]iss|[Dd]r|DR)\.?[\s_-]+[A-Z]{1,3}\b(?![-_ ]?\d)/.test(text)) return true;
+  if (/(^|[^A-Za-z])[A-Z]{2,3}[-_ ]?(19[2-9]\d|200\d)(?!\d)/.test(text)) return true;
   return false;
 }
 
@@ -72,21 +103,51 @@ function nameLike(code: string): boolean {
   return false;
 }
 
+/** Options of {@link looksIdentifying}. */
+export interface LooksIdentifyingOptions {
+  /**
+   * What the text is, as the start of a sentence ("The code", "The group label", "The file name"). Codes
+   * (the default) also get the code-only name heuristics; other texts are read as prose.
+   */
+  what?: string;
+  /** `code` for sample codes, field and file names (short identifiers); `text` for labels and notes. @default 'code' */
+  kind?: 'code' | 'text';
+  /** Personal names found in the text by a name lexicon (the server passes one; see personalNames.ts). */
+  findNames?: (text: string) => string[];
+}
+
 /**
- * Warns when a sample code looks like it could identify a person: a plausible date (of birth) or a
- * personal name. A heuristic for a warning on the sample form, not a guarantee either way.
+ * Warns when a sample code or a free text looks like it could identify a person: a plausible full date (of
+ * birth), a record or hospital number, initials, or a personal name. A heuristic for a warning, not a
+ * guarantee either way.
  *
- * @param code - the sample code as typed
+ * @param text - the text as typed
+ * @param o - see {@link LooksIdentifyingOptions}
  * @returns whether it looks identifying and why, with messages a biologist can act on
  */
-export function looksIdentifying(code: string): LooksIdentifyingResult {
+export function looksIdentifying(text: string, o: LooksIdentifyingOptions = {}): LooksIdentifyingResult {
+  const { what = 'The code', kind = 'code', findNames } = o;
+  const isCode = kind === 'code';
   const reasons: LooksIdentifyingResult['reasons'] = [];
-  const trimmed = code.trim();
+  const trimmed = text.trim();
+  if (!trimmed) return { identifying: false, reasons };
   if (dateLike(trimmed)) {
-    reasons.push({ code: 'date_like', message: 'The code contains something that looks like a date. Do not use dates of birth or collection dates in codes; record the collection date in its own field.' });
+    reasons.push({ code: 'date_like', message: isCode && what === 'The code'
+      ? 'The code contains something that looks like a date. Do not use dates of birth or collection dates in codes; record the collection date in its own field.'
+      : `${what} contains something that looks like a full date. Remove dates of birth and full dates; a sample's collection month goes in its own field.` });
   }
-  if (nameLike(trimmed)) {
-    reasons.push({ code: 'name_like', message: "The code looks like a person's name. Use a de-identified code (for example a study prefix and a number)." });
+  if (recordNumberLike(trimmed)) {
+    reasons.push({ code: 'record_number', message: `${what} contains what looks like a medical record, hospital or insurance number. Remove it: the key between codes and records stays at the clinic.` });
+  }
+  if (initialsLike(trimmed)) {
+    reasons.push({ code: 'initials', message: `${what} contains what look like a person's initials. Use a de-identified code (for example a study prefix and a number).` });
+  }
+  // words split at _ - . so that "doe_jane" reads as two words for the lexicon
+  const names = findNames?.(trimmed.replace(/[_.\-/]+/g, ' ')) ?? [];
+  if ((isCode && nameLike(trimmed)) || names.length) {
+    reasons.push({ code: 'name_like', message: isCode && what === 'The code'
+      ? "The code looks like a person's name. Use a de-identified code (for example a study prefix and a number)."
+      : `${what} looks like it contains a person's name${names.length ? ` (${names[0]})` : ''}. Remove it: collaborators and exports see this text.` });
   }
   return { identifying: reasons.length > 0, reasons };
 }

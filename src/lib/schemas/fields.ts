@@ -55,7 +55,9 @@ export const SampleCreateRequest = z.object({
   groupLabel: z.string().trim().max(80).default(''),
   source: z.string().trim().max(120).default(''),
   isolationMethod: z.string().trim().max(120).default(''),
-  collectionDate: z.iso.date().optional(),
+  /** Kept to the month (de-identification, common practice): a full date is stored as the 1st of its month. */
+  collectionDate: z.union([z.iso.date(), z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'Give the collection month as YYYY-MM')])
+    .optional().transform((v) => (v ? `${v.slice(0, 7)}-01` : undefined)),
   dilution: z.string().trim().max(40).default(''),
   substrate: z.string().trim().max(60).default(''),
   notes: z.string().max(4000).default(''),

@@ -14,6 +14,7 @@ import { enqueueIngest } from '../../../lib/jobs/enqueue';
 import { audit } from '../../../lib/audit';
 import { FieldCreateRequest } from '../../../lib/schemas/fields';
 import { clientAddress } from '../../../lib/http/context';
+import { identifyingWarnings } from '../../../lib/reporting/identifyingWarnings';
 
 /** Confirms a field from inspected uploads and queues its ingestion. */
 export const POST = handle(async (ctx) => {
@@ -27,5 +28,10 @@ export const POST = handle(async (ctx) => {
   const field = await createField(db, await getStorage(), user.id, body, panel.length, uploadLimits());
   await enqueueIngest(field.id);
   await audit(db, { action: 'field.uploaded', actorId: user.id, actorEmail: user.email, targetType: 'field', targetId: field.id, ip: clientAddress(ctx), details: { sample: sample.code, name: field.name } });
-  return Response.json({ id: field.id, status: field.status }, { status: 201 });
+  // the field name and the file names reach collaborators' tables and exports: warn when they look identifying
+  const warnings = identifyingWarnings([
+    { what: 'The field name', value: body.name },
+    ...Object.values(body.fileNames).map((n) => ({ what: `The file name "${n}"`, value: n.replace(/\.(ome\.)?tiff?$/i, '') })),
+  ]);
+  return Response.json({ id: field.id, status: field.status, warnings }, { status: 201 });
 }) satisfies APIRoute;

@@ -1,4 +1,5 @@
 import type { APIRoute } from 'astro';
+import { identifyingWarnings } from '../../../lib/reporting/identifyingWarnings';
 import { handle } from '../../../lib/http/respond';
 import { parseJson } from '../../../lib/http/parse';
 import { requireUser, requireRole } from '../../../lib/auth/session';
@@ -21,5 +22,6 @@ export const POST = handle(async (ctx) => {
   const db = await getDb();
   const [row] = await db.insert(studies).values({ ...body, createdBy: admin.id }).returning({ id: studies.id });
   await audit(db, { action: 'study.created', actorId: admin.id, actorEmail: admin.email, targetType: 'study', targetId: row.id, ip: clientAddress(ctx), details: { name: body.name } });
-  return Response.json({ id: row.id }, { status: 201 });
+  const warnings = identifyingWarnings([{ what: 'The study name', value: body.name }, { what: 'The description', value: body.description }]);
+  return Response.json({ id: row.id, warnings }, { status: 201 });
 }) satisfies APIRoute;
