@@ -44,7 +44,7 @@ export async function insertBeadField(db: Db, sampleId: string, name: string): P
   await db.transaction(async (tx) => {
     await tx.insert(fields).values({
       id: fieldId, sampleId, name, status: 'failed', failureReason: 'not processed yet', afmPixelNm, afmScanSizeNm: afmPixelNm * afmPx,
-      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'tapping', flPixelNm: 65, objectiveNa: 1.4, exposureMs: 100, channelEmissionNm: [520, 590, 670],
+      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'intermittent contact', flPixelNm: 65, objectiveNa: 1.4, exposureMs: 100, channelEmissionNm: [520, 590, 670],
       afmWidthPx: afmPx, afmHeightPx: afmPx, flWidthPx: 128, flHeightPx: 128,
     });
     await tx.insert(fieldFiles).values([

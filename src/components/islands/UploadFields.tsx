@@ -109,7 +109,7 @@ function FileSlot({ label, kind, state, onFiles, onRetry, onRemove, multiple, te
 export default function UploadFields({ studies }: { studies: StudyOption[] }) {
   const { register, control, handleSubmit, watch, formState: { errors, isSubmitting } } = useForm<FormValues>({
     resolver: zodResolver(FormSchema),
-    defaultValues: { studyId: studies[0]?.id ?? '', settings: { imagingMedium: 'air', scanMode: 'tapping', objectiveNa: 1.4, channelEmissionNm: [] }, drafts: [{ sampleId: '', name: '' }] },
+    defaultValues: { studyId: studies[0]?.id ?? '', settings: { imagingMedium: 'air', scanMode: 'intermittent contact', objectiveNa: 1.4, channelEmissionNm: [] }, drafts: [{ sampleId: '', name: '' }] },
   });
   const drafts = useFieldArray({ control, name: 'drafts' });
   const [topo, setTopo] = useState<FilesByDraft>({});
@@ -219,7 +219,7 @@ export default function UploadFields({ studies }: { studies: StudyOption[] }) {
         </div>
         {input('afmPixelNm', 'AFM pixel size', 'nm', { number: true, placeholder: 'from file' })}
         {input('tipRadiusNm', 'Tip radius', 'nm', { number: true, placeholder: 'e.g. 8' })}
-        {input('scanMode', 'AFM scan mode', '')}
+        {input('scanMode', 'AFM scan mode', '', { placeholder: 'intermittent contact, contact or non-contact' })}
         <div>
           <label className="field-label" htmlFor="s-medium">Imaging medium</label>
           <select id="s-medium" className="input" {...register('settings.imagingMedium')}><option value="air">air</option><option value="liquid">liquid</option></select>

@@ -14,7 +14,7 @@ const complete: ChecklistInput = {
     { code: 'S-BUF', controlKind: 'buffer_only', source: 'buffer', isolationMethod: 'SEC', substrate: 'mica', dilution: '1:1' },
   ],
   fields: {
-    fields: 4, media: ['air'], scanModes: ['tapping'], withAfmPixel: 4, withFlPixel: 4, withTipRadius: 4, withNa: 4, withExposure: 4,
+    fields: 4, media: ['air'], scanModes: ['intermittent contact'], withAfmPixel: 4, withFlPixel: 4, withTipRadius: 4, withNa: 4, withExposure: 4,
     withEmission: 4, afmPixelMinNm: 3.9, afmPixelMaxNm: 3.9, flPixelMinNm: 65, flPixelMaxNm: 65,
   },
   linkSettings: [{ thresholdCountsByMarker: { CD9: 120 }, thresholdMethod: 'isotype mean + 3 SD' }],
