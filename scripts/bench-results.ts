@@ -6,10 +6,14 @@
  */
 import { performance } from 'node:perf_hooks';
 import { createDb } from '../src/lib/db/client';
-import {
-  getChecklistInput, getCurrentLinkRunIds, getSampleContext, getSampleResults, getSampleSelectionFacts, getStudyComparison,
-  listReleasedSamples, pageVesicles,
-} from '../src/lib/db/queries/results';
+import { getCurrentLinkRunIds, getPanel, getSampleContext, getSampleSelectionFacts } from '../src/lib/db/queries/sampleSelection';
+import { getSampleResults } from '../src/lib/db/queries/sampleResults';
+import { getComparisonRows } from '../src/lib/db/queries/comparisonInput';
+import { getChecklistInput } from '../src/lib/db/queries/checklistInput';
+import { listReleasedSamples } from '../src/lib/db/queries/resultListings';
+import { pageVesicles } from '../src/lib/db/queries/vesicleExport';
+import { buildStudyComparison } from '../src/lib/reporting/buildStudyComparison';
+import type { ResultSource } from '../src/lib/reporting/types';
 import { summariseLinkRun } from '../src/lib/db/queries/linkRunSummaries';
 
 const VESICLES = Number(process.env.VESICLES ?? 1_000_000);
@@ -110,16 +114,18 @@ async function main() {
   const release = (await getSampleSelectionFacts(db, sample.id))!.latestRelease!;
   const sel = { source: 'released' as const, release, linkRunIds: release.linkRunIds };
   const study = { id: studyId, name: 'bench' };
+  const getStudyComparison = async (source: ResultSource, groupA: string | null, groupB: string | null) =>
+    buildStudyComparison({ study, source, panel: await getPanel(db, studyId), rows: await getComparisonRows(db, studyId, source), groupA, groupB });
   const admin = { id: '00000000-0000-4000-8000-000000000000', email: 'bench@invalid', name: 'bench', role: 'admin' as const };
 
   const r = await time('sample results (released, one sample)', () => getSampleResults(db, ctx, sel));
   console.log(`     → ${r.vesicles} vesicles, ${r.fieldsAnalysed} fields, CD9+ ${(100 * (r.markers[0].fraction ?? 0)).toFixed(1)} %`);
   await time('sample results (current link runs)', async () => getSampleResults(db, ctx, { source: 'current', release: null, linkRunIds: await getCurrentLinkRunIds(db, sample.id) }));
-  const c0 = await time('study fractions per sample (50 samples)', () => getStudyComparison(db, study, 'released', null, null));
+  const c0 = await time('study fractions per sample (50 samples)', () => getStudyComparison('released', null, null));
   console.log(`     → ${c0.samples.length} samples, ${c0.samples.reduce((t, s) => t + s.vesicles, 0)} vesicles`);
-  const c = await time('study comparison A vs B (+ Mann-Whitney)', () => getStudyComparison(db, study, 'released', 'group A', 'group B'));
-  console.log(`     → CD9 p = ${c.markerComparisons[0].pValue?.toPrecision(3)}, diameter U on ${c.sizeComparisons[0].usedA} + ${c.sizeComparisons[0].usedB} vesicles, p = ${c.sizeComparisons[0].pValue?.toPrecision(3)}`);
-  await time('study comparison (unreleased preview)', () => getStudyComparison(db, study, 'current', 'group A', 'group B'));
+  const c = await time('study comparison A vs B (samples as the unit)', () => getStudyComparison('released', 'group A', 'group B'));
+  console.log(`     → CD9 p = ${c.comparisons[0].pValue?.toPrecision(3)} on ${c.comparisons[0].nSamplesA} + ${c.comparisons[0].nSamplesB} samples, diameter medians p = ${c.sizeComparisons[0].pValue?.toPrecision(3)}`);
+  await time('study comparison (unreleased preview)', () => getStudyComparison('current', 'group A', 'group B'));
   await time('reporting checklist input', () => getChecklistInput(db, studyId));
   await time('released samples list', () => listReleasedSamples(db, admin));
   await time('per-vesicle export, first page (5000 rows)', async () => (await pageVesicles(db, release.linkRunIds).next()).value);

@@ -7,7 +7,7 @@ import type { Db } from '../db/client';
 import { requireStudyAction } from '../auth/session';
 import { canInStudy, type SessionUser } from '../auth/permissions';
 import { HttpError, notFound } from '../http/errors';
-import { getSampleSelectionFacts, type SampleContext } from '../db/queries/results';
+import { getSampleSelectionFacts, type SampleContext } from '../db/queries/sampleSelection';
 import type { ReleaseInfo, ResultSource } from './types';
 
 export interface ResultsSelection {

@@ -5,7 +5,9 @@
  */
 import { LRUCache } from 'lru-cache';
 import type { Db } from '../db/client';
-import { getComparisonFacts, getPanel, getStudyComparison } from '../db/queries/results';
+import { getComparisonFacts, getComparisonRows } from '../db/queries/comparisonInput';
+import { getPanel } from '../db/queries/sampleSelection';
+import { buildStudyComparison } from './buildStudyComparison';
 import { rememberedReply } from './rememberedReply';
 import type { ResultSource, StudyComparison } from './types';
 
@@ -21,6 +23,9 @@ export async function studyComparison(db: Db, studyId: string, source: ResultSou
   return rememberedReply(
     db, remembered,
     async () => JSON.stringify([studyId, facts.name, source, groupA, groupB, facts.fingerprint, (await getPanel(db, studyId)).map((c) => [c.channelIndex, c.marker])]),
-    () => getStudyComparison(db, study, source, groupA, groupB),
+    async () => {
+      const [panel, rows] = await Promise.all([getPanel(db, studyId), getComparisonRows(db, studyId, source)]);
+      return buildStudyComparison({ study, source, panel, rows, groupA, groupB });
+    },
   );
 }

@@ -2,10 +2,13 @@
 import { csvComments, csvRow } from './csv';
 import { RESEARCH_USE_COMMENT } from '../csv';
 import type { SampleResults, StudyComparison } from './types';
+import { COMPARISON_METHOD } from './methodText';
 
 /**
- * Summary CSV of one sample: one row per marker and per phenotype combination, each with the count,
- * the fraction of all vesicles and its 95% Wilson interval.
+ * Summary CSV of one sample: one row per marker (denominator: vesicles measured in that channel) and per
+ * phenotype combination (denominator: vesicles measured in every channel), each with the count, the
+ * fraction and its 95% interval over the fields (Wilson on Kish's effective count), the design effect,
+ * the between-field ICC and SD; then one row per field with its counts (quality control).
  *
  * @param r - the sample's results
  * @returns the CSV text, starting with the research-use-only line
@@ -14,42 +17,67 @@ export function sampleSummaryCsv(r: SampleResults): string {
   const release = r.release ? `release v${r.release.version} of ${r.release.releasedAt}` : 'unreleased preview of the current analysis';
   let out = csvComments([
     RESEARCH_USE_COMMENT,
-    `Sample ${r.sample.code} (${r.sample.groupLabel || 'no group'}), ${release}; ${r.fieldsAnalysed} field(s), ${r.vesicles} vesicles; median diameter ${r.diameter.medianNm?.toFixed(1) ?? '-'} nm, median height ${r.height.medianNm?.toFixed(1) ?? '-'} nm`,
+    `Sample ${r.sample.code} (${r.sample.groupLabel || 'no group'}), ${release}; ${r.fieldsAnalysed} field(s), ${r.vesicles} vesicles (${r.phenotyped} measured in every channel); median diameter ${r.diameter.medianNm?.toFixed(1) ?? '-'} nm, median height ${r.height.medianNm?.toFixed(1) ?? '-'} nm`,
+    COMPARISON_METHOD.perSample,
   ]);
-  out += csvRow(['sample_code', 'group_label', 'release_version', 'row_kind', 'item', 'vesicles_count', 'count', 'fraction', 'wilson95_lower', 'wilson95_upper']);
+  out += csvRow(['sample_code', 'group_label', 'release_version', 'row_kind', 'item', 'vesicles_count', 'count', 'fraction', 'ci95_lower', 'ci95_upper', 'design_effect', 'icc_between_fields', 'sd_between_fields', 'fields_count']);
   const version = r.release?.version ?? null;
   for (const m of r.markers) {
-    out += csvRow([r.sample.code, r.sample.groupLabel, version, 'marker_positive', m.marker, m.total, m.count, m.fraction, m.lower, m.upper]);
+    out += csvRow([r.sample.code, r.sample.groupLabel, version, 'marker_positive', m.marker, m.total, m.count, m.fraction, m.lower, m.upper, m.designEffect, m.icc, m.betweenFieldSd, m.fields]);
   }
   for (const p of r.phenotypes) {
-    out += csvRow([r.sample.code, r.sample.groupLabel, version, 'phenotype', p.label, p.total, p.count, p.fraction, p.lower, p.upper]);
+    out += csvRow([r.sample.code, r.sample.groupLabel, version, 'phenotype', p.label, p.total, p.count, p.fraction, p.lower, p.upper, p.designEffect, p.icc, p.betweenFieldSd, p.fields]);
+  }
+  for (const f of r.fields) {
+    r.panel.forEach((c, i) => {
+      out += csvRow([r.sample.code, r.sample.groupLabel, version, 'field_marker_positive', `${f.name}: ${c.marker}`, f.measured[i], f.positives[i], f.measured[i] ? f.positives[i] / f.measured[i] : null, null, null, null, null, null, 1]);
+    });
   }
   return out;
 }
 
 /**
- * Comparison CSV of a study: per-sample marker fractions, then (when two groups were chosen) one row
- * per marker with the pooled fractions, the difference A − B with Newcombe's interval and the p-values.
+ * Comparison CSV of a study, from the same object the page shows: per-sample fractions with their
+ * intervals over fields; then, for two groups, one row per marker and phenotype compared with the sample
+ * as the unit (typical fraction per group, difference with its 95% interval, p, Benjamini–Hochberg),
+ * the per-sample median sizes compared, and the pooled per-group fractions, descriptive only.
  *
  * @param c - the study comparison
  * @returns the CSV text, starting with the research-use-only line
  */
 export function comparisonCsv(c: StudyComparison): string {
+  const perGroup = Object.entries(c.samplesPerGroup).map(([g, n]) => `${g || '(no group)'}: ${n}`).join('; ');
   let out = csvComments([
     RESEARCH_USE_COMMENT,
-    `Study ${c.study.name}; ${c.source === 'released' ? 'latest release of each sample' : 'unreleased preview'}; vesicles pooled per group, tests treat vesicles as independent`,
+    `Study ${c.study.name}; ${c.source === 'released' ? 'latest release of each sample' : 'unreleased preview'}; samples per group: ${perGroup}`,
+    COMPARISON_METHOD.unit, COMPARISON_METHOD.fractions, COMPARISON_METHOD.sizes, COMPARISON_METHOD.perSample, COMPARISON_METHOD.pooled,
   ]);
-  out += csvRow(['row_kind', 'group_label', 'sample_code', 'marker', 'vesicles_count', 'positive_count', 'fraction', 'ci95_lower', 'ci95_upper', 'test', 'p_value', 'p_adjusted_bh']);
+  out += csvRow([
+    'row_kind', 'group', 'sample_code', 'item', 'samples_a', 'samples_b', 'measured_count', 'positive_count', 'fraction',
+    'value_a', 'value_b', 'difference', 'ci95_lower', 'ci95_upper', 'p_value', 'p_adjusted_bh', 'method', 'design_effect', 'sd_between', 'note',
+  ]);
   for (const s of c.samples) {
-    for (const m of s.markers) out += csvRow(['sample', s.groupLabel, s.code, m.marker, m.total, m.count, m.fraction, m.lower, m.upper, '', '', '']);
+    for (const m of s.markers) {
+      out += csvRow(['sample', s.groupLabel, s.code, m.marker, '', '', m.total, m.count, m.fraction, '', '', '', m.lower, m.upper, '', '', 'wilson_design_effect', m.designEffect, m.betweenFieldSd, `${m.fields} field(s)`]);
+    }
   }
-  for (const m of c.markerComparisons) {
-    out += csvRow(['group', c.groupA, '', m.marker, m.a.total, m.a.count, m.a.fraction, m.a.lower, m.a.upper, '', '', '']);
-    out += csvRow(['group', c.groupB, '', m.marker, m.b.total, m.b.count, m.b.fraction, m.b.lower, m.b.upper, '', '', '']);
-    out += csvRow(['difference', `${c.groupA} - ${c.groupB}`, '', m.marker, m.a.total + m.b.total, '', m.difference, m.differenceLower, m.differenceUpper, m.test ?? '', m.pValue, m.pAdjusted]);
+  const pair = `${c.groupA} - ${c.groupB}`;
+  for (const m of c.comparisons) {
+    out += csvRow([
+      `comparison_${m.kind}`, pair, '', m.label, m.nSamplesA, m.nSamplesB, '', '', '', m.fractionA, m.fractionB, m.difference,
+      m.ci95?.[0] ?? null, m.ci95?.[1] ?? null, m.pValue, m.pAdjusted, m.method, '', `${m.sdLogitA ?? ''}/${m.sdLogitB ?? ''}`,
+      m.fewSamples ? 'fewer than 3 samples in a group' : '',
+    ]);
   }
   for (const s of c.sizeComparisons) {
-    out += csvRow(['mann_whitney', `${c.groupA} - ${c.groupB}`, '', s.measure, s.usedA + s.usedB, '', '', '', '', `U=${s.uStatistic ?? ''}`, s.pValue, '']);
+    out += csvRow([
+      'comparison_size_median_nm', pair, '', s.measure, s.nSamplesA, s.nSamplesB, '', '', '', s.meanMedianANm, s.meanMedianBNm, s.differenceNm,
+      s.ci95Nm?.[0] ?? null, s.ci95Nm?.[1] ?? null, s.pValue, s.pAdjusted, s.method, '', '', s.fewSamples ? 'fewer than 3 samples in a group' : '',
+    ]);
+  }
+  for (const p of c.pooled) {
+    out += csvRow(['pooled_descriptive', c.groupA, '', p.label, '', '', p.a.total, p.a.count, p.a.fraction, '', '', '', '', '', '', '', '', '', '', 'no test: vesicles are not independent']);
+    out += csvRow(['pooled_descriptive', c.groupB, '', p.label, '', '', p.b.total, p.b.count, p.b.fraction, '', '', '', '', '', '', '', '', '', '', 'no test: vesicles are not independent']);
   }
   return out;
 }

@@ -8,7 +8,8 @@
  */
 import { LRUCache } from 'lru-cache';
 import type { Db } from '../db/client';
-import { getPanel, getSampleResults } from '../db/queries/results';
+import { getPanel } from '../db/queries/sampleSelection';
+import { getSampleResults } from '../db/queries/sampleResults';
 import { rememberedReply } from './rememberedReply';
 import type { ResultsSelection } from './access';
 import type { SampleResults } from './types';

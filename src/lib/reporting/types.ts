@@ -2,6 +2,9 @@
  * Shapes of the results API (`/api/samples/[id]/results`, `/api/studies/[id]/comparison`), shared by
  * the routes, the pages and the ResultsDashboard island. Plain data only: no server imports.
  */
+import type { OutcomeComparison, SizeGroupComparison } from '../analysis/stats';
+
+export type { OutcomeComparison, SizeGroupComparison };
 
 /** Where the vesicle rows come from: the latest release, or (lab members only) the current link runs. */
 export type ResultSource = 'released' | 'current';
@@ -18,12 +21,28 @@ export interface ProportionEstimate {
   readonly upper: number | null;
 }
 
-export interface MarkerFraction extends ProportionEstimate {
+/**
+ * A sample's fraction over its fields: `lower`/`upper` are a 95% Wilson interval on Kish's effective count
+ * (total / designEffect), so the spread between fields widens it (see analysis/stats/clusteredProportion).
+ */
+export interface ClusteredEstimate extends ProportionEstimate {
+  /** Fields with vesicles measured (count). */
+  readonly fields: number;
+  /** Between-field intraclass correlation (null with fewer than two fields). */
+  readonly icc: number | null;
+  readonly designEffect: number;
+  /** SD of the per-field fractions (null with fewer than two fields). */
+  readonly betweenFieldSd: number | null;
+}
+
+/** A marker's positive fraction: `total` counts only vesicles measured in that channel (inside its frame). */
+export interface MarkerFraction extends ClusteredEstimate {
   readonly channelIndex: number;
   readonly marker: string;
 }
 
-export interface PhenotypeCount extends ProportionEstimate {
+/** A phenotype's share of the vesicles measured in every channel. */
+export interface PhenotypeCount extends ClusteredEstimate {
   /** marker_bits: bit i set = panel channel i positive. */
   readonly bits: number;
   /** e.g. "CD9+ CD63− CD81+". */
@@ -53,6 +72,8 @@ export interface FieldBreakdown {
   readonly name: string;
   readonly status: string;
   readonly vesicles: number;
+  /** Per panel channel: vesicles measured there, and positive there (counts). */
+  readonly measured: number[];
   readonly positives: number[];
   /** Latest registration's fiducial registration error (nm), null if not registered. */
   readonly freNm: number | null;
@@ -77,6 +98,8 @@ export interface SampleResults {
   readonly panel: { channelIndex: number; marker: string }[];
   readonly fieldsAnalysed: number;
   readonly vesicles: number;
+  /** Vesicles measured in every channel: the denominator of the phenotype shares (count). */
+  readonly phenotyped: number;
   readonly markers: MarkerFraction[];
   readonly phenotypes: PhenotypeCount[];
   readonly diameter: DistributionSummary & { histogram: Histogram; byPhenotype: Record<string, Histogram> };
@@ -91,36 +114,19 @@ export interface SampleMarkerRow {
   readonly releaseVersion: number | null;
   readonly markers: MarkerFraction[];
   readonly vesicles: number;
+  readonly fields: number;
+  /** The sample's median equivalent diameter and height (nm; of values rounded to 0.5 and 0.1 nm). */
+  readonly medianDiameterNm: number | null;
+  readonly medianHeightNm: number | null;
 }
 
-export interface MarkerComparison {
-  readonly marker: string;
-  readonly channelIndex: number;
+/** Vesicles of all samples of a group pooled: for looking at only, never tested (vesicles are not independent). */
+export interface PooledFraction {
+  readonly key: string;
+  readonly label: string;
+  readonly kind: 'marker' | 'phenotype';
   readonly a: ProportionEstimate;
   readonly b: ProportionEstimate;
-  /** Null when a group has no vesicles. */
-  readonly test: 'fisher_exact' | 'chi_square' | null;
-  readonly pValue: number | null;
-  /** Benjamini–Hochberg adjusted across the markers compared. */
-  readonly pAdjusted: number | null;
-  /** fraction A − fraction B with Newcombe's hybrid score interval. */
-  readonly difference: number | null;
-  readonly differenceLower: number | null;
-  readonly differenceUpper: number | null;
-}
-
-export interface SizeComparison {
-  readonly measure: 'diameter_nm' | 'height_nm';
-  /** Vesicles in each group (count) and how many entered the test (bounded, deterministic thinning). */
-  readonly nA: number;
-  readonly nB: number;
-  readonly usedA: number;
-  readonly usedB: number;
-  readonly medianA: number | null;
-  readonly medianB: number | null;
-  readonly uStatistic: number | null;
-  readonly pValue: number | null;
-  readonly method: 'exact' | 'normal' | null;
 }
 
 export interface StudyComparison {
@@ -128,9 +134,15 @@ export interface StudyComparison {
   readonly source: ResultSource;
   readonly panel: { channelIndex: number; marker: string }[];
   readonly groups: string[];
+  /** Samples with data per group label (count). */
+  readonly samplesPerGroup: Record<string, number>;
   readonly samples: SampleMarkerRow[];
   readonly groupA: string | null;
   readonly groupB: string | null;
-  readonly markerComparisons: MarkerComparison[];
-  readonly sizeComparisons: SizeComparison[];
+  /** Markers, then phenotype combinations: per-sample fractions compared (empty without two groups). */
+  readonly comparisons: OutcomeComparison[];
+  /** Per-sample median sizes compared. */
+  readonly sizeComparisons: SizeGroupComparison[];
+  /** Descriptive pooled fractions per group, without p-values. */
+  readonly pooled: PooledFraction[];
 }

@@ -3,7 +3,7 @@ import * as Plot from '@observablehq/plot';
 import type { SampleMarkerRow } from '../../../lib/reporting/types';
 import { PlotFigure } from './PlotFigure';
 
-/** Dot (positive fraction) and line (95% Wilson interval) per sample and marker, coloured by group. */
+/** Dot (positive fraction) and line (95% interval over the sample's fields) per sample and marker, coloured by group. */
 export function FractionsPlot({ samples, markers }: { samples: SampleMarkerRow[]; markers: string[] }) {
   // compared by value: the caller builds a new array on every render
   const markerKey = markers.join('\u0000');

@@ -2,6 +2,10 @@ import { useState } from 'react';
 import type { SampleResults } from '../../../lib/reporting/types';
 import { HistogramPlot } from './HistogramPlot';
 import { ci, nm, pct } from './format';
+import { COMPARISON_METHOD } from '../../../lib/reporting/methodText';
+
+const sd = (x: number | null) => (x === null ? '–' : `${(x * 100).toFixed(1)} %`);
+const icc = (x: number | null) => (x === null ? '–' : x.toFixed(3));
 
 /** One sample's results: marker fractions, phenotype combinations, size distributions, per-field QC. */
 export function SampleView({ r }: { r: SampleResults }) {
@@ -13,25 +17,32 @@ export function SampleView({ r }: { r: SampleResults }) {
       <section className="card">
         <h2>Marker-positive vesicles</h2>
         <p className="text-sm text-mica-600 mt-1" data-testid="sample-totals">
-          {r.fieldsAnalysed} field(s) and {r.vesicles} vesicles analysed (counts). Median diameter {nm(r.diameter.medianNm)}
+          {r.fieldsAnalysed} field(s) and {r.vesicles} vesicles analysed ({r.phenotyped} measured in every channel). Median diameter {nm(r.diameter.medianNm)}
           {' '}(IQR {nm(r.diameter.q1Nm)}–{nm(r.diameter.q3Nm)}), median height {nm(r.height.medianNm)}.
         </p>
         <table className="data-table mt-3 w-full text-sm" data-testid="marker-table">
-          <thead><tr><th>Marker</th><th>Positive (count)</th><th>Analysed (count)</th><th>Positive</th><th>95% interval (Wilson)</th></tr></thead>
+          <thead><tr><th>Marker</th><th>Positive (count)</th><th>Measured in this channel (count)</th><th>Positive</th><th>95% interval over fields</th><th>Between-field SD</th><th>ICC</th><th>Design effect</th></tr></thead>
           <tbody>
             {r.markers.map((m) => (
-              <tr key={m.channelIndex}><td className="font-semibold">{m.marker}</td><td>{m.count}</td><td>{m.total}</td><td>{pct(m.fraction)}</td><td>{ci(m.lower, m.upper)}</td></tr>
+              <tr key={m.channelIndex}>
+                <td className="font-semibold">{m.marker}</td><td>{m.count}</td><td>{m.total}</td><td>{pct(m.fraction)}</td><td>{ci(m.lower, m.upper)}</td>
+                <td>{sd(m.betweenFieldSd)}</td><td>{icc(m.icc)}</td><td>{m.designEffect.toFixed(2)}</td>
+              </tr>
             ))}
           </tbody>
         </table>
+        <p className="text-xs text-mica-600 mt-2">
+          {COMPARISON_METHOD.perSample} Vesicles outside a channel's frame are not measured there and leave that marker's denominator.
+          Fractions pooled over vesicles are descriptive: compare groups on the study's compare page, where each sample counts once.
+        </p>
       </section>
       <section className="card">
         <h2>Phenotype combinations</h2>
         <table className="data-table mt-3 w-full text-sm">
-          <thead><tr><th>Phenotype</th><th>Vesicles (count)</th><th>Share</th><th>95% interval (Wilson)</th></tr></thead>
+          <thead><tr><th>Phenotype</th><th>Vesicles (count)</th><th>Share of {r.phenotyped} measured in every channel</th><th>95% interval over fields</th><th>Between-field SD</th></tr></thead>
           <tbody>
             {r.phenotypes.map((p) => (
-              <tr key={p.bits}><td>{p.label}</td><td>{p.count}</td><td>{pct(p.fraction)}</td><td>{ci(p.lower, p.upper)}</td></tr>
+              <tr key={p.bits}><td>{p.label}</td><td>{p.count}</td><td>{pct(p.fraction)}</td><td>{ci(p.lower, p.upper)}</td><td>{sd(p.betweenFieldSd)}</td></tr>
             ))}
           </tbody>
         </table>
@@ -56,13 +67,13 @@ export function SampleView({ r }: { r: SampleResults }) {
         <h2>Fields (quality control)</h2>
         <table className="data-table mt-3 w-full text-sm" data-testid="field-table">
           <thead>
-            <tr><th>Field</th><th>Status</th><th>Vesicles (count)</th>{r.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ (count)</th>)}<th>FRE</th><th>Fiducials (count)</th><th>AFM pixel</th></tr>
+            <tr><th>Field</th><th>Status</th><th>Vesicles (count)</th>{r.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ / measured (%)</th>)}<th>FRE</th><th>Fiducials (count)</th><th>AFM pixel</th></tr>
           </thead>
           <tbody>
             {r.fields.map((f) => (
               <tr key={f.fieldId}>
                 <td>{f.name}</td><td>{f.status}</td><td>{f.vesicles}</td>
-                {f.positives.map((k, i) => <td key={i}>{k}</td>)}
+                {f.positives.map((k, i) => <td key={i} className="tabular-nums">{k} / {f.measured[i]} ({pct(f.measured[i] ? k / f.measured[i] : null)})</td>)}
                 <td>{nm(f.freNm)}</td><td>{f.nbFiducials ?? '–'}</td><td>{f.afmPixelNm === null ? '–' : `${f.afmPixelNm.toFixed(2)} nm/px`}</td>
               </tr>
             ))}

@@ -6,7 +6,7 @@ import { conflict, notFound } from '../../../../lib/http/errors';
 import { getDb } from '../../../../lib/db/client';
 import { requireFieldAction } from '../../../../lib/auth/fieldAccess';
 import { getFieldDetail } from '../../../../lib/db/queries/fields';
-import { removeField } from '../../../../lib/db/queries/results';
+import { removeField } from '../../../../lib/db/queries/fieldRemoval';
 import { getStorage } from '../../../../lib/storage/client';
 import { deleteObject, deletePrefix } from '../../../../lib/storage/objects';
 import { fieldPrefix } from '../../../../lib/storage/keys';

@@ -5,7 +5,8 @@ import { parseJson, parseParams, IdParam } from '../../../../lib/http/parse';
 import { requireRole, requireStudyAction } from '../../../../lib/auth/session';
 import { conflict, notFound } from '../../../../lib/http/errors';
 import { getDb } from '../../../../lib/db/client';
-import { createRelease, getSampleContext } from '../../../../lib/db/queries/results';
+import { createRelease } from '../../../../lib/db/queries/releases';
+import { getSampleContext } from '../../../../lib/db/queries/sampleSelection';
 import { audit } from '../../../../lib/audit';
 import { clientAddress } from '../../../../lib/http/context';
 

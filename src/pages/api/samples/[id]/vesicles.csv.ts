@@ -1,6 +1,7 @@
 import type { APIRoute } from 'astro';
 import { handle } from '../../../../lib/http/respond';
-import { getPanel, pageVesicles } from '../../../../lib/db/queries/results';
+import { getPanel } from '../../../../lib/db/queries/sampleSelection';
+import { pageVesicles } from '../../../../lib/db/queries/vesicleExport';
 import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
 import { sampleVesicleCsvHeader, sampleVesicleCsvRow } from '../../../../lib/reporting/exports';
 import { safeFileName } from '../../../../lib/reporting/csv';
