@@ -1,6 +1,6 @@
 /**
  * A reporting checklist for a study, filled from what Heightlight recorded. Items follow the
- * proposed checklist fields in /work/shared/REFERENCES.md §8, which draw on MISEV2018 (Théry et al.
+ * proposed checklist fields in docs/references.md §8, which draw on MISEV2018 (Théry et al.
  * 2018, J Extracell Vesicles 7:1535750), MISEV2023 (Welsh et al. 2024, J Extracell Vesicles
  * 13:e12404) and MIFlowCyt-EV (Welsh et al. 2020, J Extracell Vesicles 9:1713526).
  */

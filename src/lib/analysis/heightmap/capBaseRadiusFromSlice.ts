@@ -11,7 +11,7 @@ import { AnalysisError } from '../errors';
  * @returns base radius a (nm); equals r_t when t = 0
  * @throws AnalysisError `not_a_cap` when t ≥ h or the numbers describe no cap with θ ≤ 180° (2R_c < h)
  * @throws RangeError for a negative or non-finite argument
- * @see REFERENCES.md §2 (a² + h² = 2hR_c)
+ * @see docs/references.md §2 (a² + h² = 2hR_c)
  */
 export function capBaseRadiusFromSlice(sliceRadiusNm: number, sliceHeightNm: number, apexHeightNm: number): number {
   for (const [name, v] of [['sliceRadiusNm', sliceRadiusNm], ['sliceHeightNm', sliceHeightNm], ['apexHeightNm', apexHeightNm]] as const) {

@@ -10,7 +10,7 @@ import type { SphericalCapResult } from './types';
  * @param heightNm - cap height h (nm), > 0
  * @returns all derived quantities (nm, nm², nm³, degrees)
  * @throws RangeError when a or h is not a positive finite number
- * @see REFERENCES.md §2 (handbook cap relations a² + h² = 2hR; cap volume)
+ * @see docs/references.md §2 (handbook cap relations a² + h² = 2hR; cap volume)
  * @see Ridolfi A et al. 2020, Anal Chem 92(15):10274–10282 (EVs modelled as caps; area-conserving diameter, from memory)
  */
 export function sphericalCap(baseRadiusNm: number, heightNm: number): SphericalCapResult {

@@ -8,7 +8,7 @@
  * @param tipRadiusNm - tip apex radius R (nm), ≥ 0
  * @returns apparent half-width (nm)
  * @throws RangeError for a negative or non-finite argument
- * @see REFERENCES.md §3 (cap general form; sphere case attributed to Vesenka et al. 1993, from memory)
+ * @see docs/references.md §3 (cap general form; sphere case attributed to Vesenka et al. 1993, from memory)
  */
 export function tipBroadenedHalfWidth(baseRadiusNm: number, heightNm: number, tipRadiusNm: number): number {
   for (const [name, v] of [['baseRadiusNm', baseRadiusNm], ['heightNm', heightNm], ['tipRadiusNm', tipRadiusNm]] as const) {

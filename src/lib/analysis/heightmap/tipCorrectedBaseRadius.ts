@@ -11,7 +11,7 @@ import { AnalysisError } from '../errors';
  * @returns corrected base radius a (nm)
  * @throws AnalysisError `tip_broadening_exceeds_width` when w² < 2hR (the tip cannot have produced so narrow an image)
  * @throws RangeError for a negative or non-finite argument
- * @see REFERENCES.md §3 (cap general form)
+ * @see docs/references.md §3 (cap general form)
  */
 export function tipCorrectedBaseRadius(apparentHalfWidthNm: number, heightNm: number, tipRadiusNm: number): number {
   for (const [name, v] of [['apparentHalfWidthNm', apparentHalfWidthNm], ['heightNm', heightNm], ['tipRadiusNm', tipRadiusNm]] as const) {

@@ -14,7 +14,7 @@ const MAX_PLACEMENT_ATTEMPTS = 200;
  * @returns the raw raster, the noise-free topography and the ground truth
  * @throws AnalysisError `scene_too_crowded` when random features cannot be placed without overlap
  * @throws RangeError for non-positive sizes or an inverted range
- * @see REFERENCES.md §2 (cap geometry: R_c = (a² + h²)/(2h))
+ * @see docs/references.md §2 (cap geometry: R_c = (a² + h²)/(2h))
  */
 export function makeHeightScene(options: MakeHeightSceneOptions = {}): MakeHeightSceneResult {
   const {

@@ -59,7 +59,7 @@ describe('inspectTiff: pixel size in nm', () => {
     expect(meta.pixelSizeNm).toEqual({ x: 7.8125, y: 7.8125 });
   });
 
-  it('OME-XML in metres, e.g. 4.2e-06 m (REFERENCES.md §10 example) → 4200 nm', () => {
+  it('OME-XML in metres, e.g. 4.2e-06 m (docs/references.md §10 example) → 4200 nm', () => {
     const meta = inspectTiff(small({
       imageDescription: ome('PhysicalSizeX="4.2e-06" PhysicalSizeXUnit="m" PhysicalSizeY="4.2e-06" PhysicalSizeYUnit="m"'),
     }));

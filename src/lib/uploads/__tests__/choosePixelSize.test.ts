@@ -3,7 +3,7 @@ import { choosePixelSize, distrustFilePixelSize } from '../choosePixelSize';
 import { inspectTiff, writeTiff } from '../../imaging';
 
 // Pixel size from resolution tags = unit length / XResolution, 1 inch = 2.54e7 nm, 1 cm = 1e7 nm
-// (TIFF 6.0 section 8, ResolutionUnit; /work/shared/REFERENCES.md "ResolutionUnit" row).
+// (TIFF 6.0 section 8, ResolutionUnit; docs/references.md §10, TIFF 6.0 row).
 const tiff = (resolution?: { x: number; y: number; unit: 'inch' | 'centimetre' }) =>
   inspectTiff(writeTiff([{ data: new Float32Array(16), width: 4, height: 4 }], { bitsPerSample: 32, sampleFormat: 'float', resolution }));
 const ome = (x: number, y = x) => ({ pixelSizeNm: { x, y }, pixelSizeSource: 'ome-xml' });

@@ -37,7 +37,7 @@ function match(spots: { x: number; y: number }[], truth: { x: number; y: number 
 
 describe('detectSpots', () => {
   it('localises Poisson spots within 1.5× the Thompson–Larson–Webb precision', () => {
-    // Source: REFERENCES.md §4, Thompson, Larson & Webb 2002 (Biophys J 82:2775), eq. 17:
+    // Source: docs/references.md §4, Thompson, Larson & Webb 2002 (Biophys J 82:2775), eq. 17:
     // ⟨Δx²⟩ = (s² + a²/12)/N + 8π s⁴ b²/(a² N²), in pixels (a = 1), s = 1.3 px, N = 1000, b² = 10 photons/px.
     // The bound 1.5× is the brief's; the lower bound 0.8× guards against a test that cannot fail (an error far below
     // the formula would mean the truth leaked). 210 spots × 2 axes: the RMS has a sampling SE of ~3.5 %.

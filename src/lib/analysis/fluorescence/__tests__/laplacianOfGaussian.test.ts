@@ -15,7 +15,7 @@ function disk(size: number, radiusPx: number): Raster {
 // both kernels: the WebAssembly SIMD one that runs by default and the JavaScript fallback
 describe.each(['wasm', 'js'] as const)('laplacianOfGaussian (%s)', (implementation) => {
   it('normalised response to a disk of radius r peaks at sigma = r/√2', () => {
-    // Source: REFERENCES.md §5 (Lindeberg 1998, IJCV 30(2):79–116; scale-normalised LoG, γ = 1): the centre
+    // Source: docs/references.md §5 (Lindeberg 1998, IJCV 30(2):79–116; scale-normalised LoG, γ = 1): the centre
     // response ∝ (r²/σ²)·exp(−r²/2σ²) peaks at σ* = r/√2 = 7.071 px for r = 10; their discrete check found 7.10.
     // Tolerance 0.15 px: the binary disk's jagged edge and the 5-point Laplacian shift the discrete optimum
     // (7.10 in the reference's own discrete check), plus the 0.05 px scan step.

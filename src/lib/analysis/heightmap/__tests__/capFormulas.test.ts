@@ -7,7 +7,7 @@ import { tipCorrectedBaseRadius } from '../tipCorrectedBaseRadius';
 
 describe('sphericalCap', () => {
   it('matches the REFERENCES §2 test values for h = 20, a = 50 nm', () => {
-    // Source: /work/shared/REFERENCES.md §2 "Test values" (computed from the handbook cap relations).
+    // Source: docs/references.md §2 "Test values" (computed from the handbook cap relations).
     // Tolerances: half a unit of the last printed digit of each reference value.
     const cap = sphericalCap(50, 20);
     expect(Math.abs(cap.sphereRadiusNm - 72.5)).toBeLessThan(0.05);
@@ -20,7 +20,7 @@ describe('sphericalCap', () => {
   });
 
   it('gives a hemisphere (h = a = 50) volume (2/3)πr³ = 261 799.39 nm³ and θ = 90°', () => {
-    // Source: REFERENCES.md §2 hemisphere check. Tolerance 0.005 nm³ (printed to 2 decimals); angle to 1e-9 (exact arithmetic).
+    // Source: docs/references.md §2 hemisphere check. Tolerance 0.005 nm³ (printed to 2 decimals); angle to 1e-9 (exact arithmetic).
     const cap = sphericalCap(50, 50);
     expect(Math.abs(cap.volumeNm3 - 261799.39)).toBeLessThan(0.005);
     expect(Math.abs(cap.volumeNm3 - (2 / 3) * Math.PI * 50 ** 3)).toBeLessThan(1e-6);
@@ -29,7 +29,7 @@ describe('sphericalCap', () => {
   });
 
   it('agrees with sin θ = a/R_c and cos θ = 1 − h/R_c for θ ≤ 90°', () => {
-    // Source: REFERENCES.md §2 contact-angle row (invariants for θ ≤ 90°). Tolerance 1e-12: double rounding.
+    // Source: docs/references.md §2 contact-angle row (invariants for θ ≤ 90°). Tolerance 1e-12: double rounding.
     for (const [a, h] of [[50, 20], [80, 10], [30, 29]]) {
       const cap = sphericalCap(a, h);
       const theta = (cap.contactAngleDeg * Math.PI) / 180;
@@ -46,21 +46,21 @@ describe('sphericalCap', () => {
 
 describe('tip broadening', () => {
   it('matches the REFERENCES §3 cap examples', () => {
-    // Source: REFERENCES.md §3 "Cap (θ ≤ 90°) — general form": a = 50, h = 20, R = 10 → 53.85;
+    // Source: docs/references.md §3 "Cap (θ ≤ 90°) — general form": a = 50, h = 20, R = 10 → 53.85;
     // a = 60, h = 15, R = 5 → 61.24. Tolerance 0.005 nm: values printed to 2 decimals.
     expect(Math.abs(tipBroadenedHalfWidth(50, 20, 10) - 53.85)).toBeLessThan(0.005);
     expect(Math.abs(tipBroadenedHalfWidth(60, 15, 5) - 61.24)).toBeLessThan(0.005);
   });
 
   it('reduces to the sphere result W = 4√(Rr) (r = 5, R = 20: half-width 20)', () => {
-    // Source: REFERENCES.md §3 sphere row (classic geometric result; Vesenka et al. 1993 attribution from memory).
+    // Source: docs/references.md §3 sphere row (classic geometric result; Vesenka et al. 1993 attribution from memory).
     // a = 0, h = 2r. Tolerance 1e-12: exact arithmetic.
     expect(Math.abs(tipBroadenedHalfWidth(0, 10, 20) - 20)).toBeLessThan(1e-12);
     expect(Math.abs(2 * tipBroadenedHalfWidth(0, 2 * 7, 30) - 4 * Math.sqrt(30 * 7))).toBeLessThan(1e-12);
   });
 
   it('correction inverts broadening, and refuses an image narrower than the tip allows', () => {
-    // Invariant: a = √(w² − 2hR) undoes w = √(a² + 2hR) (REFERENCES.md §3). Tolerance 1e-9 nm: rounding in two square roots.
+    // Invariant: a = √(w² − 2hR) undoes w = √(a² + 2hR) (docs/references.md §3). Tolerance 1e-9 nm: rounding in two square roots.
     for (const [a, h, R] of [[50, 20, 10], [60, 15, 5], [12, 30, 25]]) {
       expect(Math.abs(tipCorrectedBaseRadius(tipBroadenedHalfWidth(a, h, R), h, R) - a)).toBeLessThan(1e-9);
     }
@@ -76,7 +76,7 @@ describe('tip broadening', () => {
 
 describe('capBaseRadiusFromSlice', () => {
   it('recovers the base radius of a cap from a slice above the substrate', () => {
-    // Cap a = 50, h = 20 (R_c = 72.5, REFERENCES.md §2). Slice at t: r_t² = R_c² − (R_c − h + t)².
+    // Cap a = 50, h = 20 (R_c = 72.5, docs/references.md §2). Slice at t: r_t² = R_c² − (R_c − h + t)².
     // Tolerance 1e-9 nm: exact arithmetic.
     const Rc = 72.5;
     for (const t of [0.5, 2, 10, 19]) {

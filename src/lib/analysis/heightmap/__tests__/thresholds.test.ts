@@ -18,7 +18,7 @@ const OTSU_IMAGE = [
 
 describe('otsuHistogramThreshold', () => {
   it('splits the hand-worked histogram of REFERENCES §6 at level 3', () => {
-    // Source: REFERENCES.md §6 (Otsu 1979), levels 1–6, counts [2, 5, 3, 1, 4, 6]:
+    // Source: docs/references.md §6 (Otsu 1979), levels 1–6, counts [2, 5, 3, 1, 4, 6]:
     // t = 3, σ_B² = 2.8069, w₀ = 0.4762, μ₀ = 2.1, μ₁ = 5.4545. Tolerance 5e-5: values printed to 4 decimals.
     const r = otsuHistogramThreshold([2, 5, 3, 1, 4, 6], [1, 2, 3, 4, 5, 6]);
     expect(r.thresholdIndex).toBe(2); // level 3
@@ -29,7 +29,7 @@ describe('otsuHistogramThreshold', () => {
   });
 
   it('splits the 5×5 image of REFERENCES §6 at 2 with σ_B² = 2.7236', () => {
-    // Source: REFERENCES.md §6, scikit-image test_otsu image: threshold 2 (foreground > 2), σ_B² = 2.7236.
+    // Source: docs/references.md §6, scikit-image test_otsu image: threshold 2 (foreground > 2), σ_B² = 2.7236.
     // Tolerance 5e-5: printed to 4 decimals.
     const counts = new Array(6).fill(0);
     for (const row of OTSU_IMAGE) for (const v of row) counts[v]++;
@@ -45,7 +45,7 @@ describe('otsuHistogramThreshold', () => {
 
 describe('otsuThreshold (float raster)', () => {
   it('puts the 5×5 image threshold between 2 and 3, so foreground = pixels > 2', () => {
-    // Source: REFERENCES.md §6 (same image). With 6 bins over [0, 5] the split is at a bin edge in (2, 3).
+    // Source: docs/references.md §6 (same image). With 6 bins over [0, 5] the split is at a bin edge in (2, 3).
     const data = Float32Array.from(OTSU_IMAGE.flat());
     const r = otsuThreshold({ data, width: 5, height: 5 }, { nbBins: 6 });
     expect(r.thresholdNm).toBeGreaterThan(2);

@@ -10,7 +10,7 @@ describe('backgroundAmplitudeThreshold', () => {
   it('is mean + 3 SD of unconstrained PSF amplitudes at empty places, centred on 0 with the SE of the fit', () => {
     // An empty frame: 100 photons/px + offset 100 counts, Poisson noise. Amplitudes at empty places must scatter
     // around 0 with SD equal to the least-squares SE of one PSF amplitude (≥ √(100·4πσ²) ≈ 46 counts, computed from
-    // Var = σ²/Σf², Σf² ≈ 1/(4πσ²)). The threshold is mean + 3 SD (REFERENCES.md §9, IUPAC limit of detection).
+    // Var = σ²/Σf², Σf² ≈ 1/(4πσ²)). The threshold is mean + 3 SD (docs/references.md §9, IUPAC limit of detection).
     const rng = createTestRng(51);
     const { raster } = renderFluorescenceScene({ widthPx: 200, heightPx: 200, sigmaPx: SIGMA, spots: [], rng, backgroundPhotonsPerPx: 100, cameraOffsetCounts: 100 });
     const before = snapshot(raster);

@@ -35,7 +35,7 @@ describe('estimateMarkerAmplitudes', () => {
   it('gives the light of two vesicles 1σ apart to the labelled one, where apertures call both', () => {
     // 20 pairs 1σ apart, only the first labelled with 2000 photons, over 100 photons/px. Apertures (radius 2σ) around
     // the unlabelled one still hold most of the neighbour's light, so both exceed the background-aperture threshold
-    // (mean + 3 SD, REFERENCES.md §9, common practice). NNLS must call only the labelled one (amplitude SNR > 3 vs < 3).
+    // (mean + 3 SD, docs/references.md §9, common practice). NNLS must call only the labelled one (amplitude SNR > 3 vs < 3).
     // Allow 1 of 20 pairs to miss: at SNR 3 the unlabelled one crosses by chance with p ≈ 0.1 % per pair.
     const rng = createTestRng(32);
     const labelled: { x: number; y: number; photons: number }[] = [];

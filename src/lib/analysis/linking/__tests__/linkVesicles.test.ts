@@ -16,7 +16,7 @@ describe('linkVesicles', () => {
   it('calls ≥ 95 % of markers right on a synthetic scene (300–600 photons over 100 photons/px)', () => {
     // Scene per the brief: 169 vesicles on a jittered 18-px grid, each marker present with p = 0.5 at 300–600 photons,
     // background 100 photons/px, offset 100, Poisson noise. The joint amplitude is called (the default), so the
-    // thresholds are mean + 3 SD of amplitudes fitted at empty places (REFERENCES.md §9, common practice); they were
+    // thresholds are mean + 3 SD of amplitudes fitted at empty places (docs/references.md §9, common practice); they were
     // aperture thresholds while apertures were called. Expected accuracy ~99 % (SE of a PSF amplitude ≈ 55 counts, so the
     // threshold is ≈ 165 counts and a 300-photon vesicle sits ~2.5 SE above it, most carry more);
     // the brief's bar is 95 %. Four free spots (2000 photons) with no vesicle per channel must be counted as unmatched,
@@ -71,7 +71,7 @@ describe('linkVesicles', () => {
     // neighbour 2 px away (130 nm at 65 nm/px, well inside the PSF: σ = 1.3 px), over 100 photons/px, offset 100,
     // Poisson noise. An aperture (radius 2σ) round a neighbour collects much of the bright light, so it exceeds the
     // aperture threshold; the joint NNLS amplitude gives that light to the labelled vesicle. Both thresholds are
-    // mean + 3 SD at empty places (REFERENCES.md §9, common practice), each in its own quantity.
+    // mean + 3 SD at empty places (docs/references.md §9, common practice), each in its own quantity.
     const rng = createTestRng(43);
     const bright: { x: number; y: number; photons: number }[] = [];
     const neighbours: { x: number; y: number }[] = [];

@@ -4,7 +4,7 @@ import { thresholdFromControls } from '../thresholdFromControls';
 
 describe('thresholdFromControls', () => {
   it('reproduces the isotype example: mean 100, SD 7.348, threshold 122.05', () => {
-    // Source: REFERENCES.md §9 "Positivity threshold" (IUPAC Gold Book L03540 form x̄ + k·s, k = 3).
+    // Source: docs/references.md §9 "Positivity threshold" (IUPAC Gold Book L03540 form x̄ + k·s, k = 3).
     // Tolerance 0.005: the reference prints two decimals.
     const values = [100, 110, 95, 105, 90, 100, 108, 92];
     const result = thresholdFromControls(values);
