@@ -16,6 +16,7 @@ import { pipeline } from 'node:stream/promises';
 import type { Readable } from 'node:stream';
 import { GetObjectCommand } from '@aws-sdk/client-s3';
 import { findBinDir } from './lib/postgres';
+import { cliArgs } from './lib/cliArgs';
 import { config } from '../src/lib/config';
 import { createStorage, type Storage } from '../src/lib/storage/client';
 import { listPages } from '../src/lib/storage/objects';
@@ -120,19 +121,14 @@ export async function backup(opts: { databaseUrl: string; storage: Storage; outD
   return manifest;
 }
 
-/** Reads `--name value` from argv. */
-export function flag(name: string): string | undefined {
-  const i = process.argv.indexOf(`--${name}`);
-  return i >= 0 ? process.argv[i + 1] : undefined;
-}
-
 /** True when this file is the script node was started with (not imported). */
 export const isMain = (url: string) => process.argv[1] !== undefined && resolve(process.argv[1]) === resolve(new URL(url).pathname);
 
 if (isMain(import.meta.url)) {
-  const out = flag('out');
+  const usage = 'usage: npm run backup -- --out DIR';
+  const { out } = cliArgs({ out: { type: 'string' } }, usage);
   if (!out) {
-    console.error('usage: npm run backup -- --out DIR');
+    console.error(usage);
     process.exit(2);
   }
   const { databaseUrl, storage } = settingsFromEnv();

@@ -15,6 +15,7 @@ import { eq, inArray, sql } from 'drizzle-orm';
 import { createDb } from '../src/lib/db/client';
 import { fields, samples } from '../src/lib/db/schema';
 import { config } from '../src/lib/config';
+import { cliArgs } from './lib/cliArgs';
 
 const P99_BUDGET_MS = 300;
 
@@ -25,16 +26,21 @@ interface AutocannonInstance extends PromiseLike<AutocannonResult> {
 }
 const autocannon = createRequire(import.meta.url)('autocannon') as (opts: Record<string, unknown>) => AutocannonInstance;
 
-function flag(name: string, fallback: string): string {
-  const i = process.argv.indexOf(`--${name}`);
-  return i >= 0 && process.argv[i + 1] ? process.argv[i + 1] : fallback;
-}
-
-const base = flag('url', process.env.HEIGHTLIGHT_APP_URL ?? config().PUBLIC_URL).replace(/\/$/, '');
-const connections = Number(flag('connections', '10'));
-const durationS = Number(flag('duration', '5'));
-const maxRequests = Number(flag('max-requests', '200000'));
-const password = flag('password', process.env.DEMO_PASSWORD ?? 'vesicle-demo-2026');
+const args = cliArgs(
+  {
+    url: { type: 'string' },
+    connections: { type: 'string', default: '10' },
+    duration: { type: 'string', default: '5' },
+    'max-requests': { type: 'string' },
+    password: { type: 'string' },
+  },
+  'usage: npx tsx scripts/load.ts [--connections N] [--duration S] [--max-requests N] [--url URL] [--password P]',
+);
+const base = (args.url ?? process.env.HEIGHTLIGHT_APP_URL ?? config().PUBLIC_URL).replace(/\/$/, '');
+const connections = Number(args.connections);
+const durationS = Number(args.duration);
+const maxRequests = Number(args['max-requests'] ?? '200000');
+const password = args.password ?? process.env.DEMO_PASSWORD ?? 'vesicle-demo-2026';
 
 /** Signs in through Auth.js's credentials flow, as the sign-in form does; returns the cookie header. */
 async function signIn(email: string): Promise<string> {
@@ -79,7 +85,7 @@ async function sessions(email: string, n: number): Promise<string[]> {
 async function drive(name: string, paths: string[], cookies: string[]): Promise<Outcome> {
   const times: number[] = [];
   // autocannon ignores `duration` when `amount` is set, so the request cap applies only when asked for
-  const limit = process.argv.includes('--max-requests') ? { amount: maxRequests } : { duration: durationS };
+  const limit = args['max-requests'] !== undefined ? { amount: maxRequests } : { duration: durationS };
   let k = 0;
   const setupClient = (client: { setRequests(r: Record<string, unknown>[]): void }) => {
     const i = k++;

@@ -10,8 +10,9 @@ import { createReadStream, existsSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { CreateBucketCommand, HeadBucketCommand, ListObjectsV2Command, PutObjectCommand } from '@aws-sdk/client-s3';
 import pg from 'pg';
-import { flag, hashFile, isMain, objectPath, pgTool, settingsFromEnv, MANIFEST_VERSION, type Manifest } from './backup';
+import { hashFile, isMain, objectPath, pgTool, settingsFromEnv, MANIFEST_VERSION, type Manifest } from './backup';
 import type { Storage } from '../src/lib/storage/client';
+import { cliArgs } from './lib/cliArgs';
 
 /** Thrown when the target is not empty or the backup does not match its manifest; nothing was written. */
 export class RestoreRefused extends Error {}
@@ -97,13 +98,14 @@ export async function restore(opts: { databaseUrl: string; storage: Storage; fro
 }
 
 if (isMain(import.meta.url)) {
-  const from = flag('from');
+  const usage = 'usage: npm run restore -- --from DIR [--force]';
+  const { from, force = false } = cliArgs({ from: { type: 'string' }, force: { type: 'boolean' } }, usage);
   if (!from) {
-    console.error('usage: npm run restore -- --from DIR [--force]');
+    console.error(usage);
     process.exit(2);
   }
   const { databaseUrl, storage } = settingsFromEnv();
-  restore({ databaseUrl, storage, fromDir: from, force: process.argv.includes('--force'), log: (m) => console.log(`[restore] ${m}`) })
+  restore({ databaseUrl, storage, fromDir: from, force, log: (m) => console.log(`[restore] ${m}`) })
     .then((m) => {
       console.log(`[restore] done: database from ${m.createdAt} and ${m.objects.length} objects restored`);
       process.exit(0);
