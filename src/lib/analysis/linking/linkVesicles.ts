@@ -24,6 +24,8 @@ export interface LinkVesiclesOptions {
   thresholdCountsByMarker?: Readonly<Record<string, number>>;
   /** Camera noise model of the frames (weighted fit and model standard errors). @default none (residual-based SE) */
   camera?: CameraModel;
+  /** Camera noise model per marker (a frame's own estimate); overrides `camera` for the markers it names. @default none */
+  cameraByMarker?: Readonly<Record<string, CameraModel>>;
   /**
    * Light sources per marker that may lie near vesicles, such as detected spots (dim ones included): each one farther
    * than ownColumnMinDistancePx from every vesicle gets its own PSF column in the joint fit, so a free dye spot or
@@ -107,7 +109,7 @@ export interface LinkVesiclesResult {
   readonly positiveByMarker: Readonly<Record<string, number>>;
   /** Vesicles inside each marker's frame, the denominator of positiveByMarker (count). */
   readonly nbMeasuredByMarker: Readonly<Record<string, number>>;
-  /** PSF columns given to spots away from every vesicle, per marker (count). */
+  /** PSF columns given to spots away from every vesicle (within 6σ of one), per marker (count). */
   readonly nbOtherSpotSourcesByMarker: Readonly<Record<string, number>>;
   /** Detected spots with no vesicle within the match radius, per marker (possible debris, free dye or missed EVs). */
   readonly unmatchedSpotsByMarker: Readonly<Record<string, number>>;
@@ -134,7 +136,7 @@ export function linkVesicles(
   options: LinkVesiclesOptions,
 ): LinkVesiclesResult {
   const {
-    sigmaPxByMarker, thresholdCountsByMarker = {}, ruleByMarker = {}, camera, otherSourcesPx = [], positivityMeasure = 'jointAmplitude',
+    sigmaPxByMarker, thresholdCountsByMarker = {}, ruleByMarker = {}, camera, cameraByMarker = {}, otherSourcesPx = [], positivityMeasure = 'jointAmplitude',
     spotMatchRadiusPx, sourceSpotsByMarker, ownColumnMinDistancePx,
   } = options;
   const markers = Object.keys(rastersPerChannel);
@@ -163,12 +165,14 @@ export function linkVesicles(
     vesicleIndex.finish();
     // every emitter away from the vesicles gets its own column; the first n amplitudes are the vesicles'
     const ownPx = ownColumnMinDistancePx ?? 1.5 * sigmaPx;
+    // spots further than 6σ from every vesicle fall in other neighbourhoods of the fit and are left out
     const spotSources = (sourceSpotsByMarker?.[marker] ?? spots)
       .filter((s) => vesicleIndex.within(s.x, s.y, ownPx).filter((i) => i < n).length === 0)
+      .filter((s) => vesicleIndex.within(s.x, s.y, 6 * sigmaPx).filter((i) => i < n).length > 0)
       .map((s) => ({ x: s.x, y: s.y }));
     nbOtherSpotSourcesByMarker[marker] = spotSources.length;
     const sources = [...otherSourcesPx, ...spotSources];
-    const fitted = estimateMarkerAmplitudes(raster, sources.length ? [...vesiclesFl, ...sources] : vesiclesFl, { sigmaPx, camera }).amplitudes;
+    const fitted = estimateMarkerAmplitudes(raster, sources.length ? [...vesiclesFl, ...sources] : vesiclesFl, { sigmaPx, camera: cameraByMarker[marker] ?? camera }).amplitudes;
     const joint = fitted.slice(0, n);
     const tests = callMarkerAmplitudes(joint, rule);
 
