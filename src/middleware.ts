@@ -1,18 +1,27 @@
 /**
- * Every request: load the signed-in user into locals, guard private pages (anonymous → sign-in page),
- * and add security headers. API routes do their own role checks and answer 401/403 as JSON.
+ * Every request: refuse state-changing requests from other origins, load the signed-in user into locals, guard
+ * private pages (anonymous → sign-in page), and add security headers (CSP, no caching of private replies).
+ * API routes do their own role checks and answer 401/403 as JSON. The client address comes from the socket
+ * or a configured trusted proxy only (lib/http/peerAddress.ts).
  */
 import { defineMiddleware } from 'astro:middleware';
 import { getDb } from './lib/db/client';
 import { loadSession, renewedSessionCookie } from './lib/auth/session';
 import { requestContext } from './lib/http/requestContext';
+import { installPeerAddressGuard, requestClientAddress } from './lib/http/peerAddress';
+import { isSameOriginRequest } from './lib/http/sameOrigin';
 import { config } from './lib/config';
+
+installPeerAddressGuard(config().TRUSTED_PROXIES);
 
 const PUBLIC_PAGES = ['/signin', '/invite/', '/reset', '/favicon.svg', '/_astro/', '/api/auth/', '/api/invitations/', '/api/password-reset'];
 
 const isPublic = (path: string) => PUBLIC_PAGES.some((p) => path === p || path.startsWith(p));
 
-function securityHeaders(original: Response) {
+/** Replies that may be cached: the hashed build assets and the icon; everything else is private to its user. */
+const isCacheable = (path: string) => path.startsWith('/_astro/') || path === '/favicon.svg';
+
+function securityHeaders(original: Response, path = '') {
   let res = original;
   try {
     res.headers.set('X-Content-Type-Options', 'nosniff');
@@ -24,6 +33,7 @@ function securityHeaders(original: Response) {
   h.set('X-Content-Type-Options', 'nosniff');
   h.set('Referrer-Policy', 'same-origin');
   h.set('X-Frame-Options', 'DENY');
+  if (!isCacheable(path) && !h.has('cache-control')) h.set('Cache-Control', 'private, no-store');
   h.set(
     'Content-Security-Policy',
     [
@@ -47,6 +57,12 @@ function securityHeaders(original: Response) {
 export const onRequest = defineMiddleware(async (ctx, next) => {
   const path = ctx.url.pathname;
   ctx.locals.user = null;
+  if (!isSameOriginRequest(ctx.request, [ctx.url.origin, new URL(config().PUBLIC_URL).origin])) {
+    return securityHeaders(Response.json(
+      { error: 'cross_origin', message: 'This request came from another site and was refused. Use Heightlight from its own address.' },
+      { status: 403 },
+    ), path);
+  }
   let expiresAtMs: number | null = null;
   if (!path.startsWith('/_astro/')) {
     try {
@@ -59,21 +75,22 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
         return securityHeaders(Response.json(
           { error: 'service_unavailable', message: 'The database is not reachable right now. Try again in a moment.' },
           { status: 503 },
-        ));
+        ), path);
       }
     }
   }
   if (!ctx.locals.user && !isPublic(path) && !path.startsWith('/api/')) {
     const back = encodeURIComponent(path + ctx.url.search);
-    return securityHeaders(ctx.redirect(`/signin?next=${back}`, 302));
+    return securityHeaders(ctx.redirect(`/signin?next=${back}`, 302), path);
   }
-  let ip = 'unknown';
+  let astroAddress: string | undefined;
   try {
-    ip = ctx.clientAddress;
+    astroAddress = ctx.clientAddress;
   } catch {
     /* not available for prerendered routes */
   }
-  const res = securityHeaders(await requestContext.run({ ip }, () => next()));
+  const ip = requestClientAddress(ctx.request, astroAddress);
+  const res = securityHeaders(await requestContext.run({ ip }, () => next()), path);
   // Auth.js's own routes set or clear the session cookie themselves (sign-out must not be undone)
   if (expiresAtMs !== null && !path.startsWith('/api/auth/')) {
     const renewed = await renewedSessionCookie(ctx.request, expiresAtMs);

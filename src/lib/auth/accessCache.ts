@@ -19,14 +19,15 @@ import type { Role } from './permissions';
 
 export const ACCESS_CHANNEL = 'heightlight_access';
 
-export interface CachedUser { id: string; email: string; name: string; role: Role; active: boolean }
+/** `sessionVersion`: sessions issued under an older version are ended (see users.sessionVersion). */
+export interface CachedUser { id: string; email: string; name: string; role: Role; active: boolean; sessionVersion?: number }
 export interface CachedMembership { role: string | null }
 /** A study's marker panel in channel order (what every results reply labels its columns with). */
 export interface CachedPanel { channels: { channelIndex: number; marker: string }[] }
 /** The two facts of a sample that never change: its study and its code. */
 export interface CachedSample { studyId: string; code: string }
 /** A decoded session cookie: the user id it names and when it stops being valid (ms since epoch). */
-export interface CachedToken { uid: string; expiresAtMs: number }
+export interface CachedToken { uid: string; expiresAtMs: number; sv?: number }
 
 export interface AccessCacheOptions {
   /** An entry is read again after this long at most (ms). */

@@ -55,11 +55,13 @@ export async function loadSession(db: Db, request: Request): Promise<{ user: Ses
   const decode = async () => {
     const token = await readToken(request);
     if (typeof token?.uid !== 'string') return null;
-    return { uid: token.uid, expiresAtMs: typeof token.exp === 'number' ? token.exp * 1000 : Date.now() + 60_000 };
+    // a cookie from before session versions existed counts as version 0
+    const sv = typeof token.sv === 'number' ? token.sv : 0;
+    return { uid: token.uid, sv, expiresAtMs: typeof token.exp === 'number' ? token.exp * 1000 : Date.now() + 60_000 };
   };
   const loadUser = async (id: string) => {
     const [row] = await db
-      .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active })
+      .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active, sessionVersion: users.sessionVersion })
       .from(users)
       .where(eq(users.id, id));
     return row ?? null;
@@ -70,6 +72,8 @@ export async function loadSession(db: Db, request: Request): Promise<{ user: Ses
   if (!id) return null;
   const row = cache ? await cache.user(id, () => loadUser(id)) : await loadUser(id);
   if (!row || !row.active) return null;
+  // sign-out, a password change, a role change or deactivation raised the version: this session has ended
+  if ((token.sv ?? 0) !== (row.sessionVersion ?? 0)) return null;
   return { user: { id: row.id, email: row.email, name: row.name, role: row.role }, expiresAtMs: token.expiresAtMs };
 }
 

@@ -10,6 +10,7 @@ import { fields, samples, users, studyMembers } from '../db/schema';
 import { send } from '../mail';
 import { ImagingError } from '../imaging';
 import { jobDecodeLimits } from './decodeStoredFile';
+import { sendPasswordResetMail, type ResetMailJob } from '../auth/passwordResetMail';
 
 async function notifyFieldReady(fieldId: string) {
   const db = await getDb();
@@ -60,6 +61,9 @@ export function isFinalFailure(error: unknown, job: { retryCount: number; retryL
 export async function registerHandlers(boss: PgBoss) {
   const c = config();
   const decodeLimits = jobDecodeLimits(c);
+  await boss.work<ResetMailJob>(QUEUES.passwordResetMail, { batchSize: 1 }, async ([job]) => {
+    await sendPasswordResetMail(await getDb(), c.PUBLIC_URL, job.data);
+  });
   await boss.work<{ fieldId: string }>(QUEUES.linkField, { batchSize: 1 }, async ([job]) => {
     const started = Date.now();
     try {

@@ -3,5 +3,6 @@ export const QUEUES = {
   ingestField: 'ingest-field',
   detectField: 'detect-field',
   linkField: 'link-field',
+  passwordResetMail: 'password-reset-mail',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];

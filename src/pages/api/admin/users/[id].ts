@@ -4,6 +4,7 @@ import { handle } from '../../../../lib/http/respond';
 import { parseJson, parseParams, IdParam } from '../../../../lib/http/parse';
 import { HttpError, notFound } from '../../../../lib/http/errors';
 import { appAccessCache, requireRole } from '../../../../lib/auth/session';
+import { endAllSessions } from '../../../../lib/auth/sessionVersion';
 import { getDb } from '../../../../lib/db/client';
 import { users } from '../../../../lib/db/schema';
 import { audit } from '../../../../lib/audit';
@@ -19,6 +20,8 @@ export const PATCH = handle(async (ctx) => {
   const db = await getDb();
   const [row] = await db.update(users).set(body).where(eq(users.id, id)).returning({ id: users.id, role: users.role, active: users.active });
   if (!row) throw notFound('That person');
+  // a new role or a deactivation ends the person's sessions at once: they sign in again under the new rules
+  await endAllSessions(db, id);
   appAccessCache(db)?.forget({ userId: id });
   await audit(db, { action: body.active === false ? 'user.deactivated' : 'user.role_changed', actorId: admin.id, actorEmail: admin.email, targetType: 'user', targetId: id, ip: clientAddress(ctx), details: body });
   return Response.json(row);
