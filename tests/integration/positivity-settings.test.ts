@@ -1,7 +1,7 @@
 /**
  * Per-marker positivity settings (k of mean + k SD, a threshold set by hand) through the real app, database and job
  * worker: validation and roles, the fields linked with other settings, and re-linking a demo field with them.
- * The rule x_L = x̄_blank + k·s_blank is REFERENCES §9 (IUPAC Gold Book L03540).
+ * The rule x_L = x̄_blank + k·s_blank is docs/references.md §9 (IUPAC Gold Book L03540).
  */
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import { and, desc, eq, ne } from 'drizzle-orm';
@@ -53,7 +53,7 @@ async function controlAmplitudes(channel: number) {
   const v = rows.map((r) => (r.markers as { amplitude: number | null; amplitudeUnconstrained?: number | null }[])[channel])
     .map((c) => c.amplitudeUnconstrained ?? c.amplitude).filter((x): x is number => x != null);
   const mean = v.reduce((a, x) => a + x, 0) / v.length;
-  // sample SD (n − 1), REFERENCES §9 worked example
+  // sample SD (n − 1), docs/references.md §9 worked example
   return { n: v.length, mean, sd: Math.sqrt(v.reduce((a, x) => a + (x - mean) ** 2, 0) / (v.length - 1)) };
 }
 

@@ -72,7 +72,7 @@ async function relink(fieldId: string, sampleId: string, rows: V[]) {
   return lr.id;
 }
 
-/** Wilson score interval, written out here from the formula in REFERENCES §7 (Newcombe 1998a, method 3). */
+/** Wilson score interval, written out here from the formula in docs/references.md §7 (Newcombe 1998a, method 3). */
 function wilson(k: number, n: number) {
   const z = 1.959963984540054; // 97.5% standard normal quantile (from memory; standard tables give 1.96)
   const p = k / n;
@@ -155,7 +155,7 @@ describe('released results', () => {
     expect(r.fieldsAnalysed).toBe(2);
     const expected = [0, 1, 2].map((bit) => S1_ROWS.filter((v) => v.bits & (1 << bit)).length);
     expect(r.markers.map((m: { marker: string; count: number }) => [m.marker, m.count])).toEqual([['CD9', expected[0]], ['CD63', expected[1]], ['CD81', expected[2]]]);
-    // 81/263 → 0.2553–0.3662: Newcombe 1998a (Stat Med 17:857), Table I, method 3 (REFERENCES §7); 4 decimals as printed
+    // 81/263 → 0.2553–0.3662: Newcombe 1998a (Stat Med 17:857), Table I, method 3 (docs/references.md §7); 4 decimals as printed
     expect(expected[0]).toBe(81);
     expect(r.markers[0].lower).toBeCloseTo(0.2553, 4);
     expect(r.markers[0].upper).toBeCloseTo(0.3662, 4);
@@ -261,7 +261,7 @@ describe('group comparison', () => {
   });
 
   it('reproduces a published Newcombe difference interval for two single-sample groups', async () => {
-    // 56/70 − 48/80: 0.0524 to 0.3339, Newcombe 1998b (Stat Med 17:873), Table II (a), method 10 (REFERENCES §7)
+    // 56/70 − 48/80: 0.0524 to 0.3339, Newcombe 1998b (Stat Med 17:873), Table II (a), method 10 (docs/references.md §7)
     await q(`update samples set group_label = $2 where id = $1`, [sampleIds.s1, `rt-none-${run}`]);
     const c = await (await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?groupA=${GROUP_A}&groupB=${GROUP_B}`)).json();
     const cd81 = c.markerComparisons.find((m: { marker: string }) => m.marker === 'CD81');

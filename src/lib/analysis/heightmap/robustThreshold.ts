@@ -16,7 +16,7 @@ const ROBUST_MAX_SAMPLES = 1 << 17;
  * @param options - see {@link RobustThresholdOptions}
  * @returns threshold (nm) with the background median and sigma used
  * @throws AnalysisError `flat_background` when the background sigma is 0 (no noise to scale k by)
- * @see Hampel FR 1974, J Am Stat Assoc 69:383–393 (MAD); k = 3 as in the IUPAC detection limit (REFERENCES §9)
+ * @see Hampel FR 1974, J Am Stat Assoc 69:383–393 (MAD); k = 3 as in the IUPAC detection limit (docs/references.md §9)
  */
 export function robustThreshold(levelled: Raster, options: RobustThresholdOptions = {}): ThresholdResult {
   const { k = 3, clipIterations = 3, backgroundMask } = options;

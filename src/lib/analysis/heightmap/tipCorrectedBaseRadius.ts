@@ -3,7 +3,7 @@ import { AnalysisError } from '../errors';
 /**
  * Undo ball-tip broadening of a spherical cap (θ ≤ 90°): a = √(w² − 2hR), from the apparent
  * half-width w, the (unchanged) height h and the tip radius R. Not valid above 90°: there the
- * footprint is R_c + R, not a (REFERENCES §2, AFM caveat).
+ * footprint is R_c + R, not a (docs/references.md §2, AFM caveat).
  *
  * @param apparentHalfWidthNm - measured base half-width w (nm), ≥ 0
  * @param heightNm - measured height h (nm), ≥ 0

@@ -33,7 +33,7 @@ export interface MakeHeightSceneOptions {
   nbVesicles?: number;
   /** Range of random base radii (nm). @default [30, 60] */
   baseRadiusRangeNm?: readonly [number, number];
-  /** Range of random heights (nm); EVs dried on mica are roughly 5–30 nm high (REFERENCES §9, from memory). @default [8, 30] */
+  /** Range of random heights (nm); EVs dried on mica are roughly 5–30 nm high (docs/references.md §9, from memory). @default [8, 30] */
   heightRangeNm?: readonly [number, number];
   /** Beads at given places (rigid spheres: heightNm = 2·baseRadiusNm is enforced from heightNm); when set, `nbBeads` is ignored. @default undefined */
   beads?: readonly { xPx: number; yPx: number; heightNm?: number }[];

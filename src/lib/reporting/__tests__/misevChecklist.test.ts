@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import { misevChecklist, type ChecklistInput } from '../misevChecklist';
 
-// Items follow the proposed checklist in REFERENCES §8 (MISEV2018 PMC6322352, MISEV2023 PMC10850029,
+// Items follow the proposed checklist in docs/references.md §8 (MISEV2018 PMC6322352, MISEV2023 PMC10850029,
 // MIFlowCyt-EV PMC7034442). The inputs are invented studies.
 const complete: ChecklistInput = {
   panel: [

@@ -32,7 +32,7 @@ describe('evaluateRegistration', () => {
     expect(r.freNm).toBeCloseTo(r.rmsResidualPx * 20, 10);
     const rss = r.residualsPx.reduce((s, e) => s + e * e, 0);
     expect(r.sigmaPx as number).toBeCloseTo(Math.sqrt(rss / 6), 10);
-    // predicted TRE at the centroid is σ·√(2/N) (d = 0) — REFERENCES §1
+    // predicted TRE at the centroid is σ·√(2/N) (d = 0) — docs/references.md §1
     expect(r.predictedTreAtCentroidNm as number).toBeCloseTo(20 * (r.sigmaPx as number) * Math.sqrt(2 / 6), 9);
     const direct = predictTre(AFM, AFM, { sigmaPx: r.sigmaPx as number }).rmsTrePx.map((t) => t * 20);
     r.predictedTreAtFiducialsNm!.forEach((t, i) => expect(t).toBeCloseTo(direct[i], 9));

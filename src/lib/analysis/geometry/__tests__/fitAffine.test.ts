@@ -115,7 +115,7 @@ describe('fitAffine: refusals', () => {
 });
 
 describe('fitAffine: noise statistics', () => {
-  it('mean RSS over trials matches σ²(2N − 6): N = 8, σ = 1 → 10.0 (REFERENCES §1, regression degrees of freedom; Seber & Lee)', () => {
+  it('mean RSS over trials matches σ²(2N − 6): N = 8, σ = 1 → 10.0 (docs/references.md §1, regression degrees of freedom; Seber & Lee)', () => {
     // RSS/σ² ~ χ²(10) with variance 20; over 4000 trials the SE of the mean is √(20/4000) = 0.071,
     // so the required 5% tolerance (0.5) is 7 SE.
     const { normal } = createGaussian(2024);

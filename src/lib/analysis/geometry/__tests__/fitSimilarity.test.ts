@@ -48,7 +48,7 @@ describe('fitSimilarity', () => {
 
   it('agrees with the affine fit when the noise-free map is a similarity, and has smaller spread with noise', () => {
     // With noise, the similarity has 2 fewer parameters: E[RSS] = σ²(2N − 4) vs σ²(2N − 6) (regression
-    // degrees of freedom, REFERENCES §1 logic). 3000 trials, N = 6: SE of the mean RSS/σ² is √(2·8/3000) = 0.073;
+    // degrees of freedom, docs/references.md §1 logic). 3000 trials, N = 6: SE of the mean RSS/σ² is √(2·8/3000) = 0.073;
     // 5% of 8 = 0.4 is 5 SE.
     const { normal } = createGaussian(99);
     const clean = AFM.map((p) => applyAffine(similarityToAffine(TRUE), p));

@@ -23,7 +23,7 @@ describe('residuals (FRE)', () => {
 });
 
 describe('predictTre', () => {
-  it('±50 square, affine: 0.5σ² at (0,0) and 2.5σ² at (100,0) (REFERENCES §1, OLS prediction variance)', () => {
+  it('±50 square, affine: 0.5σ² at (0,0) and 2.5σ² at (100,0) (docs/references.md §1, OLS prediction variance)', () => {
     // Exact arithmetic: S = diag(10000, 10000), N = 4, so 2σ²(1/4 + d²/10000); tolerance is round-off only.
     const r = predictTre(SQUARE, [{ x: 0, y: 0 }, { x: 100, y: 0 }], { sigmaPx: 1 });
     expect(r.expectedTreSquaredPx2[0]).toBeCloseTo(0.5, 12);
@@ -32,7 +32,7 @@ describe('predictTre', () => {
     expect(r3.expectedTreSquaredPx2[0]).toBeCloseTo(2.5 * 9, 10);
   });
 
-  it('matches a simulation of the square with noise on the fluorescence side (REFERENCES §1: simulated 0.499 / 2.498)', () => {
+  it('matches a simulation of the square with noise on the fluorescence side (docs/references.md §1: simulated 0.499 / 2.498)', () => {
     // TRE² at a target is 0.5σ²·χ²(2)-like (variance ≈ E²); 20 000 trials give SE ≈ 0.7% of the mean,
     // so a 5% tolerance is ≈ 7 SE.
     const { normal } = createGaussian(31);
@@ -80,7 +80,7 @@ describe('leaveOneOutTre', () => {
     });
   });
 
-  it('is consistent with the predicted TRE: E[LOO²_i] = E[TRE²] of the fit without i at p_i + 2σ² (REFERENCES §1)', () => {
+  it('is consistent with the predicted TRE: E[LOO²_i] = E[TRE²] of the fit without i at p_i + 2σ² (docs/references.md §1)', () => {
     // The held-out fluorescence point carries its own noise (2σ²), hence the added term.
     // 3000 trials of N = 8: each LOO² has SD ≈ its mean, SE ≈ 1.8%; tolerance 7% on the average over points (≈ 4 SE per point, tighter in the mean).
     const { normal } = createGaussian(77);

@@ -6,7 +6,7 @@ import { tipBroadenedHalfWidth } from '../tipBroadenedHalfWidth';
 import { tipCorrectedBaseRadius } from '../tipCorrectedBaseRadius';
 
 describe('sphericalCap', () => {
-  it('matches the REFERENCES §2 test values for h = 20, a = 50 nm', () => {
+  it('matches the docs/references.md §2 test values for h = 20, a = 50 nm', () => {
     // Source: docs/references.md §2 "Test values" (computed from the handbook cap relations).
     // Tolerances: half a unit of the last printed digit of each reference value.
     const cap = sphericalCap(50, 20);
@@ -45,7 +45,7 @@ describe('sphericalCap', () => {
 });
 
 describe('tip broadening', () => {
-  it('matches the REFERENCES §3 cap examples', () => {
+  it('matches the docs/references.md §3 cap examples', () => {
     // Source: docs/references.md §3 "Cap (θ ≤ 90°) — general form": a = 50, h = 20, R = 10 → 53.85;
     // a = 60, h = 15, R = 5 → 61.24. Tolerance 0.005 nm: values printed to 2 decimals.
     expect(Math.abs(tipBroadenedHalfWidth(50, 20, 10) - 53.85)).toBeLessThan(0.005);

@@ -22,7 +22,7 @@ function nearest(found: readonly MeasureVesicleResult[], t: SceneTruth): { v: Me
 
 describe('detectVesicles on synthetic scenes (tilt + line offsets + 0.15 nm noise, levelled first)', () => {
   it.each([1, 2, 3])('seed %d: counts separated vesicles exactly, heights within 0.3 nm, centroids within 0.3 px', (seed) => {
-    // Acceptance criteria of the product brief. Ground truth from makeHeightScene (spherical caps, REFERENCES §2).
+    // Acceptance criteria of the product brief. Ground truth from makeHeightScene (spherical caps, docs/references.md §2).
     // Apex height tolerance 0.3 nm = 2σ of the noise; the quadratic apex fit averages ~25 px, so its SE is
     // ≈ 0.15·√(6/25) ≈ 0.07 nm plus < 0.05 nm sphere-vs-paraboloid bias. Centroid tolerance 0.3 px (brief).
     const scene = makeHeightScene({ seed, width: 256, height: 256, pixelSizeNm: 5, nbVesicles: 15 });
@@ -40,7 +40,7 @@ describe('detectVesicles on synthetic scenes (tilt + line offsets + 0.15 nm nois
       // The highest pixel is the maximum of several noisy samples near the apex, so it reads high;
       // allow 4σ = 0.6 nm (common practice: extreme of ~10 Gaussian samples stays below +3σ).
       expect(Math.abs(v.maxHeightNm - t.heightNm)).toBeLessThan(0.6);
-      // Cap base radius from the threshold footprint (REFERENCES §2 relation a² + h² = 2hR_c): the footprint
+      // Cap base radius from the threshold footprint (docs/references.md §2 relation a² + h² = 2hR_c): the footprint
       // area is a pixel count, ± half a pixel along the rim (2πr·0.5 px of ~πr² px), ≤ 5% for r ≥ 6 px.
       expect(Math.abs(v.cap!.baseRadiusNm - t.baseRadiusNm) / t.baseRadiusNm).toBeLessThan(0.05);
     }

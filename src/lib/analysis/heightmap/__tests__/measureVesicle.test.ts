@@ -79,10 +79,10 @@ describe('measureVesicle', () => {
   });
 
   it('measures a noise-free cap: apex, volume and the cap model', () => {
-    // Cap a = 50, h = 20 nm (REFERENCES §2: V = 82 728.61 nm³, θ = 43.603°) at 2 nm/px, centred off-grid.
+    // Cap a = 50, h = 20 nm (docs/references.md §2: V = 82 728.61 nm³, θ = 43.603°) at 2 nm/px, centred off-grid.
     // Apex: quadratic fit near the top, bias < r⁴/(8R_c³) ≈ 0.004 nm over the ±4 nm window → tolerance 0.01 nm.
     // Volume: midpoint sum at 2 nm/px of a smooth cap; truncated below the 0.5 nm slice (≈ 0.4% of V) → 1.5%.
-    // Base radius from the slice at 0.5 nm (REFERENCES §2 relation), ±½ px rim digitisation → 3%.
+    // Base radius from the slice at 0.5 nm (docs/references.md §2 relation), ±½ px rim digitisation → 3%.
     const scene = makeHeightScene({ width: 80, height: 80, pixelSizeNm: 2, vesicles: [{ xPx: 40.3, yPx: 39.6, baseRadiusNm: 50, heightNm: 20 }], noiseSigmaNm: 0, lineOffsetSigmaNm: 0, tiltXNmPerPx: 0, tiltYNmPerPx: 0, offsetNm: 0 });
     const topo = scene.topography;
     const labels = new Int32Array(topo.data.length);
@@ -101,7 +101,7 @@ describe('measureVesicle', () => {
   });
 
   it('applies the tip correction a = √(w² − 2hR) and flags an impossible one', () => {
-    // REFERENCES §3: a broadened cap of true a = 50, h = 20 seen with R = 10 has w = 53.85 nm. Render a cap
+    // docs/references.md §3: a broadened cap of true a = 50, h = 20 seen with R = 10 has w = 53.85 nm. Render a cap
     // with the apparent half-width and the true height, and the correction must return ≈ 50 nm (3%: rim digitisation).
     const w = tipBroadenedHalfWidth(50, 20, 10);
     const scene = makeHeightScene({ width: 80, height: 80, pixelSizeNm: 2, vesicles: [{ xPx: 40, yPx: 40, baseRadiusNm: w, heightNm: 20 }], noiseSigmaNm: 0, lineOffsetSigmaNm: 0, tiltXNmPerPx: 0, tiltYNmPerPx: 0, offsetNm: 0 });

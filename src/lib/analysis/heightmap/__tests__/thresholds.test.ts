@@ -17,7 +17,7 @@ const OTSU_IMAGE = [
 ];
 
 describe('otsuHistogramThreshold', () => {
-  it('splits the hand-worked histogram of REFERENCES §6 at level 3', () => {
+  it('splits the hand-worked histogram of docs/references.md §6 at level 3', () => {
     // Source: docs/references.md §6 (Otsu 1979), levels 1–6, counts [2, 5, 3, 1, 4, 6]:
     // t = 3, σ_B² = 2.8069, w₀ = 0.4762, μ₀ = 2.1, μ₁ = 5.4545. Tolerance 5e-5: values printed to 4 decimals.
     const r = otsuHistogramThreshold([2, 5, 3, 1, 4, 6], [1, 2, 3, 4, 5, 6]);
@@ -28,7 +28,7 @@ describe('otsuHistogramThreshold', () => {
     expect(Math.abs(r.mu1 - 5.4545)).toBeLessThan(5e-5);
   });
 
-  it('splits the 5×5 image of REFERENCES §6 at 2 with σ_B² = 2.7236', () => {
+  it('splits the 5×5 image of docs/references.md §6 at 2 with σ_B² = 2.7236', () => {
     // Source: docs/references.md §6, scikit-image test_otsu image: threshold 2 (foreground > 2), σ_B² = 2.7236.
     // Tolerance 5e-5: printed to 4 decimals.
     const counts = new Array(6).fill(0);

@@ -99,7 +99,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
     for (const result of [picked, automatic]) {
       const reg = result.summary.registration;
       expect(reg.mirrored).toBe(true);
-      // 0.3 fl px ≈ 20 nm, a tenth of the diffraction limit (REFERENCES §4, Abbe 186 nm at 520 nm, NA 1.4)
+      // 0.3 fl px ≈ 20 nm, a tenth of the diffraction limit (docs/references.md §4, Abbe 186 nm at 520 nm, NA 1.4)
       expect(transformErrorPx(scene, result)).toBeLessThan(0.3);
     }
     expect(picked.summary.registration.source).toBe('fiducials');
@@ -139,7 +139,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
     }
   });
 
-  it('derives each threshold from amplitudes at empty places as mean + 3 SD (REFERENCES §9, IUPAC limit of detection)', () => {
+  it('derives each threshold from amplitudes at empty places as mean + 3 SD (docs/references.md §9, IUPAC limit of detection)', () => {
     // the joint amplitude is what is called, so the threshold is in that quantity (it was aperture counts before)
     for (const m of picked.summary.markers) {
       const c = picked.summary.channels[m];
@@ -152,7 +152,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
         const call = r.markers[m];
         if (call.positive !== null) expect(call.positive).toBe(call.amplitudeCounts! > c.thresholdCounts);
       }
-      // PSF σ = 0.21·λ/NA/pixel (REFERENCES §4, Zhang et al. 2007): 520 nm, NA 1.4, 65 nm/px → 1.2 px
+      // PSF σ = 0.21·λ/NA/pixel (docs/references.md §4, Zhang et al. 2007): 520 nm, NA 1.4, 65 nm/px → 1.2 px
       if (m === 'CD9') expect(c.psfSigmaPx).toBeCloseTo(1.2, 9);
       // the five beads shine in every channel and are not counted as vesicle-free spots
       expect(c.nbSpotsOnFiducials).toBe(5);

@@ -40,7 +40,7 @@ export interface FieldSceneOptions {
 
 /**
  * A synthetic correlative field with known truth: spherical-cap vesicles and 400 nm beads on a tilted, noisy
- * substrate (AFM 10 nm/px); fluorescence at 65 nm/px (REFERENCES §9: 6.5 µm camera pixels at 100×) with Poisson
+ * substrate (AFM 10 nm/px); fluorescence at 65 nm/px (docs/references.md §9: 6.5 µm camera pixels at 100×) with Poisson
  * noise over 100 photons/px; a mirrored affine (scale 10/65, 7° rotation, slight shear) between the two, placed so
  * that a strip of the AFM field falls left of the fluorescence frame, which is 1.6× wider than the AFM field. Beads shine in every channel.
  */

@@ -8,7 +8,7 @@ function toBins(a: number[], b: number[]): BinnedPair[] {
 }
 
 describe('mannWhitneyUBinned', () => {
-  // Hollander & Wolfe (1973) p. 69 permeability data, as in R's wilcox.test example (REFERENCES §7): U = 35.
+  // Hollander & Wolfe (1973) p. 69 permeability data, as in R's wilcox.test example (docs/references.md §7): U = 35.
   const X = [0.8, 0.83, 1.89, 1.04, 1.45, 1.38, 1.91, 1.64, 0.73, 1.46];
   const Y = [1.15, 0.88, 0.9, 0.74, 1.21];
 

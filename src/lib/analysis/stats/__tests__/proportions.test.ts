@@ -10,7 +10,7 @@ import { wilsonInterval } from '../wilsonInterval';
 const TOL4 = 6e-5;
 
 describe('wilsonInterval', () => {
-  // Newcombe 1998a, Stat Med 17:857–872, Table I, method 3 (REFERENCES §7)
+  // Newcombe 1998a, Stat Med 17:857–872, Table I, method 3 (docs/references.md §7)
   const cases: [number, number, number, number][] = [
     [81, 263, 0.2553, 0.3662],
     [15, 148, 0.0624, 0.1605],
@@ -39,7 +39,7 @@ describe('wilsonInterval', () => {
 });
 
 describe('newcombeDifference (method 10)', () => {
-  // Newcombe 1998b, Stat Med 17:873–890, Table II examples (a)–(f) (REFERENCES §7)
+  // Newcombe 1998b, Stat Med 17:873–890, Table II examples (a)–(f) (docs/references.md §7)
   const cases: [string, number, number, number, number, number, number][] = [
     ['a', 56, 70, 48, 80, 0.0524, 0.3339],
     ['b', 9, 10, 3, 10, 0.1705, 0.809],

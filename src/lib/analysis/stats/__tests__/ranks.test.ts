@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { benjaminiHochberg } from '../benjaminiHochberg';
 import { mannWhitneyU } from '../mannWhitneyU';
 
-// Hollander & Wolfe (1973) p. 69 permeability data, as in R's wilcox.test example (REFERENCES §7).
+// Hollander & Wolfe (1973) p. 69 permeability data, as in R's wilcox.test example (docs/references.md §7).
 const X = [0.8, 0.83, 1.89, 1.04, 1.45, 1.38, 1.91, 1.64, 0.73, 1.46];
 const Y = [1.15, 0.88, 0.9, 0.74, 1.21];
 // Values printed to 4 decimals: tolerance 6e-5 (half a unit in the last place plus margin).
@@ -18,7 +18,7 @@ describe('mannWhitneyU', () => {
     expect(Math.abs(t.pValue - 0.2544)).toBeLessThan(TOL4);
   });
 
-  it('same data, normal approximation: 0.1103 / 0.2207 without and 0.1223 / 0.2446 with continuity correction (REFERENCES §7, scipy)', () => {
+  it('same data, normal approximation: 0.1103 / 0.2207 without and 0.1223 / 0.2446 with continuity correction (docs/references.md §7, scipy)', () => {
     const opts = { exact: false } as const;
     expect(Math.abs(mannWhitneyU(X, Y, { ...opts, continuityCorrection: false, alternative: 'greater' }).pValue - 0.1103)).toBeLessThan(TOL4);
     expect(Math.abs(mannWhitneyU(X, Y, { ...opts, continuityCorrection: false }).pValue - 0.2207)).toBeLessThan(TOL4);
@@ -52,7 +52,7 @@ describe('mannWhitneyU', () => {
 
 describe('benjaminiHochberg', () => {
   // Benjamini & Hochberg (1995) JRSS B 57:289 worked example; adjusted values as from scipy
-  // false_discovery_control (REFERENCES §7). Printed to ≤ 4 decimals: tolerance 6e-5.
+  // false_discovery_control (docs/references.md §7). Printed to ≤ 4 decimals: tolerance 6e-5.
   const P = [0.0001, 0.0004, 0.0019, 0.0095, 0.0201, 0.0278, 0.0298, 0.0344, 0.0459, 0.324, 0.4262, 0.5719, 0.6528, 0.759, 1.0];
   const ADJ = [0.0015, 0.003, 0.0095, 0.0356, 0.0603, 0.0639, 0.0639, 0.0645, 0.0765, 0.486, 0.5812, 0.7149, 0.7532, 0.8132, 1];
 

@@ -14,7 +14,7 @@ describe('makeHeightScene', () => {
   });
 
   it('draws a cap whose apex equals h and whose profile follows the sphere of radius (a² + h²)/2h', () => {
-    // REFERENCES §2: R_c = (a² + h²)/(2h). A cap centred on a pixel: the apex pixel is exactly h;
+    // docs/references.md §2: R_c = (a² + h²)/(2h). A cap centred on a pixel: the apex pixel is exactly h;
     // at ρ = 20 nm the surface is √(R² − ρ²) − (R − h). Tolerance 1e-4 nm: Float32 storage of ~20 nm values.
     const s = makeHeightScene({ width: 64, height: 64, pixelSizeNm: 5, vesicles: [{ xPx: 32, yPx: 32, baseRadiusNm: 50, heightNm: 20 }], noiseSigmaNm: 0, lineOffsetSigmaNm: 0, tiltXNmPerPx: 0, tiltYNmPerPx: 0, offsetNm: 0 });
     const R = (50 * 50 + 20 * 20) / (2 * 20);
