@@ -17,6 +17,7 @@ import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import os from 'node:os';
 import { Image } from 'image-js';
+import { median } from 'simple-statistics';
 import {
   aperturePhotometry,
   correctBackground,
@@ -125,10 +126,6 @@ async function bench<T>(stage: string, megapixels: number, fn: () => T, note?: s
   return result;
 }
 
-const median = (xs: number[]) => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s.length % 2 ? s[s.length >> 1] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
-};
 const min = (xs: number[]) => Math.min(...xs);
 const pad = (s: string, n: number) => (s.length >= n ? s : s + ' '.repeat(n - s.length));
 const lpad = (s: string, n: number) => (s.length >= n ? s : ' '.repeat(n - s.length) + s);
