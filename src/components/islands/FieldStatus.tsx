@@ -1,11 +1,9 @@
 import { useEffect, useState } from 'react';
+import { FIELD_STATUS_WORDS } from '../../lib/pages/fieldStatusWords';
 
 interface Status { status: string; failureReason: string | null; progress: { stage: string; fraction: number } | null }
 
-const WORDS: Record<string, string> = {
-  uploading: 'Uploading', ingesting: 'Processing', ready: 'Processed: ready to register', registered: 'Registered',
-  linked: 'Linked', approved: 'Approved', failed: 'Failed',
-};
+const WORDS = FIELD_STATUS_WORDS;
 
 /** Live status of a field's processing; reloads the page once the field is processed. */
 export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: string; initial: Status; canRetry: boolean }) {

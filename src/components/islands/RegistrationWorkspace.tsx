@@ -326,7 +326,7 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
           {!res ? <p className="text-mica-600">{evaluation.error}</p> : (
             <>
               <div className="flex justify-between"><span>Fiducial registration error</span><strong data-testid="fre">{fmt(res.freNm)} nm</strong></div>
-              <div className="flex justify-between"><span>Held-out (leave-one-out) error, RMS</span><strong>{fmt(res.leaveOneOutTreRmsNm)} nm</strong></div>
+              <div className="flex justify-between" title="Each pair left out in turn, the transform fitted to the others and the distance measured at the left-out pair (RMS): an estimate of the error away from the fiducials (TRE). FRE, on the pairs fitted, does not estimate it."><span>Held-out fiducial error (RMS)</span><strong>{fmt(res.leaveOneOutTreRmsNm)} nm</strong></div>
               <div className="flex justify-between"><span>Predicted error at the centre</span><strong>{fmt(res.predictedTreAtCentroidNm)} nm</strong></div>
               <div className="flex justify-between"><span>Pairs</span><strong>{res.nbFiducials}</strong></div>
               <p className="text-mica-600" data-testid="transform-words">{res.description}</p>

@@ -92,10 +92,10 @@ export function misevChecklist(input: ChecklistInput): ChecklistItem[] {
   });
 
   const sub = coverage(samples.filter((s) => s.substrate.trim() !== '').length, nS, 'samples');
-  items.push({ id: 'substrate', title: 'Substrate', source: 'docs/references.md §8 (proposed field)', status: sub.status, detail: sub.detail });
+  items.push({ id: 'substrate', title: 'Substrate', source: `${MISEV23} (a field this product proposes)`, status: sub.status, detail: sub.detail });
 
   items.push({
-    id: 'medium', title: 'Imaging medium (air or liquid)', source: 'docs/references.md §8 (proposed field)',
+    id: 'medium', title: 'Imaging medium (air or liquid)', source: `${MISEV23} (a field this product proposes)`,
     status: fields.fields === 0 ? 'missing' : 'recorded',
     detail: fields.fields === 0 ? 'No fields imaged yet.' : `Media: ${fields.media.join(', ')}.`,
   });
@@ -142,7 +142,7 @@ export function misevChecklist(input: ChecklistInput): ChecklistItem[] {
 
   const reg = coverage(registrations.registered, fields.fields, 'fields');
   items.push({
-    id: 'registration', title: 'Registration: fiducials, FRE, TRE estimate', source: 'docs/references.md §1 and §8 (proposed field)',
+    id: 'registration', title: 'Registration: fiducials, FRE, TRE estimate', source: 'Fitzpatrick, West & Maurer 1998, IEEE TMI 17(5) (a field this product proposes)',
     status: reg.status === 'recorded' && registrations.withTre < registrations.registered ? 'partial' : reg.status,
     detail: `${reg.detail}${registrations.registered ? ` Fewest fiducials: ${registrations.minFiducials}; largest FRE: ${registrations.maxFreNm === null ? '–' : `${registrations.maxFreNm.toFixed(1)} nm`}; TRE on ${registrations.withTre} of ${registrations.registered}.` : ''}`,
   });
@@ -161,7 +161,7 @@ export function misevChecklist(input: ChecklistInput): ChecklistItem[] {
   });
 
   items.push({
-    id: 'counts', title: 'Counts per sample (n vesicles, n positive) with 95% CI', source: 'docs/references.md §7 and §8 (proposed field)',
+    id: 'counts', title: 'Counts per sample (n vesicles, n positive) with 95% CI', source: 'Newcombe 1998, Stat Med 17:857–872 (a field this product proposes)',
     status: input.releasedSamples === 0 ? 'missing' : input.releasedSamples === nS ? 'recorded' : 'partial',
     detail: `Released for ${input.releasedSamples} of ${nS} sample(s), each with Wilson 95% intervals.`,
   });

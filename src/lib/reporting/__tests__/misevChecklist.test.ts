@@ -32,6 +32,11 @@ describe('misevChecklist', () => {
       'thresholds', 'registration', 'software', 'markers', 'counts',
     ]);
     for (const i of items) expect(i.source.length).toBeGreaterThan(3);
+    // a published source with its year, never a file of the repository or of anyone else
+    for (const i of items) {
+      expect(i.source).toMatch(/(19|20)\d\d/);
+      expect(i.source).not.toMatch(/REFERENCES|references\.md|\.md\b|\/work\//);
+    }
   });
 
   it('marks a fully recorded study as recorded where the tool can know, and names values', () => {
