@@ -17,7 +17,8 @@ export const DEMO_USERS = [
 
 export const DEMO_STUDY_NAME = 'Harbour Clinic plasma EV pilot (invented demo)';
 
-const PANEL = [
+/** The three-marker panel of the demo studies (invented clones). */
+export const DEMO_PANEL = [
   { channelIndex: 0, marker: 'CD9', antibodyClone: 'demo clone HL-9a', fluorophore: 'AF488-like dye', excitationNm: 488, emissionNm: 520 },
   { channelIndex: 1, marker: 'CD63', antibodyClone: 'demo clone HL-63b', fluorophore: 'Cy3-like dye', excitationNm: 561, emissionNm: 590 },
   { channelIndex: 2, marker: 'CD81', antibodyClone: 'demo clone HL-81c', fluorophore: 'AF647-like dye', excitationNm: 640, emissionNm: 670 },
@@ -53,13 +54,13 @@ export async function seed(db: Db) {
   for (const role of ['biologist', 'analyst', 'collaborator'] as const) {
     await db.insert(studyMembers).values({ studyId: study.id, userId: ids[role], role }).onConflictDoNothing();
   }
-  for (const ch of PANEL) {
+  for (const ch of DEMO_PANEL) {
     await db.insert(markerChannels).values({ studyId: study.id, ...ch }).onConflictDoNothing();
   }
   for (const s of SAMPLES) {
     await db
       .insert(samples)
-      .values({ studyId: study.id, ...s, source: 'plasma', isolationMethod: 'size-exclusion chromatography', substrate: 'mica', dilution: '1:10', collectionDate: '2026-03-14' })
+      .values({ studyId: study.id, ...s, source: 'plasma', isolationMethod: 'size-exclusion chromatography', substrate: 'mica', dilution: '1:10', collectionDate: '2026-03-01' })
       .onConflictDoNothing();
   }
   return { studyId: study.id, userIds: ids };

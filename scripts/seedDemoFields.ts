@@ -10,8 +10,10 @@ import type { Storage } from '../src/lib/storage/client';
 import { putBytes } from '../src/lib/storage/objects';
 import { rawFileKey } from '../src/lib/storage/keys';
 import { inspectTiff } from '../src/lib/imaging';
-import { makeDemoPair } from '../fixtures/demoScene';
-import { DEMO_STUDY_NAME } from './seed';
+import { makeCorrelativePair, makeDemoPair, type DemoPairOptions } from '../fixtures/demoScene';
+import type { MakeCorrelativeSceneOptions } from '../src/lib/analysis/synthetic/correlativeTypes';
+import type { DetectionSettings } from '../src/lib/schemas/detectionSettings';
+import { DEMO_PANEL, DEMO_STUDY_NAME } from './seed';
 
 export const DEMO_FIELDS: { code: string; name: string; seed: number; positiveFractions: number[] }[] = [
   { code: 'HCP-001', name: 'grid A1', seed: 11, positiveFractions: [0.7, 0.5, 0.6] },
@@ -46,9 +48,22 @@ export async function seedDemoFields(db: Db, st: Storage, enqueue: (fieldId: str
  */
 export async function insertDemoField(
   db: Db, st: Storage,
-  o: { sampleId: string; name: string; seed: number; positiveFractions: number[]; createdBy?: string; filePrefix: string },
+  o: {
+    sampleId: string; name: string; seed: number; positiveFractions: number[]; createdBy?: string; filePrefix: string;
+    /** Further options of the simple demo scene; the demo defaults otherwise. */
+    scene?: Omit<DemoPairOptions, 'seed' | 'positiveFractions'>;
+    /** Options of the realistic correlative generator instead (its markers get `positiveFractions` in panel order). */
+    correlative?: Omit<MakeCorrelativeSceneOptions, 'seed' | 'markers'>;
+    /** The field's detection settings (null: the automatic defaults). */
+    detectionSettings?: DetectionSettings | null;
+  },
 ): Promise<string> {
-  const pair = makeDemoPair({ seed: o.seed, positiveFractions: o.positiveFractions });
+  const pair = o.correlative
+    ? makeCorrelativePair({
+      ...o.correlative, seed: o.seed,
+      markers: DEMO_PANEL.map((p, i) => ({ marker: p.marker, emissionNm: p.emissionNm, positiveFraction: o.positiveFractions[i] ?? 0 })),
+    })
+    : makeDemoPair({ ...o.scene, seed: o.seed, positiveFractions: o.positiveFractions });
   const fieldId = randomUUID();
   const topoId = randomUUID();
   const flId = randomUUID();
@@ -59,9 +74,9 @@ export async function insertDemoField(
   await db.transaction(async (tx) => {
     await tx.insert(fields).values({
       id: fieldId, sampleId: o.sampleId, name: o.name, status: 'ingesting', afmPixelNm: pair.afmPixelNm, afmScanSizeNm: pair.afmPixelNm * tMeta.width,
-      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'tapping', flPixelNm: pair.flPixelNm, objectiveNa: 1.4, exposureMs: 100,
+      tipRadiusNm: 8, imagingMedium: 'air', scanMode: 'intermittent contact', flPixelNm: pair.flPixelNm, objectiveNa: 1.4, exposureMs: 100,
       channelEmissionNm: [520, 590, 670], afmWidthPx: tMeta.width, afmHeightPx: tMeta.height, flWidthPx: fMeta.width, flHeightPx: fMeta.height,
-      createdBy: o.createdBy, progress: { stage: 'queued', fraction: 0 },
+      createdBy: o.createdBy, progress: { stage: 'queued', fraction: 0 }, detectionSettings: o.detectionSettings ?? null,
     });
     await tx.insert(fieldFiles).values([
       { id: topoId, fieldId, kind: 'topography', objectKey: rawFileKey(fieldId, topoId), originalName: `${o.filePrefix}-height.tif`, sizeBytes: pair.topographyTiff.length, meta: { pageCount: 1 } },

@@ -2,11 +2,12 @@
  * `npm start`: embedded PostgreSQL, S3 fake and SMTP sink on loopback, migrations, demo seed,
  * build, then the app and one job worker. Ctrl-C stops every child. Data stays in .data/.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
 import { embeddedSettings } from './lib/env';
 import { startServices } from './lib/services';
 import { DEMO_USERS, DEMO_PASSWORD } from './seed';
 import { seedAll } from './lib/seedAll';
+import { runPilot } from './lib/runPilot';
 
 const log = (m: string) => console.log(`[heightlight] ${m}`);
 
@@ -14,18 +15,24 @@ async function main() {
   const s = embeddedSettings('start');
   Object.assign(process.env, s.env);
   const services = await startServices(s, log);
+  const children: ChildProcess[] = [];
+  // the worker runs under node itself (not through npx) so that stopping it reaches the process; it starts
+  // before the seed and the build, so demo fields are ingested while the others are generated and the app builds
+  children.push(spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
   await seedAll(s.env, log);
   log('demo data seeded');
-
+  // the demo pilot goes through registration, linking and release in the background (fast when done before)
+  void runPilot(s.env, log).catch((e) => log(`demo pilot stopped: ${e instanceof Error ? e.message : e}`));
   if (process.env.HEIGHTLIGHT_SKIP_BUILD !== '1') {
     log('building the app (astro build) ...');
-    const b = spawnSync('npx', ['astro', 'build'], { stdio: 'inherit', env: process.env });
-    if (b.status !== 0) throw new Error('astro build failed');
+    // asynchronous, so the pilot driver keeps going while the app builds
+    const status = await new Promise<number | null>((res) => spawn('npx', ['astro', 'build'], { stdio: 'inherit', env: process.env }).on('exit', res));
+    if (status !== 0) {
+      for (const c of children) c.kill('SIGTERM');
+      throw new Error('astro build failed');
+    }
   }
-  const children: ChildProcess[] = [];
   children.push(spawn(process.execPath, ['scripts/serve.mjs'], { stdio: 'inherit', env: process.env }));
-  // the worker runs under node itself (not through npx) so that stopping it reaches the process
-  children.push(spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
 
   let stopping = false;
   const stop = async () => {

@@ -67,10 +67,10 @@ async function main() {
   try {
     ensureChromium();
     services = await startServices(s, log);
-    await seedAll(s.env, log);
-    // the worker starts before the type check and the build, so the demo fields' ingestion runs meanwhile
+    // the worker starts before the seed, the type check and the build, so the demo fields are ingested meanwhile
     const worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
     children.push(worker);
+    await seedAll(s.env, log);
 
     // Skipping the type check is for quick local iterations only; CI always runs it.
     if (process.env.HEIGHTLIGHT_SKIP_TYPECHECK !== '1' || process.env.CI) {

@@ -1,10 +1,11 @@
-/** The whole demo seed, as `npm start` and `npm test` both run it: people, study, samples and fields. */
+/** The whole demo seed, as `npm start` and `npm test` both run it: people, studies, samples and fields (the pilot's processing is scripts/lib/runPilot.ts). */
 import { createDb } from '../../src/lib/db/client';
 import { createStorage } from '../../src/lib/storage/client';
 import { getBoss } from '../../src/lib/jobs/boss';
 import { QUEUES } from '../../src/lib/jobs/queues';
 import { seed } from '../seed';
 import { seedDemoFields } from '../seedDemoFields';
+import { seedPilot } from '../seedPilot';
 
 export async function seedAll(env: Record<string, string>, log: (m: string) => void) {
   const db = createDb(env.DATABASE_URL, 2);
@@ -15,6 +16,9 @@ export async function seedAll(env: Record<string, string>, log: (m: string) => v
     const boss = await getBoss(env.DATABASE_URL);
     const created = await seedDemoFields(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }));
     if (created.length) log(`queued ${created.length} demo field(s) for processing`);
+    // the pilot study's fields: generated once (a few seconds each), then ingested by the worker; runPilot does the rest
+    const pilot = await seedPilot(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }), log);
+    if (pilot.created.length) log(`queued ${pilot.created.length} demo pilot field(s) for processing`);
   } finally {
     await db.$client.end();
   }
