@@ -2,7 +2,7 @@ import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import OpenSeadragon from 'openseadragon';
 import { evaluateRegistration, snapToNearest, proposePartner, applyAffine, invertAffine } from '../../lib/analysis/geometry';
 import type { Affine, Point } from '../../lib/analysis/types';
-import type { FieldDetection } from '../../lib/jobs/detectionTypes';
+import type { FieldDetection } from '../../lib/schemas/detectionTypes';
 import type { SavedRegistration } from '../../lib/schemas/registration';
 import AlignmentCheck, { type CheckLayer } from './registration/AlignmentCheck';
 
