@@ -83,8 +83,8 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
       settings: settingsUsed,
       thresholdNm: afm.threshold.thresholdNm,
       backgroundSigmaNm: afm.levelling.backgroundSigmaNm,
-      vesicles: afm.vesicles.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.equivalentDiameterNm })),
-      fiducialCandidates: afm.fiducialCandidates.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.equivalentDiameterNm })),
+      vesicles: afm.vesicles.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.footprintDiameterNm })),
+      fiducialCandidates: afm.fiducialCandidates.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.footprintDiameterNm })),
       spots,
     };
     await putBytes(st, detectionKey(fieldId), JSON.stringify(detection), 'application/json');

@@ -6,7 +6,10 @@ import {
 } from '../geometry';
 import { detectVesicles, levelHeightMap, measureVesicle, selectThreshold } from '../heightmap';
 import type { MeasureVesicleResult } from '../heightmap/types';
-import { backgroundAmplitudeThreshold, linkVesicles } from '../linking';
+import {
+  calibrateNullZ, chanceColocalisation, DEFAULT_Z_CRITICAL, describeMarkerCallRule, estimateCameraModel, linkVesicles,
+  type EstimateCameraModelResult, type MarkerCallRule,
+} from '../linking';
 import type { Point, Raster } from '../types';
 import { mergeSpots } from './mergeSpots';
 import { refineFiducialPairs } from './refineFiducialPairs';
@@ -26,9 +29,12 @@ import type {
  * candidates, detect spots in every fluorescence channel, register AFM to fluorescence (a saved transform as is,
  * refined fiducial picks, or automatic pairing of AFM candidates with spots), map every vesicle into fluorescence
  * pixels, measure each marker (aperture photometry and SNR, reported; joint NNLS amplitude of each vesicle's PSF
- * with its neighbours; nearest spot), call it by comparing the joint amplitude with a given threshold or mean + k SD
- * (k from `positivityKByMarker`, else 3) of amplitudes fitted at empty places, and gather per-vesicle records and
- * field counts. Pure and deterministic.
+ * with its neighbours, beads and every spot away from the vesicles, weighted by the camera noise model; its SE, z,
+ * p and q; nearest spot), call it under the marker's rule (a hand-set threshold; else a control threshold; else
+ * calibrated z above z_crit, the null measured at empty places that avoid every spot, dim ones included), estimate
+ * chance colocalisation at shifted positions, and gather per-vesicle records and field counts (vesicles outside a
+ * frame leave that marker's denominator; phenotypes count only vesicles measured in every channel). Pure and
+ * deterministic.
  *
  * @param input - rasters, pixel sizes (nm/px), optics, optional fiducials and thresholds; not modified
  * @param options - see {@link AnalyzeFieldOptions}
@@ -41,12 +47,17 @@ import type {
  */
 export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOptions = {}): AnalyzeFieldResult {
   const {
-    thresholdNm, level = {}, tipRadiusNm = 0, cameraOffsetCounts = 0, spotThresholdK = 5, snapRadiusNm = 300,
-    mergeSpotsPx = 1.5, pairingToleranceFlPx = 2, seed = 1, onProgress = () => undefined,
+    thresholdNm, level = {}, tipRadiusNm = 0, spotThresholdK = 5, snapRadiusNm = 300,
+    mergeSpotsPx = 1.5, pairingToleranceFlPx = 2, seed = 1, onProgress = () => undefined, dimSpotThresholdK = 3,
+    chanceShifts = { minUm: 2, maxUm: 4, nbShifts: 5 },
   } = options;
-  const { heightNm, afmPixelNm, channels, flPixelNm, numericalAperture, fiducialPairs, savedRegistration, thresholdCountsByMarker = {} } = input;
+  const {
+    heightNm, afmPixelNm, channels, flPixelNm, numericalAperture, fiducialPairs, savedRegistration, thresholdCountsByMarker = {},
+    controlThresholdByMarker = {}, camera: givenCamera = {},
+  } = input;
+  const cameraOffsetCounts = options.cameraOffsetCounts ?? givenCamera.offsetCounts ?? 0;
   validateInput(input);
-  // k of the background rule per marker (mean + k SD of empty-place amplitudes); 3 is common practice
+  // z_crit per marker (calibrated z of the camera-noise test); 3.09 = one-sided p < 0.001
   const positivityKByMarker = options.positivityKByMarker ?? {};
   for (const [m, k] of Object.entries(positivityKByMarker)) {
     if (!(k > 0) || !Number.isFinite(k)) throw new RangeError(`positivityKByMarker.${m} must be a positive finite number, got ${k}`);
@@ -84,8 +95,10 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   // spots
   onProgress('spots', 0);
   const spotsByMarker: Record<string, FluorescenceSpot[]> = {};
+  const correctedByMarker: Record<string, ReturnType<typeof correctBackground>> = {};
   channels.forEach((c, i) => {
     const bg = correctBackground(c.raster, { cameraOffsetCounts });
+    correctedByMarker[c.marker] = bg;
     spotsByMarker[c.marker] = detectSpots(bg.corrected, {
       sigmaPx: sigmaPxByMarker[c.marker], thresholdK: spotThresholdK, background: bg.background,
     }).spots;
@@ -108,31 +121,52 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   const fiducialsFl = fiducialCandidates.map((f) => applyAffine(registration.flFromAfm, f.centroidPx));
   onProgress('register', 1);
 
-  // link: thresholds first (given, else amplitudes at empty places of the same frame), then calls of the joint amplitude
+  // link: per frame a camera model (given, else estimated), dim spots, the null of z at empty places that avoid every
+  // detected spot, the rule (hand-set > control > camera noise); then one joint fit of vesicles, beads and spots
   onProgress('link', 0);
   const rastersPerChannel: Record<string, Raster> = {};
   for (const c of channels) rastersPerChannel[c.marker] = c.raster;
-  const thresholds: Record<string, number> = {};
-  const thresholdInfo: Record<string, Pick<FieldChannelSummary, 'thresholdSource' | 'backgroundMeanCounts' | 'backgroundSdCounts' | 'nbBackgroundApertures'>> = {};
+  const cameraByMarker: Record<string, EstimateCameraModelResult> = {};
+  const dimSpotsByMarker: Record<string, Point[]> = {};
+  const ruleByMarker: Record<string, MarkerCallRule> = {};
+  const nullByMarker: Record<string, ReturnType<typeof calibrateNullZ>> = {};
   channels.forEach((c, i) => {
-    const given = thresholdCountsByMarker[c.marker];
-    if (given !== undefined) {
-      thresholds[c.marker] = given;
-      thresholdInfo[c.marker] = { thresholdSource: 'given', backgroundMeanCounts: null, backgroundSdCounts: null, nbBackgroundApertures: null };
-    } else {
-      const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[c.marker]];
-      const t = backgroundAmplitudeThreshold(c.raster, avoid, { sigmaPx: sigmaPxByMarker[c.marker], k: positivityKByMarker[c.marker] ?? 3 });
-      thresholds[c.marker] = t.thresholdCounts;
-      thresholdInfo[c.marker] = {
-        thresholdSource: 'background_amplitudes', backgroundMeanCounts: t.meanCounts, backgroundSdCounts: t.sdCounts,
-        nbBackgroundApertures: t.nbControls,
-      };
-    }
-    onProgress('link', (0.5 * (i + 1)) / channels.length);
+    const m = c.marker;
+    const sigmaPx = sigmaPxByMarker[m];
+    cameraByMarker[m] = estimateCameraModel(c.raster, givenCamera);
+    const bg = correctedByMarker[m];
+    // dim spots: those of a lower threshold not already detected (one column per emitter, never two)
+    const detected = nearAny(spotsByMarker[m], 1.5);
+    dimSpotsByMarker[m] = detectSpots(bg.corrected, { sigmaPx, thresholdK: dimSpotThresholdK, background: bg.background, refine: 'centroid' })
+      .spots.filter((s) => !detected(s)).map((s) => ({ x: s.x, y: s.y }));
+    const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[m], ...dimSpotsByMarker[m]];
+    const nullZ = calibrateNullZ(c.raster, avoid, { sigmaPx, camera: cameraByMarker[m].camera });
+    nullByMarker[m] = nullZ;
+    const nullCalibration = { medianZ: nullZ.medianZ, madZ: nullZ.madZ, nbPlaces: nullZ.nbPlaces, calibrated: nullZ.calibrated };
+    const zCritical = positivityKByMarker[m] ?? DEFAULT_Z_CRITICAL;
+    const control = controlThresholdByMarker[m];
+    ruleByMarker[m] = thresholdCountsByMarker[m] !== undefined
+      ? { rule: 'manual', thresholdCounts: thresholdCountsByMarker[m], nullCalibration }
+      : control
+      ? { rule: 'control', zCritical, nullCalibration, controlKind: control.kind, thresholdCounts: control.thresholdCounts }
+      : { rule: 'camera_noise', zCritical, nullCalibration };
+    onProgress('link', (0.4 * (i + 1)) / channels.length);
   });
   const links = linkVesicles(vesiclesFl, spotsByMarker, rastersPerChannel, {
-    sigmaPxByMarker, thresholdCountsByMarker: thresholds, positivityMeasure: 'jointAmplitude', otherSourcesPx: fiducialsFl,
+    sigmaPxByMarker, ruleByMarker, positivityMeasure: 'jointAmplitude', otherSourcesPx: fiducialsFl,
+    cameraByMarker: Object.fromEntries(markers.map((m) => [m, cameraByMarker[m].camera])),
+    sourceSpotsByMarker: Object.fromEntries(markers.map((m) => [m, [...dimSpotsByMarker[m], ...spotsByMarker[m]]])),
   });
+  onProgress('link', 0.7);
+  // chance colocalisation: the measured vesicle set moved by a few microns, called like vesicles
+  const chanceByMarker: Record<string, ReturnType<typeof chanceColocalisation>> = {};
+  for (const m of markers) {
+    const measured = vesiclesFl.filter((_, i) => links.vesicles[i].channels[m].positive !== null);
+    chanceByMarker[m] = chanceColocalisation(rastersPerChannel[m], measured, [...dimSpotsByMarker[m], ...spotsByMarker[m]], {
+      sigmaPx: sigmaPxByMarker[m], camera: cameraByMarker[m].camera, rule: ruleByMarker[m], fixedSourcesPx: fiducialsFl,
+      minShiftPx: (1000 * chanceShifts.minUm) / flPixelNm, maxShiftPx: (1000 * chanceShifts.maxUm) / flPixelNm, nbShifts: chanceShifts.nbShifts, seed,
+    });
+  }
   onProgress('link', 1);
 
   // summarise
@@ -145,6 +179,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       calls[m] = {
         intensityCounts: c.apertureCounts, intensitySnr: c.apertureSnr, amplitudeCounts: c.amplitudeCounts,
         unconstrainedAmplitudeCounts: c.unconstrainedAmplitudeCounts, amplitudeSnr: c.amplitudeSnr,
+        ...(photonsKnown(cameraByMarker[m]) && c.amplitudeCounts !== null
+          ? { amplitudePhotons: c.amplitudeCounts / cameraByMarker[m].camera.gainCountsPerPhoton } : {}),
+        amplitudeSeCounts: c.amplitudeStdErrCounts, z: c.z, zCalibrated: c.zCalibrated, pValue: c.pValue, qValue: c.qValue,
         spotDistancePx: c.spotDistancePx, positive: c.positive,
       };
     }
@@ -166,8 +203,15 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       markers: calls,
     };
   });
+  // phenotypes only over vesicles measured in every channel: a "?" is not a phenotype
   const phenotypeCounts: Record<string, number> = {};
-  for (const r of records) phenotypeCounts[r.phenotype] = (phenotypeCounts[r.phenotype] ?? 0) + 1;
+  let nbMeasuredAllChannels = 0;
+  for (const r of records) {
+    if (r.outOfFrame) continue;
+    nbMeasuredAllChannels++;
+    phenotypeCounts[r.phenotype] = (phenotypeCounts[r.phenotype] ?? 0) + 1;
+  }
+
   const channelSummaries: Record<string, FieldChannelSummary> = {};
   const spotsWithoutVesicleByMarker: Record<string, number> = {};
   for (const c of channels) {
@@ -187,11 +231,19 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       emissionNm: c.emissionNm,
       psfSigmaPx: sigma,
       nbSpots: spots.length,
-      thresholdCounts: thresholds[c.marker],
+      ...ruleSummary(ruleByMarker[c.marker], nullByMarker[c.marker], controlThresholdByMarker[c.marker]?.nbControls ?? null),
       thresholdMeasure: 'joint_amplitude',
       thresholdUnit: AMPLITUDE_UNIT,
-      ...thresholdInfo[c.marker],
       nbPositive: links.positiveByMarker[c.marker],
+      camera: cameraByMarker[c.marker].camera,
+      cameraSource: cameraByMarker[c.marker].source,
+      cameraNote: cameraByMarker[c.marker].note,
+      nbMeasured: links.nbMeasuredByMarker[c.marker],
+      positiveFraction: links.nbMeasuredByMarker[c.marker] ? links.positiveByMarker[c.marker] / links.nbMeasuredByMarker[c.marker] : null,
+      chancePositiveFraction: Number.isFinite(chanceByMarker[c.marker].chancePositiveFraction) ? chanceByMarker[c.marker].chancePositiveFraction : null,
+      nbChancePositions: chanceByMarker[c.marker].nbPositions,
+      nbOtherSources: links.nbOtherSpotSourcesByMarker[c.marker],
+
       nbSpotsWithoutVesicle: withoutVesicle,
       nbSpotsOnFiducials: onFiducial,
     };
@@ -212,7 +264,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       registration,
       channels: channelSummaries,
       positiveByMarker: { ...links.positiveByMarker },
+      nbMeasuredByMarker: { ...links.nbMeasuredByMarker },
       phenotypeCounts,
+      nbMeasuredAllChannels,
       nbOutOfFrame: links.nbOutOfFrame,
       spotsWithoutVesicleByMarker,
       nbVesiclesWithoutMarker: links.nbVesiclesWithoutMarker,
@@ -225,7 +279,42 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   };
 }
 
-/** The unit of joint amplitudes and their thresholds, in words for people. */
+/** Amplitudes convert to photons only when the gain was given or estimated from a given offset, not assumed. */
+function photonsKnown(c: EstimateCameraModelResult): boolean {
+  return c.source === 'given' || c.note.startsWith('gain ') && c.note.includes('estimated');
+}
+
+/**
+ * The threshold fields of a channel summary under its rule. For the noise rules thresholdCounts is the amplitude a
+ * lone vesicle on the typical background needs, (median + z_crit·MAD)·typical SE; each vesicle is called on its own
+ * z, so one next to a bright neighbour (larger SE) needs more.
+ */
+function ruleSummary(rule: MarkerCallRule, nullZ: ReturnType<typeof calibrateNullZ>, nbControls: number | null) {
+  const se = Number.isFinite(nullZ.medianSeCounts) ? nullZ.medianSeCounts : null;
+  const base = {
+    rule: rule.rule, ruleSentence: describeMarkerCallRule(rule, nbControls ?? undefined),
+    nullMedianZ: nullZ.medianZ, nullMadZ: nullZ.madZ, nullCalibrated: nullZ.calibrated, typicalSeCounts: se,
+    nbBackgroundApertures: nullZ.nbPlaces,
+    backgroundMeanCounts: se === null ? null : nullZ.medianZ * se,
+    backgroundSdCounts: se === null ? null : nullZ.madZ * se,
+  };
+  if (rule.rule === 'manual') {
+    return { ...base, thresholdSource: 'given' as const, thresholdCounts: rule.thresholdCounts, zCritical: null, controlKind: null, nbControls: null };
+  }
+  const noise = se === null ? Number.NaN : (nullZ.medianZ + rule.zCritical * nullZ.madZ) * se;
+  if (rule.rule === 'control') {
+    return {
+      ...base, thresholdSource: 'control' as const, thresholdCounts: Math.max(rule.thresholdCounts, Number.isFinite(noise) ? noise : -Infinity),
+      zCritical: rule.zCritical, controlKind: rule.controlKind, nbControls,
+    };
+  }
+  return { ...base, thresholdSource: 'camera_noise' as const, thresholdCounts: noise, zCritical: rule.zCritical, controlKind: null, nbControls: null };
+}
+
+/** The registration before the per-channel refinement from the beads. */
+type CommonRegistration = Omit<FieldRegistration, 'channels'>;
+
+
 const AMPLITUDE_UNIT = 'counts (total counts of one vesicle\'s fitted PSF, integrated over the plane)';
 
 function validateInput(input: AnalyzeFieldInput): void {
@@ -252,6 +341,20 @@ function validateInput(input: AnalyzeFieldInput): void {
       );
     }
   }
+  for (const [m, t] of Object.entries(input.controlThresholdByMarker ?? {})) {
+    if (!seen.has(m)) {
+      throw new AnalysisError('unknown_marker_threshold', `A control threshold is given for "${m}", which is not one of the markers (${[...seen].join(', ')}).`, { marker: m });
+    }
+    if (!Number.isFinite(t.thresholdCounts)) throw new RangeError(`controlThresholdByMarker.${m}.thresholdCounts must be finite, got ${t.thresholdCounts}`);
+  }
+  const { camera = {} } = input;
+  if (camera.gainCountsPerPhoton !== undefined && !(camera.gainCountsPerPhoton > 0 && Number.isFinite(camera.gainCountsPerPhoton))) {
+    throw new RangeError(`camera.gainCountsPerPhoton must be a positive number, got ${camera.gainCountsPerPhoton}`);
+  }
+  if (camera.readNoiseCounts !== undefined && !(camera.readNoiseCounts >= 0 && Number.isFinite(camera.readNoiseCounts))) {
+    throw new RangeError(`camera.readNoiseCounts must be a number ≥ 0, got ${camera.readNoiseCounts}`);
+  }
+  if (camera.offsetCounts !== undefined && !Number.isFinite(camera.offsetCounts)) throw new RangeError(`camera.offsetCounts must be finite, got ${camera.offsetCounts}`);
   for (const [m, t] of Object.entries(thresholdCountsByMarker)) {
     if (!seen.has(m)) {
       throw new AnalysisError('unknown_marker_threshold', `A threshold is given for "${m}", which is not one of the markers (${[...seen].join(', ')}).`, { marker: m });

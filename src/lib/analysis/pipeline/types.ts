@@ -2,6 +2,7 @@ import type { FluorescenceSpot } from '../fluorescence/types';
 import type { FiducialPair, RegistrationModel, RegistrationWarning } from '../geometry';
 import type { LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
 import type { Affine, Point, Raster } from '../types';
+import type { CameraModel, ThresholdControlKind } from '../linking/types';
 
 /** Stages of {@link analyzeField}, in the order they run. */
 export type FieldStage = 'level' | 'detect' | 'measure' | 'spots' | 'register' | 'link' | 'summarise';
@@ -40,11 +41,22 @@ export interface AnalyzeFieldInput {
    */
   readonly savedRegistration?: SavedRegistration;
   /**
-   * Positivity threshold per marker, in joint-amplitude counts (total counts of one vesicle's PSF, the quantity
-   * called; e.g. mean + 3 SD of control vesicles' amplitudes); markers without one get mean + k SD of the
-   * amplitudes fitted at empty places of the same frame.
+   * Positivity threshold per marker set by hand (the manual rule), in joint-amplitude counts (total counts of one
+   * vesicle's PSF, the quantity called). Wins over a control threshold and over the camera-noise rule.
    */
   readonly thresholdCountsByMarker?: Readonly<Record<string, number>>;
+  /**
+   * Specificity threshold per marker from the study's control samples (the control rule): a vesicle is positive when
+   * it is detected above camera noise and its joint amplitude exceeds thresholdCounts (e.g. the 0.99 quantile of
+   * isotype control vesicles' amplitudes, see controlQuantileThreshold). Markers with neither this nor a hand-set
+   * threshold are called on camera noise alone.
+   */
+  readonly controlThresholdByMarker?: Readonly<Record<string, { readonly kind: ThresholdControlKind; readonly thresholdCounts: number; readonly nbControls: number }>>;
+  /**
+   * The camera noise model (per study). Values left out are estimated from each frame (estimateCameraModel: gain 1
+   * and an effective offset unless the offset is known), and the summary says which.
+   */
+  readonly camera?: Partial<CameraModel>;
 }
 
 /** A stored registration: the transform and the model it was fitted with, and the pairs it came from. */
@@ -69,10 +81,14 @@ export interface AnalyzeFieldOptions {
   /** Spot detection threshold in robust SDs of the LoG response. @default 5 */
   spotThresholdK?: number;
   /**
-   * k of the background positivity rule per marker: markers without a given threshold are called positive above
-   * mean + k SD of the amplitudes fitted at empty places of the frame. @default 3 for every marker (common practice)
+   * z_crit per marker: a vesicle is detected above camera noise when its calibrated z (its amplitude in SDs of the
+   * empty places' null) exceeds k. @default 3.09 for every marker (one-sided p < 0.001)
    */
   positivityKByMarker?: Readonly<Record<string, number>>;
+  /** Spots found at this lower LoG threshold (robust SDs) are avoided by the null places and fitted as their own sources. @default 3 */
+  dimSpotThresholdK?: number;
+  /** Chance colocalisation: shift lengths of the vesicle set (µm) and number of seeded shifts. @default { minUm: 2, maxUm: 4, nbShifts: 5 } */
+  chanceShifts?: { readonly minUm: number; readonly maxUm: number; readonly nbShifts: number };
   /** A fiducial pick snaps to a candidate at most this far away in either image (nm of sample); 0 keeps picks as given. @default 300 */
   snapRadiusNm?: number;
   /** Spots of different channels closer than this are one candidate for automatic pairing (fluorescence px). @default 1.5 */
@@ -141,10 +157,35 @@ export interface VesicleMarkerCall {
   readonly unconstrainedAmplitudeCounts?: number | null;
   /** amplitudeCounts over its standard error (dimensionless); absent in records rebuilt from storage. */
   readonly amplitudeSnr?: number | null;
+  /** amplitudeCounts / gain (photons) when the gain is known (given, or estimated from a given offset); else absent. */
+  readonly amplitudePhotons?: number | null;
+  /** Standard error of amplitudeCounts under the stated camera noise model (counts). */
+  readonly amplitudeSeCounts?: number | null;
+  /** amplitudeCounts / amplitudeSeCounts (dimensionless), the same as amplitudeSnr. */
+  readonly z?: number | null;
+  /** z calibrated by the frame's null: (z − median)/MAD of z at empty places (dimensionless). */
+  readonly zCalibrated?: number | null;
+  /** One-sided p-value of zCalibrated, and its Benjamini–Hochberg q over this marker's measured vesicles in the field. */
+  readonly pValue?: number | null;
+  readonly qValue?: number | null;
   /** Distance to the nearest detected spot within the match radius (fluorescence px), else null. */
   readonly spotDistancePx: number | null;
+  /** The call under the marker's rule (FieldChannelSummary.rule); null = not measured (outside this channel's frame). */
   readonly positive: boolean | null;
 }
+
+/*
+ * Marker calls, final shape (for storage, exports and the UI):
+ * - per vesicle and marker (VesicleMarkerCall): amplitudeCounts (joint NNLS, counts), amplitudePhotons?,
+ *   amplitudeSeCounts, z, zCalibrated, pValue (one-sided), qValue (BH within field and marker), positive
+ *   (true / false / null = not measured: outside that frame), next to the older intensity*, amplitudeSnr (= z),
+ *   unconstrainedAmplitudeCounts and spotDistancePx;
+ * - per marker (FieldChannelSummary): rule ('camera_noise' | 'control' | 'manual'), ruleSentence (what "positive"
+ *   means, one sentence for people), zCritical, null calibration, camera model and its source, controlKind,
+ *   nbMeasured (the denominator), positiveFraction and chancePositiveFraction;
+ * - per field (FieldSummary): positiveByMarker with nbMeasuredByMarker; phenotypeCounts over the vesicles measured in
+ *   every channel only (nbMeasuredAllChannels).
+ */
 
 /** One vesicle of the field: geometry from AFM, calls from fluorescence. */
 export interface VesicleRecord {
@@ -188,14 +229,47 @@ export interface FieldChannelSummary {
   readonly thresholdMeasure: 'joint_amplitude';
   /** Words for the unit of thresholdCounts and amplitudeCounts, for people. */
   readonly thresholdUnit: string;
-  /** 'given' (e.g. control samples) or mean + k SD of amplitudes fitted at empty places of the frame. */
-  readonly thresholdSource: 'given' | 'background_amplitudes';
-  /** Ingredients of a background threshold (counts of PSF amplitude); null when the threshold was given. */
+  /**
+   * 'given': a threshold set by hand (manual rule); 'camera_noise': calibrated z above zCritical, thresholdCounts is
+   * then the amplitude a lone vesicle on the typical background needs; 'control': that and the control's threshold
+   * (thresholdCounts). 'background_amplitudes' only in summaries stored before calls had an error model.
+   */
+  readonly thresholdSource: 'given' | 'background_amplitudes' | 'camera_noise' | 'control';
+  /**
+   * Null of the camera-noise test in counts: medianZ·SE and MAD(z)·SE at the empty places (typical SE), so that
+   * thresholdCounts = backgroundMeanCounts + zCritical·backgroundSdCounts for the camera-noise rule; null for 'given'.
+   */
   readonly backgroundMeanCounts: number | null;
   readonly backgroundSdCounts: number | null;
-  /** Number of empty places fitted for a background threshold (the name is kept for stored summaries). */
+  /** Number of empty places fitted for the null (the name is kept for stored summaries). */
   readonly nbBackgroundApertures: number | null;
   readonly nbPositive: number;
+  /** How the marker was called, and the one sentence that says what "positive" means under it. */
+  readonly rule?: 'camera_noise' | 'control' | 'manual';
+  readonly ruleSentence?: string;
+  /** Calibrated z a vesicle must exceed (camera-noise and control rules); null for the manual rule. */
+  readonly zCritical?: number | null;
+  /** Median and 1.4826·MAD of z at empty places; calibrated false when too few places were free (z used as is). */
+  readonly nullMedianZ?: number;
+  readonly nullMadZ?: number;
+  readonly nullCalibrated?: boolean;
+  /** Typical SE of a lone amplitude at the empty places (counts). */
+  readonly typicalSeCounts?: number | null;
+  /** The camera model used for this frame, 'given' or 'estimated', and a note on what was assumed. */
+  readonly camera?: CameraModel;
+  readonly cameraSource?: 'given' | 'estimated';
+  readonly cameraNote?: string;
+  /** The control kind and number of control vesicles behind a control threshold; null otherwise. */
+  readonly controlKind?: ThresholdControlKind | null;
+  readonly nbControls?: number | null;
+  /** Vesicles inside this frame (the denominator); nbPositive / nbMeasured. */
+  readonly nbMeasured?: number;
+  readonly positiveFraction?: number | null;
+  /** Positive fraction at randomly shifted vesicle positions (chance colocalisation), and the positions tried. */
+  readonly chancePositiveFraction?: number | null;
+  readonly nbChancePositions?: number;
+  /** Spots (dim ones included) away from every vesicle that got their own PSF column in the joint fit. */
+  readonly nbOtherSources?: number;
   /** Spots with no vesicle and no fiducial within 2 PSF sigmas (possible debris, free dye, missed EVs). */
   readonly nbSpotsWithoutVesicle: number;
   /** Spots on a fiducial (bead), not counted as vesicle signal. */
@@ -217,8 +291,14 @@ export interface FieldSummary {
   readonly registration: FieldRegistration;
   readonly channels: Readonly<Record<string, FieldChannelSummary>>;
   readonly positiveByMarker: Readonly<Record<string, number>>;
-  /** Number of vesicles per phenotype string (all vesicles, out-of-frame ones under their "?" phenotype). */
+  /** Vesicles inside each marker's frame: the denominators of positiveByMarker. */
+  readonly nbMeasuredByMarker?: Readonly<Record<string, number>>;
+  /**
+   * Number of vesicles per phenotype string, over the vesicles measured in every channel only (a vesicle outside a
+   * frame has no phenotype); nbMeasuredAllChannels is their total.
+   */
   readonly phenotypeCounts: Readonly<Record<string, number>>;
+  readonly nbMeasuredAllChannels?: number;
   readonly nbOutOfFrame: number;
   readonly spotsWithoutVesicleByMarker: Readonly<Record<string, number>>;
   /** In every frame and negative for every marker. */

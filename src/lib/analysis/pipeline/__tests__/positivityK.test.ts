@@ -1,4 +1,4 @@
-/** k of the background positivity rule per marker: x_L = x̄_blank + k·s_blank (REFERENCES §9, IUPAC Gold Book L03540). */
+/** k per marker is z_crit of the camera-noise rule: calibrated z > k (k SDs of the empty places' null, docs/references.md §6). */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { analyzeField, type AnalyzeFieldInput, type AnalyzeFieldResult } from '..';
 import { makeFieldScene } from './fieldScene';
@@ -16,24 +16,24 @@ describe('analyzeField with a k per marker', () => {
     };
     k3 = analyzeField(input);
     k5 = analyzeField(input, { positivityKByMarker: { CD63: 5 } });
-  });
+  }, 120_000);
 
-  it('uses mean + 5 SD of the same empty places for the marker given k = 5, and mean + 3 SD for the others', () => {
+  it('uses null centre + 5 null SDs of the same empty places for the marker given k = 5, and 3.09 for the others', () => {
     const a = k3.summary.channels.CD63;
     const b = k5.summary.channels.CD63;
-    expect(b.thresholdSource).toBe('background_amplitudes');
+    expect(b.thresholdSource).toBe('camera_noise');
+    expect(b.zCritical).toBe(5);
     // same places, same amplitudes: only k differs
     expect(b.backgroundMeanCounts).toBe(a.backgroundMeanCounts);
     expect(b.backgroundSdCounts).toBe(a.backgroundSdCounts);
     expect(b.backgroundSdCounts!).toBeGreaterThan(0);
     expect(b.thresholdCounts).toBeCloseTo(b.backgroundMeanCounts! + 5 * b.backgroundSdCounts!, 9);
-    expect(b.thresholdCounts - a.thresholdCounts).toBeCloseTo(2 * a.backgroundSdCounts!, 9);
+    expect(b.thresholdCounts - a.thresholdCounts).toBeCloseTo((5 - a.zCritical!) * a.backgroundSdCounts!, 9);
     for (const m of ['CD9', 'CD81']) expect(k5.summary.channels[m].thresholdCounts).toBe(k3.summary.channels[m].thresholdCounts);
   });
 
-  it('calls CD63 against the higher threshold: positives are exactly the amplitudes above it', () => {
-    const t = k5.summary.channels.CD63.thresholdCounts;
-    const above = k5.records.filter((r) => (r.markers.CD63?.amplitudeCounts ?? -Infinity) > t).length;
+  it('calls CD63 against the higher z_crit: positives are exactly the calibrated z above 5', () => {
+    const above = k5.records.filter((r) => (r.markers.CD63?.zCalibrated ?? -Infinity) > 5).length;
     expect(k5.summary.positiveByMarker.CD63).toBe(above);
     expect(k5.records.filter((r) => r.markers.CD63?.positive).length).toBe(above);
     expect(k5.summary.positiveByMarker.CD63).toBeLessThanOrEqual(k3.summary.positiveByMarker.CD63);
