@@ -1,32 +1,26 @@
 /**
  * `npm run analyze -- --topography A.tif --fluorescence F.tif --markers CD9,CD63,CD81 --out vesicles.csv [...]`:
  * analyses one correlative field from files, without the web app or a database, and writes one CSV row per vesicle
- * (and optionally a JSON summary). Exit codes: 0 done, 2 input to fix (the message says what), 1 unexpected failure.
- * Flags and formats: docs/cli.md, section "Batch command line".
+ * (and optionally a JSON summary). `--batch fields.csv --out-dir DIR` analyses every field listed in one process.
+ * Exit codes: 0 done, 2 input to fix (the message says what), 1 unexpected failure.
+ * Flags and formats: docs/cli.md; the CSV columns: docs/vesicle-columns.md. Run as bundled JavaScript (build/cli,
+ * see scripts/build-cli.ts), so no TypeScript is transpiled at start.
  */
-import { readFile, writeFile } from 'node:fs/promises';
-import { basename, resolve } from 'node:path';
+import { mkdir, readFile, writeFile } from 'node:fs/promises';
+import { dirname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
+import { parse as parseCsv } from 'csv-parse/sync';
 import { AnalysisError } from '../src/lib/analysis/errors';
-import { fitAffine } from '../src/lib/analysis/geometry';
-import {
-  analyzeField, parseFiducialCsv, vesicleCsv, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type FieldStage,
-} from '../src/lib/analysis/pipeline';
-import type { FiducialPair } from '../src/lib/analysis/geometry';
-import type { Raster } from '../src/lib/analysis/types';
-import { decodeTiff, ImagingError, type DecodedTiff } from '../src/lib/imaging';
+import { DEFAULT_NUMERICAL_APERTURE } from '../src/lib/analysis/pipeline/opticsDefaults';
+import { analyzeFieldFiles, CAUTION, InputError, readFiducials, type FieldFiles, type FieldSettings } from './lib/analyzeFieldFiles';
 
 const USAGE = `Usage: npm run analyze -- --topography A.tif --fluorescence F.tif [--fluorescence G.tif ...]
          --markers CD9,CD63,CD81 --out vesicles.csv [--fiducials pairs.csv] [--summary summary.json]
-         [--afm-pixel-nm N] [--fluor-pixel-nm N] [--threshold-nm N] [--marker-threshold CD9=N ...]
-         [--emission-nm 520,590,670] [--na 1.4]
-See docs/cli.md ("Batch command line").`;
-
-const CAUTION = 'For research use only; not for diagnosis or treatment decisions.';
-const DEFAULT_NA = DEFAULT_NUMERICAL_APERTURE;
-
-/** A problem with the command line or the input files that the user can fix: exit code 2. */
-class InputError extends Error {}
+         [--tip-radius NM] [--afm-pixel-nm N] [--fluor-pixel-nm N] [--threshold-nm N]
+         [--marker-threshold CD9=N ...] [--emission-nm 520,590,670] [--na 1.4]
+   or: npm run analyze -- --batch fields.csv --out-dir DIR --markers CD9,CD63,CD81 [same optional flags]
+${CAUTION}
+See docs/cli.md; the CSV columns are described in docs/vesicle-columns.md.`;
 
 const log = (line: string) => process.stderr.write(`[analyze] ${line}\n`);
 
@@ -46,6 +40,9 @@ function parseCommandLine(argv: string[]) {
         markers: { type: 'string' },
         out: { type: 'string' },
         summary: { type: 'string' },
+        batch: { type: 'string' },
+        'out-dir': { type: 'string' },
+        'tip-radius': { type: 'string' },
         'afm-pixel-nm': { type: 'string' },
         'fluor-pixel-nm': { type: 'string' },
         'threshold-nm': { type: 'string' },
@@ -64,56 +61,13 @@ function parseCommandLine(argv: string[]) {
   }
 }
 
+type Args = ReturnType<typeof parseCommandLine>;
+
 function positiveNumber(flag: string, text: string | undefined): number | undefined {
   if (text === undefined) return undefined;
   const v = Number(text);
   if (text.trim() === '' || !Number.isFinite(v) || v <= 0) throw new InputError(`--${flag} must be a positive number, got "${text}".`);
   return v;
-}
-
-async function readInput(path: string, what: string): Promise<Buffer> {
-  try {
-    return await readFile(fromCaller(path));
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT') throw new InputError(`The ${what} file "${path}" does not exist; check the path.`);
-    if (code === 'EISDIR') throw new InputError(`The ${what} path "${path}" is a folder; give a file.`);
-    throw new InputError(`The ${what} file "${path}" cannot be read (${code ?? String(error)}).`);
-  }
-}
-
-async function readTiff(path: string, what: string): Promise<DecodedTiff> {
-  const bytes = await readInput(path, what);
-  try {
-    return await decodeTiff(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength));
-  } catch (error) {
-    if (error instanceof ImagingError) {
-      const hint = error.code === 'not_tiff' ? ' Export the image as TIFF (OME-TIFF or baseline TIFF) and try again.' : '';
-      throw new InputError(`The ${what} file "${path}" could not be read as a TIFF: ${error.message}${hint}`);
-    }
-    throw error;
-  }
-}
-
-/** Pixel size from the flag, else from the file; x and y must agree because the analysis assumes square pixels. */
-function pixelSizeNm(tiff: DecodedTiff, path: string, flag: string, given: number | undefined): number {
-  const fromFile = tiff.meta.pixelSizeNm;
-  for (const w of tiff.meta.warnings) log(`note: ${basename(path)}: ${w}`);
-  if (given !== undefined) {
-    if (fromFile && Math.abs(fromFile.x / given - 1) > 0.01) {
-      log(`note: ${basename(path)} states ${fromFile.x.toPrecision(4)} nm/px; using --${flag} ${given} nm/px as given.`);
-    }
-    return given;
-  }
-  if (!fromFile) {
-    throw new InputError(`The file "${path}" does not state its pixel size; give it with --${flag} <nm per pixel>.`);
-  }
-  if (Math.abs(fromFile.x / fromFile.y - 1) > 0.01) {
-    throw new InputError(
-      `The file "${path}" has non-square pixels (${fromFile.x} × ${fromFile.y} nm); resample it to square pixels or give --${flag}.`,
-    );
-  }
-  return fromFile.x;
 }
 
 function parseMarkerThresholds(items: readonly string[], markers: readonly string[]): Record<string, number> {
@@ -133,11 +87,8 @@ function parseMarkerThresholds(items: readonly string[], markers: readonly strin
   return out;
 }
 
-function emissionList(text: string | undefined, markers: readonly string[]): number[] {
-  if (text === undefined) {
-    log(`note: no --emission-nm; assuming ${DEFAULT_EMISSION_NM} nm for every channel (sets the PSF width).`);
-    return markers.map(() => DEFAULT_EMISSION_NM);
-  }
+function emissionList(text: string | undefined, markers: readonly string[]): number[] | undefined {
+  if (text === undefined) return undefined;
   const values = text.split(',').map((s) => positiveNumber('emission-nm', s.trim())!);
   if (values.length === 1) return markers.map(() => values[0]);
   if (values.length !== markers.length) {
@@ -146,42 +97,13 @@ function emissionList(text: string | undefined, markers: readonly string[]): num
   return values;
 }
 
-async function readFiducials(path: string): Promise<FiducialPair[]> {
-  const text = (await readInput(path, 'fiducial CSV')).toString('utf8');
-  let pairs: FiducialPair[];
-  try {
-    pairs = parseFiducialCsv(text);
-  } catch (error) {
-    if (error instanceof AnalysisError) throw new InputError(`${path}: ${error.message}`);
-    throw error;
-  }
-  if (pairs.length < 3) {
-    throw new InputError(`${path} has ${pairs.length} fiducial pair(s); an affine registration needs at least 3 (better 4 or more).`);
-  }
-  try {
-    fitAffine(pairs.map((p) => p.afm), pairs.map((p) => p.fl));
-  } catch (error) {
-    if (error instanceof AnalysisError) throw new InputError(`${path}: ${error.message}`);
-    throw error;
-  }
-  return pairs;
-}
-
-async function main(argv: string[]): Promise<number> {
-  const args = parseCommandLine(argv);
-  if (args.help) {
-    process.stdout.write(`${USAGE}\n`);
-    return 0;
-  }
-  const missing = (['topography', 'fluorescence', 'markers', 'out'] as const).filter((k) => args[k] === undefined);
-  if (missing.length > 0) throw new InputError(`Missing ${missing.map((k) => `--${k}`).join(', ')}.\n${USAGE}`);
+/** The flags every field shares. */
+function settingsFrom(args: Args): FieldSettings {
   const markers = args.markers!.split(',').map((m) => m.trim());
   if (markers.some((m) => m === '') || new Set(markers).size !== markers.length) {
     throw new InputError(`--markers must be distinct, non-empty names separated by commas, got "${args.markers}".`);
   }
-  const afmPixelGiven = positiveNumber('afm-pixel-nm', args['afm-pixel-nm']);
-  const flPixelGiven = positiveNumber('fluor-pixel-nm', args['fluor-pixel-nm']);
-  const numericalAperture = positiveNumber('na', args.na) ?? DEFAULT_NA;
+  const numericalAperture = positiveNumber('na', args.na) ?? DEFAULT_NUMERICAL_APERTURE;
   if (numericalAperture > 1.7) throw new InputError(`--na must be at most 1.7 (immersion objectives), got ${numericalAperture}.`);
   let thresholdNm: number | undefined;
   if (args['threshold-nm'] !== undefined) {
@@ -190,79 +112,147 @@ async function main(argv: string[]): Promise<number> {
       throw new InputError(`--threshold-nm must be a number of nm, got "${args['threshold-nm']}".`);
     }
   }
-  const thresholds = parseMarkerThresholds(args['marker-threshold'] ?? [], markers);
-  const emissionNm = emissionList(args['emission-nm'], markers);
-  const fiducialPairs = args.fiducials ? await readFiducials(args.fiducials) : undefined;
-
-  // read
-  let t = performance.now();
-  const topography = await readTiff(args.topography!, 'topography');
-  const afmPixelNm = pixelSizeNm(topography, args.topography!, 'afm-pixel-nm', afmPixelGiven);
-  if (topography.pages.length > 1) log(`note: ${basename(args.topography!)} has ${topography.pages.length} pages; the first is the height map.`);
-  const pages: Raster[] = [];
-  let flPixelNm: number | undefined = flPixelGiven;
-  const pageCounts: string[] = [];
-  for (const path of args.fluorescence!) {
-    const tiff = await readTiff(path, 'fluorescence');
-    const size = pixelSizeNm(tiff, path, 'fluor-pixel-nm', flPixelGiven);
-    if (flPixelNm !== undefined && Math.abs(size / flPixelNm - 1) > 0.01) {
-      throw new InputError(`The fluorescence files state different pixel sizes (${flPixelNm} and ${size} nm); give --fluor-pixel-nm.`);
+  let tipRadiusNm: number | undefined;
+  if (args['tip-radius'] !== undefined) {
+    tipRadiusNm = Number(args['tip-radius']);
+    if (args['tip-radius'].trim() === '' || !Number.isFinite(tipRadiusNm) || tipRadiusNm < 0 || tipRadiusNm > 1000) {
+      throw new InputError(`--tip-radius must be the AFM tip's apex radius in nm (0 to 1000, e.g. 8), got "${args['tip-radius']}".`);
     }
-    flPixelNm = size;
-    pages.push(...tiff.pages);
-    pageCounts.push(`${basename(path)}: ${tiff.pages.length} page${tiff.pages.length === 1 ? '' : 's'}`);
   }
-  if (pages.length !== markers.length) {
-    throw new InputError(
-      `--markers names ${markers.length} marker(s) (${markers.join(',')}) but the fluorescence input has ${pages.length} ` +
-        `channel(s) (${pageCounts.join('; ')}). Give one page per marker, in the same order.`,
-    );
+  return {
+    markers,
+    emissionNmGiven: emissionList(args['emission-nm'], markers),
+    numericalAperture,
+    afmPixelNmGiven: positiveNumber('afm-pixel-nm', args['afm-pixel-nm']),
+    flPixelNmGiven: positiveNumber('fluor-pixel-nm', args['fluor-pixel-nm']),
+    thresholdNm,
+    thresholdCountsByMarker: parseMarkerThresholds(args['marker-threshold'] ?? [], markers),
+    tipRadiusNm,
+  };
+}
+
+const BATCH_COLUMNS = ['field', 'topography', 'fluorescence', 'fiducials'];
+
+/**
+ * The fields of a batch CSV: header field,topography,fluorescence[,fiducials]; fluorescence lists one stack or
+ * one file per channel separated by ";"; paths are relative to the CSV's folder; field names name the outputs.
+ */
+async function readBatch(path: string): Promise<FieldFiles[]> {
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (error) {
+    throw new InputError(`The batch file "${path}" cannot be read (${(error as NodeJS.ErrnoException).code ?? String(error)}); check the path.`);
   }
-  log(`read ${pages.length} channel(s), AFM ${topography.pages[0].width}×${topography.pages[0].height} px at ${afmPixelNm.toPrecision(4)} nm/px, ` +
-    `fluorescence ${pages[0].width}×${pages[0].height} px at ${flPixelNm!.toPrecision(4)} nm/px (${(performance.now() - t).toFixed(0)} ms)`);
-
-  // analyse, timing each stage
-  const started = new Map<FieldStage, number>();
-  const result = analyzeField(
-    {
-      heightNm: topography.pages[0],
-      afmPixelNm,
-      channels: markers.map((marker, i) => ({ marker, raster: pages[i], emissionNm: emissionNm[i] })),
-      flPixelNm: flPixelNm!,
-      numericalAperture,
-      fiducialPairs,
-      thresholdCountsByMarker: thresholds,
-    },
-    {
-      thresholdNm,
-      onProgress: (stage, fraction) => {
-        if (fraction === 0) started.set(stage, performance.now());
-        if (fraction === 1) log(`${stage.padEnd(9)} ${(performance.now() - (started.get(stage) ?? 0)).toFixed(0).padStart(6)} ms`);
-      },
-    },
-  );
-
-  // write
-  t = performance.now();
-  const { summary } = result;
-  await writeFile(fromCaller(args.out!), vesicleCsv(result.records, markers));
-  if (args.summary) {
-    const report = {
-      caution: CAUTION,
-      inputs: { topography: args.topography, fluorescence: args.fluorescence, fiducials: args.fiducials ?? null },
-      parameters: { markers, emissionNm, numericalAperture, afmPixelNm, flPixelNm, thresholdNm: thresholdNm ?? null, markerThresholds: thresholds },
-      ...summary,
+  let rows: string[][];
+  try {
+    rows = parseCsv(text, { bom: true, skip_empty_lines: true, trim: true, relax_column_count: true, comment: '#' }) as string[][];
+  } catch (error) {
+    throw new InputError(`The batch file "${path}" is not valid CSV: ${(error as Error).message}`);
+  }
+  const header = (rows.shift() ?? []).map((h) => h.toLowerCase());
+  if (header.length < 3 || BATCH_COLUMNS.slice(0, header.length).some((c, i) => header[i] !== c) || header.length > 4) {
+    throw new InputError(`The batch file "${path}" must start with the header ${BATCH_COLUMNS.join(',')} (fiducials may be left out), got "${header.join(',')}".`);
+  }
+  const folder = dirname(path);
+  const seen = new Set<string>();
+  return rows.map((row, i) => {
+    const line = i + 2;
+    const [field = '', topography = '', fluorescence = '', fiducials = ''] = row;
+    if (!/^[A-Za-z0-9._-]+$/.test(field)) {
+      throw new InputError(`${path} line ${line}: the field name "${field}" must be letters, digits, ".", "_" or "-" (it names the output files).`);
+    }
+    if (seen.has(field)) throw new InputError(`${path} line ${line}: the field name "${field}" is used twice.`);
+    seen.add(field);
+    if (!topography || !fluorescence) throw new InputError(`${path} line ${line}: give a topography and at least one fluorescence file.`);
+    return {
+      name: field,
+      topography: resolve(folder, topography),
+      fluorescence: fluorescence.split(';').map((p) => resolve(folder, p.trim())),
+      fiducials: fiducials ? resolve(folder, fiducials) : undefined,
     };
-    await writeFile(fromCaller(args.summary), `${JSON.stringify(report, null, 2)}\n`);
-  }
-  const reg = summary.registration;
-  log(`write     ${(performance.now() - t).toFixed(0).padStart(6)} ms`);
-  log(`${summary.nbVesicles} vesicles (${summary.nbOutOfFrame} outside the fluorescence frame); ` +
-    markers.map((m) => `${m}+ ${summary.positiveByMarker[m]}`).join(', ') + `; ${summary.nbVesiclesWithoutMarker} without marker`);
+  });
+}
+
+/** Hint for an analysis failure a flag can fix. */
+function hintFor(error: AnalysisError): string {
+  return error.code === 'too_few_background_apertures'
+    ? ' Give a threshold for every marker with --marker-threshold MARKER=counts (e.g. from a control sample).'
+    : error.code === 'no_consistent_pairing' ? ' Place fiducials and give them with --fiducials.' : '';
+}
+
+function logResult(summary: Record<string, unknown>, markers: readonly string[]): void {
+  const s = summary as unknown as {
+    nbVesicles: number; nbOutOfFrame: number; positiveByMarker: Record<string, number>; nbVesiclesWithoutMarker: number;
+    registration: { source: string; nbPairs: number; freNm: number; description: string; warnings: { message: string }[] };
+  };
+  log(`${s.nbVesicles} vesicles (${s.nbOutOfFrame} outside the fluorescence frame); ` +
+    markers.map((m) => `${m}+ ${s.positiveByMarker[m]}`).join(', ') + `; ${s.nbVesiclesWithoutMarker} without marker`);
+  const reg = s.registration;
   log(`registration (${reg.source}, ${reg.nbPairs} pairs): FRE ${reg.freNm.toFixed(1)} nm; ${reg.description}`);
   for (const w of reg.warnings) log(`warning: ${w.message}`);
+}
+
+async function runOne(args: Args): Promise<number> {
+  const missing = (['topography', 'fluorescence', 'markers', 'out'] as const).filter((k) => args[k] === undefined);
+  if (missing.length > 0) throw new InputError(`Missing ${missing.map((k) => `--${k}`).join(', ')}.\n${USAGE}`);
+  const settings = settingsFrom(args);
+  if (args.fiducials) await readFiducials(fromCaller(args.fiducials)); // a bad fiducial file is reported before any image is read
+  const files: FieldFiles = {
+    name: 'field',
+    topography: fromCaller(args.topography!),
+    fluorescence: args.fluorescence!.map(fromCaller),
+    fiducials: args.fiducials ? fromCaller(args.fiducials) : undefined,
+  };
+  const { csv, summary } = await analyzeFieldFiles(files, settings, log);
+  const t = performance.now();
+  await writeFile(fromCaller(args.out!), csv);
+  if (args.summary) await writeFile(fromCaller(args.summary), `${JSON.stringify(summary, null, 2)}\n`);
+  log(`write     ${(performance.now() - t).toFixed(0).padStart(6)} ms`);
+  logResult(summary, settings.markers);
   log(CAUTION);
   return 0;
+}
+
+async function runBatch(args: Args): Promise<number> {
+  const missing = (['markers', 'out-dir'] as const).filter((k) => args[k] === undefined);
+  if (missing.length > 0) throw new InputError(`Missing ${missing.map((k) => `--${k}`).join(', ')}.\n${USAGE}`);
+  const single = (['topography', 'fluorescence', 'fiducials', 'out', 'summary'] as const).filter((k) => args[k] !== undefined);
+  if (single.length > 0) throw new InputError(`${single.map((k) => `--${k}`).join(', ')} belong(s) to one field; in --batch mode list files in the batch CSV.`);
+  const settings = settingsFrom(args);
+  const fields = await readBatch(fromCaller(args.batch!));
+  const outDir = fromCaller(args['out-dir']!);
+  await mkdir(outDir, { recursive: true });
+  const failed: string[] = [];
+  const started = performance.now();
+  for (const [i, files] of fields.entries()) {
+    log(`field ${i + 1}/${fields.length}: ${files.name}`);
+    try {
+      const { csv, summary } = await analyzeFieldFiles(files, settings, log);
+      await writeFile(join(outDir, `${files.name}.csv`), csv);
+      await writeFile(join(outDir, `${files.name}.summary.json`), `${JSON.stringify(summary, null, 2)}\n`);
+      logResult(summary, settings.markers);
+    } catch (error) {
+      // one field's bad input must not stop a run over a hundred: report it and go on
+      if (!(error instanceof InputError || error instanceof AnalysisError)) throw error;
+      failed.push(files.name);
+      log(`error: ${files.name}: ${error.message}${error instanceof AnalysisError ? hintFor(error) : ''}`);
+    }
+  }
+  const seconds = (performance.now() - started) / 1000;
+  log(`batch: ${fields.length - failed.length} of ${fields.length} field(s) written to ${outDir} in ${seconds.toFixed(1)} s` +
+    (failed.length ? `; not analysed: ${failed.join(', ')}` : ''));
+  log(CAUTION);
+  return failed.length ? 2 : 0;
+}
+
+async function main(argv: string[]): Promise<number> {
+  const args = parseCommandLine(argv);
+  if (args.help) {
+    process.stdout.write(`${USAGE}\n`);
+    return 0;
+  }
+  return args.batch !== undefined ? runBatch(args) : runOne(args);
 }
 
 main(process.argv.slice(2)).then(
@@ -271,10 +261,7 @@ main(process.argv.slice(2)).then(
   },
   (error: unknown) => {
     if (error instanceof InputError || error instanceof AnalysisError) {
-      const hint = error instanceof AnalysisError && error.code === 'too_few_background_apertures'
-        ? ' Give a threshold for every marker with --marker-threshold MARKER=counts (e.g. from a control sample).'
-        : '';
-      process.stderr.write(`analyze: ${error.message}${hint}\n`);
+      process.stderr.write(`analyze: ${error.message}${error instanceof AnalysisError ? hintFor(error) : ''}\n`);
       process.exitCode = 2;
     } else {
       process.stderr.write(`analyze: unexpected failure: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);

@@ -18,7 +18,7 @@ async function main() {
   const children: ChildProcess[] = [];
   // the worker runs under node itself (not through npx) so that stopping it reaches the process; it starts
   // before the seed and the build, so demo fields are ingested while the others are generated and the app builds
-  children.push(spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: 'inherit', env: process.env }));
+  children.push(spawn(process.execPath, ['scripts/run-bundled.mjs', 'worker'], { stdio: 'inherit', env: process.env }));
   await seedAll(s.env, log);
   log('demo data seeded');
   // the demo pilot goes through registration, linking and release in the background (fast when done before)

@@ -68,7 +68,7 @@ async function main() {
     ensureChromium();
     services = await startServices(s, log);
     // the worker starts before the seed, the type check and the build, so the demo fields are ingested meanwhile
-    const worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
+    const worker = spawn(process.execPath, ['scripts/run-bundled.mjs', 'worker'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
     children.push(worker);
     await seedAll(s.env, log);
 

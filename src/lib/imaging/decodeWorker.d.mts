@@ -72,6 +72,11 @@ export interface TiffMetadata {
   pixelSizeSource: 'ome-xml' | 'resolution-tags' | null;
   /** ImageDescription of the first IFD (OME-XML in OME-TIFF), or null. */
   imageDescription: string | null;
+  /**
+   * Emission wavelength (nm) of each OME-XML Channel of the first Pixels, in document order (null where a channel
+   * states none or an unusable one); [] without OME-XML channels. Unit attribute default "nm" (OME schema 2016-06).
+   */
+  channelEmissionNm: (number | null)[];
   /** Memory decoding will need (bytes), as compared with maxDecodedBytes. */
   decodedBytes: number;
   /** Non-fatal findings for the user (ignored pixel size, skipped previews). */

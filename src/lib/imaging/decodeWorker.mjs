@@ -14,7 +14,7 @@
 // - BigTIFF header (magic 43, 8-byte offsets, field types 16-18): BigTIFF proposal (libtiff.org).
 //   From memory.
 // - OME-XML in ImageDescription of the first IFD; Pixels@PhysicalSizeX/Y, unit default "µm":
-//   OME-TIFF specification and OME schema 2016-06 (see /work/shared/REFERENCES.md §10).
+//   OME-TIFF specification and OME schema 2016-06 (docs/references.md §10).
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { fromArrayBuffer } from 'geotiff';
 
@@ -381,6 +381,36 @@ function pixelSizeFromOme(description, warnings) {
   return { x, y };
 }
 
+/**
+ * Emission wavelength (nm) of each Channel of the first OME-XML Pixels, in document order (null where a Channel
+ * states none or an unusable one); [] when the description is not OME-XML or has no Channel. OME schema 2016-06:
+ * Channel@EmissionWavelength is a PositiveFloat, its unit attribute EmissionWavelengthUnit defaults to "nm".
+ */
+function channelEmissionFromOme(description, warnings) {
+  if (!description || !/<(?:\w+:)?OME[\s>]/.test(description)) return [];
+  const start = description.search(/<(?:\w+:)?Pixels\b/);
+  if (start < 0) return [];
+  const end = description.slice(start).search(/<\/(?:\w+:)?Pixels\s*>/);
+  const pixels = end < 0 ? description.slice(start) : description.slice(start, start + end);
+  const channels = pixels.match(/<(?:\w+:)?Channel\b[^>]*>/g) ?? [];
+  return channels.map((tag, i) => {
+    const raw = xmlAttr(tag, 'EmissionWavelength');
+    if (raw === undefined) return null;
+    const value = Number(raw);
+    const unit = (xmlAttr(tag, 'EmissionWavelengthUnit') ?? 'nm').trim();
+    const factor = NM_PER_UNIT[unit];
+    if (!(value > 0) || !Number.isFinite(value)) {
+      warnings.push(`The OME-XML emission wavelength of channel ${i + 1} ("${raw}") is not a positive number; it was ignored.`);
+      return null;
+    }
+    if (factor === undefined) {
+      warnings.push(`The OME-XML emission wavelength unit "${unit}" of channel ${i + 1} is not a length Heightlight converts; it was ignored.`);
+      return null;
+    }
+    return value * factor;
+  });
+}
+
 /** Pixel size from XResolution/YResolution/ResolutionUnit (TIFF 6.0 section 8). */
 function pixelSizeFromResolution(ctx, ifd, warnings) {
   const xRes = single(ctx, ifd, 282);
@@ -449,6 +479,7 @@ function inspect(bytes, limits) {
     pixelSizeNm = pixelSizeFromResolution(ctx, first, warnings);
     pixelSizeSource = pixelSizeNm ? 'resolution-tags' : null;
   }
+  const channelEmissionNm = channelEmissionFromOme(imageDescription, warnings);
   const p0 = pages[0];
   const meta = {
     byteOrder: ctx.le ? 'little-endian' : 'big-endian',
@@ -464,6 +495,7 @@ function inspect(bytes, limits) {
     pixelSizeNm,
     pixelSizeSource,
     imageDescription,
+    channelEmissionNm,
     decodedBytes,
     warnings,
   };

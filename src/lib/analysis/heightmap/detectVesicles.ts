@@ -72,6 +72,7 @@ export function detectVesicles(levelled: Raster, options: DetectVesiclesOptions)
   const regionOrder = Int32Array.from({ length: nbRegions }, (_, i) => i);
   regionOrder.sort((a, b) => regions[a * REGION_FIELDS + FIRST] - regions[b * REGION_FIELDS + FIRST]);
 
+  const splitBasin = basinsSplit(list.first, basins.basinOfRank, basins.nbBasins);
   const labelOfRegion = new Int32Array(nbRegions);
   const vesicles: DetectedRegion[] = [];
   const fiducialCandidates: DetectedRegion[] = [];
@@ -79,7 +80,7 @@ export function detectVesicles(levelled: Raster, options: DetectVesiclesOptions)
   for (let k = 0; k < nbRegions; k++) {
     const i = regionOrder[k];
     if (labelOfRegion[i] === 0) continue;
-    const region = describeRegion(data, width, regions, i, labelOfRegion[i]);
+    const region = describeRegion(data, width, regions, i, labelOfRegion[i], i < basins.nbBasins && splitBasin[i] === 1);
     (region.maxHeightNm > beadMinHeightNm ? fiducialCandidates : vesicles).push(region);
   }
   writeLabels(labels, width, start, end, row, runsFirst, runsList, basins.order, basins.basinOfRank, componentOfRegion, labelOfRegion, basins.nbBasins);
@@ -267,12 +268,32 @@ function filterRegions(
   return [nbDroppedEdge, nbDroppedSmall, nbDroppedLow];
 }
 
+/**
+ * split[b] = 1 for every basin whose component holds more than one basin (before any filter: a dropped neighbour
+ * still cut the footprint). Ranks come component after component (first[j] … first[j + 1]).
+ */
+function basinsSplit(first: Int32Array, basinOfRank: Int32Array, nbBasins: number): Uint8Array {
+  const split = new Uint8Array(nbBasins);
+  for (let j = 0; j + 1 < first.length; j++) {
+    let lo = nbBasins;
+    let hi = -1;
+    for (let r = first[j]; r < first[j + 1]; r++) {
+      const b = basinOfRank[r];
+      if (b < lo) lo = b;
+      if (b > hi) hi = b;
+    }
+    // basins are numbered by their root's rank, so one component's basins are lo … hi
+    if (hi > lo) split.fill(1, lo, hi + 1);
+  }
+  return split;
+}
+
 /** The {@link DetectedRegion} of region i. */
-function describeRegion(data: Float32Array, width: number, regions: Int32Array, i: number, label: number): DetectedRegion {
+function describeRegion(data: Float32Array, width: number, regions: Int32Array, i: number, label: number, split: boolean): DetectedRegion {
   const at = i * REGION_FIELDS;
   const peak = regions[at + PEAK];
   return {
-    label, areaPx: regions[at + AREA], maxHeightNm: data[peak],
+    label, areaPx: regions[at + AREA], maxHeightNm: data[peak], split,
     peakPx: { x: peak % width, y: Math.floor(peak / width) },
     xMin: regions[at + X_MIN], yMin: regions[at + Y_MIN], xMax: regions[at + X_MAX], yMax: regions[at + Y_MAX],
   };

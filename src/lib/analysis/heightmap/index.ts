@@ -1,6 +1,7 @@
 export { analyzeHeightMap } from './analyzeHeightMap';
 export { capBaseRadiusFromSlice } from './capBaseRadiusFromSlice';
 export { detectVesicles } from './detectVesicles';
+export { fitSphericalCap } from './fitSphericalCap';
 export { labelComponents } from './labelComponents';
 export { levelHeightMap } from './levelHeightMap';
 export { measureVesicle } from './measureVesicle';
@@ -14,5 +15,6 @@ export { selectThreshold } from './selectThreshold';
 export { sphericalCap } from './sphericalCap';
 export { tipBroadenedHalfWidth } from './tipBroadenedHalfWidth';
 export { tipCorrectedBaseRadius } from './tipCorrectedBaseRadius';
+export { tipCorrectedCap } from './tipCorrectedCap';
 export { validateRaster } from './validateRaster';
 export type * from './types';

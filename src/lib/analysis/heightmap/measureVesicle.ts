@@ -1,10 +1,10 @@
 import { AnalysisError } from '../errors';
 import type { Raster } from '../types';
 import { capBaseRadiusFromSlice } from './capBaseRadiusFromSlice';
+import { fitSphericalCap } from './fitSphericalCap';
 import { solveLinearSystem } from './solveLinearSystem';
-import { sphericalCap } from './sphericalCap';
-import { tipCorrectedBaseRadius } from './tipCorrectedBaseRadius';
-import type { DetectedRegion, MeasureVesicleOptions, MeasureVesicleResult } from './types';
+import { tipCorrectedCap } from './tipCorrectedCap';
+import type { CapSizeFlag, DetectedRegion, FitSphericalCapResult, MeasureVesicleOptions, MeasureVesicleResult, SphericalCapResult } from './types';
 import { validateRaster } from './validateRaster';
 
 /**
@@ -18,8 +18,13 @@ import { validateRaster } from './validateRaster';
  *   crack path is a Manhattan length, which over all orientations averages 4/π times the Euclidean
  *   length (Cauchy–Crofton, from memory). A digitised disk of r px spans 2r ± 1 px per axis depending on its
  *   sub-pixel phase, so its circularity lies between (r/(r+½))² and (r/(r−½))² and is ≈ 1 on average;
- * - cap model: base half-width from the footprint area at the threshold extrapolated to 0 nm
- *   as a spherical cap, then optionally tip-corrected a = √(w² − 2hR), with the apex height as h.
+ * - footprint: diameter 2√(A/π) of the thresholded pixels (tip-broadened, threshold-dependent), and its half-width
+ *   extrapolated to 0 nm as a cap (`apparentBaseRadiusNm`);
+ * - cap model: a sphere fitted to the region's surface above the threshold ({@link fitSphericalCap}), then
+ *   R_c = R_image − R and a = √(h(2R_c − h)) ({@link tipCorrectedCap}), h the fitted apex; flagged
+ *   `cap_fit_failed` when the fit fails, its RMS residual exceeds a fifth of the height, or its base is
+ *   more than 1.5× (+ 2 px) or less than 0.5× the extrapolated footprint (not a cap; the margin leaves room for a
+ *   footprint cut by a touching neighbour).
  *
  * @param levelled - levelled heights (nm)
  * @param labels - label map from {@link detectVesicles}, same size
@@ -29,7 +34,7 @@ import { validateRaster } from './validateRaster';
  * @returns measurements and the spherical-cap model
  * @throws AnalysisError `empty_region` when no pixel carries the region's label inside its box
  * @throws RangeError for mismatched sizes or a non-positive pixel size
- * @see REFERENCES.md §2 and §3 (cap geometry, tip broadening)
+ * @see docs/references.md §2 and §3 (cap geometry, tip broadening)
  */
 export function measureVesicle(
   levelled: Raster, labels: Int32Array, region: DetectedRegion, pixelSizeNm: number, options: MeasureVesicleOptions = {},
@@ -96,7 +101,7 @@ export function measureVesicle(
   const footprintRadiusNm = Math.sqrt(projectedAreaNm2 / Math.PI);
   const perimeterNm = (Math.PI / 4) * cracks * pixelSizeNm;
 
-  // cap model
+  // footprint extrapolated to 0 nm
   let apparentBaseRadiusNm = footprintRadiusNm;
   if (thresholdNm > 0 && apexHeightNm > thresholdNm) {
     try {
@@ -105,18 +110,23 @@ export function measureVesicle(
       if (!(e instanceof AnalysisError)) throw e;
     }
   }
-  let baseRadiusNm = apparentBaseRadiusNm;
-  let tipCorrected = false;
-  let tipLargerThanFeature = false;
-  if (tipRadiusNm > 0 && apexHeightNm > 0) {
-    if (apparentBaseRadiusNm ** 2 >= 2 * apexHeightNm * tipRadiusNm) {
-      baseRadiusNm = tipCorrectedBaseRadius(apparentBaseRadiusNm, apexHeightNm, tipRadiusNm);
-      tipCorrected = true;
-    } else {
-      tipLargerThanFeature = true;
-    }
+
+  // cap model: sphere through the surface, then the tip taken off
+  let capFit: FitSphericalCapResult | null = null;
+  let cap: SphericalCapResult | null = null;
+  let capFlag: CapSizeFlag | null = 'cap_fit_failed';
+  try {
+    capFit = fitSphericalCap(levelled, labels, region, pixelSizeNm, { minHeightNm: thresholdNm });
+  } catch (e) {
+    if (!(e instanceof AnalysisError)) throw e;
   }
-  const cap = baseRadiusNm > 0 && apexHeightNm > 0 ? sphericalCap(baseRadiusNm, apexHeightNm) : null;
+  // a residual above a fifth of the height means a lumpy or flat-topped object that a cap describes poorly
+  // and the fitted surface must agree with the outline: a flat-topped object fits a vast, shallow sphere
+  const imagedBaseNm = capFit ? Math.sqrt(Math.max(0, capFit.apexHeightNm * (2 * capFit.sphereRadiusNm - capFit.apexHeightNm))) : 0;
+  const outlineAgrees = imagedBaseNm <= 1.5 * apparentBaseRadiusNm + 2 * pixelSizeNm && imagedBaseNm >= 0.5 * apparentBaseRadiusNm;
+  if (capFit && capFit.apexHeightNm > 0 && capFit.rmsResidualNm <= capFit.apexHeightNm / 5 && outlineAgrees) {
+    ({ cap, flag: capFlag } = tipCorrectedCap(capFit.sphereRadiusNm, capFit.apexHeightNm, tipRadiusNm));
+  }
 
   return {
     label,
@@ -126,13 +136,16 @@ export function measureVesicle(
     meanHeightNm: sumH / areaPx,
     areaPx,
     projectedAreaNm2,
-    equivalentDiameterNm: 2 * footprintRadiusNm,
+    footprintDiameterNm: 2 * footprintRadiusNm,
     volumeNm3: sumW * pixelAreaNm2,
     perimeterNm,
     circularity: (4 * Math.PI * projectedAreaNm2) / (perimeterNm * perimeterNm),
     apparentBaseRadiusNm,
     cap,
-    diagnostics: { apexFit: apex === null ? 'max_pixel' : 'quadratic', tipCorrected, tipLargerThanFeature },
+    capFlag,
+    capFit,
+    split: region.split,
+    diagnostics: { apexFit: apex === null ? 'max_pixel' : 'quadratic', tipCorrected: cap !== null && capFlag === null && tipRadiusNm > 0 },
   };
 }
 

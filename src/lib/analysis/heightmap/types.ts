@@ -135,6 +135,11 @@ export interface DetectedRegion {
   /** Highest pixel (nm) and its position (px). */
   readonly maxHeightNm: number;
   readonly peakPx: Point;
+  /**
+   * True when the watershed cut this region out of a connected foreground component that held other basins (a
+   * touching pair or cluster): its footprint ends at a saddle line, not at the substrate.
+   */
+  readonly split: boolean;
   /** Inclusive bounding box (px). */
   readonly xMin: number;
   readonly yMin: number;
@@ -207,6 +212,47 @@ export interface SphericalCapResult {
   readonly areaConservingDiameterNm: number;
 }
 
+/** Options of {@link fitSphericalCap}. */
+export interface FitSphericalCapOptions {
+  /** Only pixels higher than this are fitted (nm); pass the detection threshold. @default 0 */
+  minHeightNm?: number;
+  /** Gauss–Newton iterations at most. @default 30 */
+  maxIterations?: number;
+}
+
+/** Output of {@link fitSphericalCap}: the sphere through the imaged surface (tip broadening included). */
+export interface FitSphericalCapResult {
+  /** Sphere centre projected on the image (px, sub-pixel). */
+  readonly centrePx: Point;
+  /** Sphere radius of the imaged surface (nm); R_c + R for a cap imaged with a ball tip of radius R. */
+  readonly sphereRadiusNm: number;
+  /** Top of the fitted sphere (nm). */
+  readonly apexHeightNm: number;
+  /** RMS orthogonal distance of the fitted pixels to the sphere (nm). */
+  readonly rmsResidualNm: number;
+  readonly nbPixels: number;
+  readonly nbIterations: number;
+}
+
+/**
+ * Why a vesicle's spherical-cap sizes are missing or not tip-corrected:
+ * - `no_tip_radius`: no tip radius was given; the sizes are of the imaged (tip-broadened) cap, so base diameter,
+ *   volume and equivalent-sphere diameter are too large and the contact angle too small;
+ * - `tip_exceeds_image`: the imaged sphere is no wider than the tip itself (R_image ≤ R); no sizes;
+ * - `overhang`: after the correction the cap would be more than a hemisphere (θ > 90°), which a tip cannot image;
+ *   no sizes;
+ * - `cap_fit_failed`: too few pixels, or a surface that is not a cap (flat, concave, irregular); no sizes.
+ */
+export type CapSizeFlag = 'no_tip_radius' | 'tip_exceeds_image' | 'overhang' | 'cap_fit_failed';
+
+/** Output of {@link tipCorrectedCap}. */
+export interface TipCorrectedCapResult {
+  /** The corrected cap; null when the flag says the sizes are not possible. */
+  readonly cap: SphericalCapResult | null;
+  /** null when the cap is tip-corrected and sound. */
+  readonly flag: CapSizeFlag | null;
+}
+
 /** Options of {@link measureVesicle}. */
 export interface MeasureVesicleOptions {
   /** Tip apex radius for the broadening correction (nm); 0 = no correction. @default 0 */
@@ -229,8 +275,8 @@ export interface MeasureVesicleResult {
   readonly meanHeightNm: number;
   readonly areaPx: number;
   readonly projectedAreaNm2: number;
-  /** 2·√(A/π) (nm). */
-  readonly equivalentDiameterNm: number;
+  /** Threshold footprint diameter 2·√(A/π) (nm): tip-broadened and threshold-dependent. */
+  readonly footprintDiameterNm: number;
   /** Σ max(h, 0)·pixel area over the region (nm³). */
   readonly volumeNm3: number;
   /** (π/4)·(number of pixel edges on the region border)·pixel size (nm). */
@@ -239,14 +285,20 @@ export interface MeasureVesicleResult {
   readonly circularity: number;
   /** Footprint half-width at 0 nm before tip correction (nm). */
   readonly apparentBaseRadiusNm: number;
-  /** Spherical-cap model from apex height and (tip-corrected) base radius; null if the cap is degenerate. */
+  /**
+   * Spherical cap from a sphere fitted to the surface, corrected for the tip (R_c = R_image − R); uncorrected when
+   * no tip radius was given (`capFlag` 'no_tip_radius'); null when `capFlag` says the sizes are not possible.
+   */
   readonly cap: SphericalCapResult | null;
+  readonly capFlag: CapSizeFlag | null;
+  /** The sphere fitted to the imaged surface; null when the fit failed. */
+  readonly capFit: FitSphericalCapResult | null;
+  /** Cut from a touching pair or cluster by the watershed (see {@link DetectedRegion.split}). */
+  readonly split: boolean;
   readonly diagnostics: {
     readonly apexFit: 'quadratic' | 'max_pixel';
     /** True when tipRadiusNm > 0 and the correction was applied. */
     readonly tipCorrected: boolean;
-    /** True when 2hR ≥ w², so the correction is impossible and the cap uses the apparent radius. */
-    readonly tipLargerThanFeature: boolean;
   };
 }
 

@@ -1,6 +1,6 @@
 import type { FluorescenceSpot } from '../fluorescence/types';
 import type { FiducialPair, RegistrationModel, RegistrationWarning } from '../geometry';
-import type { LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
+import type { CapSizeFlag, LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
 import type { Affine, Point, Raster } from '../types';
 import type { CameraModel, ThresholdControlKind } from '../linking/types';
 
@@ -199,8 +199,8 @@ export interface VesicleRecord {
   readonly yFlPx: number;
   /** Apex height from the quadratic fit (nm). */
   readonly heightNm: number;
-  /** Footprint-equivalent diameter 2·√(A/π) (nm); includes tip broadening. */
-  readonly diameterNm: number;
+  /** Threshold footprint diameter 2·√(A/π) (nm): tip-broadened and threshold-dependent; not a size to publish. */
+  readonly footprintDiameterNm: number;
   /** Σ height × pixel area over the footprint (nm³). */
   readonly volumeNm3: number;
   /** Projected footprint area (nm²). */
@@ -209,8 +209,24 @@ export interface VesicleRecord {
   readonly circularity: number;
   /** Mean height over the footprint (nm). */
   readonly meanHeightNm: number;
-  /** Spherical-cap model (tip-corrected when a tip radius was given); null when the cap is degenerate. */
-  readonly cap: { readonly baseRadiusNm: number; readonly contactAngleDeg: number; readonly volumeEquivalentDiameterNm: number } | null;
+  /**
+   * Spherical cap from a sphere fitted to the surface, tip-corrected (R_c = R_image − R); see docs/vesicle-columns.md.
+   * Not corrected when `capFlag` is 'no_tip_radius'; null when the flag says the sizes are not possible.
+   */
+  readonly cap: {
+    readonly baseRadiusNm: number;
+    /** Cap height h: top of the fitted sphere (nm). */
+    readonly heightNm: number;
+    readonly contactAngleDeg: number;
+    /** πh(3a² + h²)/6 (nm³). */
+    readonly volumeNm3: number;
+    /** (6V/π)^(1/3) (nm). */
+    readonly volumeEquivalentDiameterNm: number;
+  } | null;
+  /** Why the cap sizes are missing or uncorrected; null when they are tip-corrected and sound. */
+  readonly capFlag: CapSizeFlag | null;
+  /** Cut from a touching pair or cluster by the watershed: its footprint ends at a saddle line. */
+  readonly split: boolean;
   /** True when the vesicle maps outside at least one channel's frame. */
   readonly outOfFrame: boolean;
   /** e.g. "CD9+ CD63- CD81?" (? = outside that frame). */

@@ -45,8 +45,8 @@ export const GET = handle(async (ctx) => {
       if (!rows.length) return c.close();
       lastId = rows[rows.length - 1].v.id;
       const text = writeCsv({ lineEnding: '\n', rows: rows.map(({ v, regVersion }) => vesicleCsvCells({
-        index: v.index, xAfmPx: v.xAfmPx, yAfmPx: v.yAfmPx, xFlPx: v.xFlPx ?? NaN, yFlPx: v.yFlPx ?? NaN, heightNm: v.heightNm, diameterNm: v.diameterNm,
-        volumeNm3: v.volumeNm3, areaNm2: v.areaNm2, circularity: v.circularity, meanHeightNm: v.meanHeightNm, cap: null, outOfFrame: v.outOfFrame, phenotype: v.phenotype,
+        index: v.index, xAfmPx: v.xAfmPx, yAfmPx: v.yAfmPx, xFlPx: v.xFlPx ?? NaN, yFlPx: v.yFlPx ?? NaN, heightNm: v.heightNm, footprintDiameterNm: v.diameterNm,
+        volumeNm3: v.volumeNm3, areaNm2: v.areaNm2, circularity: v.circularity, meanHeightNm: v.meanHeightNm, cap: null, capFlag: null, split: false, outOfFrame: v.outOfFrame, phenotype: v.phenotype,
         markers: Object.fromEntries(markers.map((m, i) => [m, {
           intensityCounts: v.markers[i]?.intensity ?? null, intensitySnr: v.markers[i]?.snr ?? null, amplitudeCounts: v.markers[i]?.amplitude ?? null,
           spotDistancePx: v.markers[i]?.spotDistancePx ?? null, positive: v.markers[i]?.intensity == null ? null : (v.markerBits & (1 << i)) !== 0,

@@ -40,8 +40,8 @@ describe('detectVesicles on synthetic scenes (tilt + line offsets + 0.15 nm nois
       // The highest pixel is the maximum of several noisy samples near the apex, so it reads high;
       // allow 4σ = 0.6 nm (common practice: extreme of ~10 Gaussian samples stays below +3σ).
       expect(Math.abs(v.maxHeightNm - t.heightNm)).toBeLessThan(0.6);
-      // Cap base radius from the threshold footprint (docs/references.md §2 relation a² + h² = 2hR_c): the footprint
-      // area is a pixel count, ± half a pixel along the rim (2πr·0.5 px of ~πr² px), ≤ 5% for r ≥ 6 px.
+      // Cap base radius from the sphere fitted to the surface (docs/references.md §2 relation a² + h² = 2hR_c; no
+      // tip here, so flagged no_tip_radius): ~300 px of 0.15 nm noise; 5% as for the earlier footprint estimate.
       expect(Math.abs(v.cap!.baseRadiusNm - t.baseRadiusNm) / t.baseRadiusNm).toBeLessThan(0.05);
     }
     expect(matched.size).toBe(truth.length); // one detection per vesicle
