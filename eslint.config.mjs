@@ -1,0 +1,54 @@
+// ESLint runs one kind of rule here: the imports that keep the layers apart (docs/architecture.md).
+// Types are the type checker's job; style is not checked. `npm test` runs `npx eslint` before the tests.
+import { defineConfig } from 'eslint/config';
+import tseslint from 'typescript-eslint';
+
+// Server-only layers under src/lib: they touch the database, the queue, the bucket, sessions, mail or the environment.
+const SERVER_LAYERS = 'db|jobs|storage|auth|mail|config';
+
+const ISLAND_MESSAGE =
+  'Islands run in the browser: they may not import the server layers (lib/db, lib/jobs, lib/storage, lib/auth, lib/mail, lib/config) '
+  + 'or server packages. Put a shared contract in src/lib/schemas and call the server through src/lib/api-client.';
+const CORE_MESSAGE =
+  'The analysis core (src/lib/analysis) is pure: no file system, network, database, object store, Astro or clock. '
+  + 'Take the data as arguments and let the caller (job, script, route) do the I/O.';
+
+export default defineConfig(
+  { ignores: ['dist/**', 'node_modules/**', '.astro/**', '.data/**', '.test-data/**', 'assembly/**'] },
+  {
+    files: ['src/**/*.{ts,tsx,mts,cts}'],
+    languageOptions: { parser: tseslint.parser },
+    // rules named in existing disable comments must exist, but no other rule is switched on
+    plugins: { '@typescript-eslint': tseslint.plugin },
+    linterOptions: { reportUnusedDisableDirectives: 'off' },
+  },
+  {
+    files: ['src/components/islands/**/*.{ts,tsx}'],
+    ignores: ['src/components/islands/**/__tests__/**'],
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          { regex: `(^|/)lib/(${SERVER_LAYERS})(\\.ts)?(/|$)`, message: ISLAND_MESSAGE },
+          { regex: '^(node:|pg$|pg-boss$|drizzle-orm|@aws-sdk/|nodemailer$|sharp$|astro:)', message: ISLAND_MESSAGE },
+        ],
+      }],
+    },
+  },
+  {
+    files: ['src/lib/analysis/**/*.ts'],
+    ignores: ['src/lib/analysis/**/__tests__/**'],
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          // Node's I/O modules (with or without node:), server packages, Astro
+          {
+            regex: '^(node:|(fs|path|os|child_process|worker_threads|cluster|http|https|http2|net|dgram|dns|tls|crypto|stream|readline|module|process|url|perf_hooks|timers)(/|$)|pg$|pg-boss$|drizzle-orm|@aws-sdk/|nodemailer$|sharp$|geotiff$|utif$|astro($|:|/))',
+            message: CORE_MESSAGE,
+          },
+          // the layers around the core, by alias or by a relative path that leaves src/lib/analysis
+          { regex: `(^@/lib/(?!analysis/)|^(\\.\\./)+(${SERVER_LAYERS}|imaging|http|uploads|reporting|registration|review|api-client|pages|components)(\\.ts)?(/|$))`, message: CORE_MESSAGE },
+        ],
+      }],
+    },
+  },
+);
