@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { describeRule, type MarkerPositivitySetting, type MarkerPositivityUsed } from '../../lib/jobs/positivitySettings';
+import { describeRule, type MarkerPositivitySetting, type MarkerPositivityUsed } from '../../lib/schemas/positivitySettings';
 import { POSITIVITY_K_MAX, POSITIVITY_K_MIN } from '../../lib/schemas/positivity';
 
 interface Row extends MarkerPositivitySetting { channelIndex: number }

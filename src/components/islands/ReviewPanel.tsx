@@ -1,5 +1,5 @@
 import { Fragment, useState } from 'react';
-import { describeRule, positivityUsed } from '../../lib/jobs/positivitySettings';
+import { describeRule, positivityUsed } from '../../lib/schemas/positivitySettings';
 
 interface Review { decision: string; comment: string; reviewedAt: string; reviewer: string | null }
 interface Props {
