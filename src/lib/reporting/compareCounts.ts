@@ -47,7 +47,7 @@ export function compareCounts(csvText: string, groupA: string, groupB: string): 
   if (groupA === groupB) throw new CountsTableError(null, `--group-a and --group-b are both "${groupA}"; name two different groups.`);
   let records: { record: string[]; info: { lines: number } }[];
   try {
-    records = parse(csvText, { comment: '#', skip_empty_lines: true, trim: true, info: true, relax_column_count: true, bom: true }) as typeof records;
+    records = parse(csvText, { comment: '#', skip_empty_lines: true, trim: true, info: true, relax_column_count: true, bom: true }) as unknown as typeof records;
   } catch (e) {
     const line = (e as { lines?: number }).lines ?? null;
     throw new CountsTableError(line, `the table could not be read as CSV${line ? ` at line ${line}` : ''}: ${(e as Error).message}`);
