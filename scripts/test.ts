@@ -1,7 +1,8 @@
 /**
  * `npm test`: throw-away PostgreSQL, s3rver and SMTP sink on other ports and folders, a production
- * build of the app served on 127.0.0.1, then the type check and every vitest project (unit,
- * integration, browser). Services stop even when tests fail; the exit code is the tests'.
+ * build of the app served on 127.0.0.1, then the type check, the import rule (ESLint) and every vitest
+ * project (unit, integration, browser). Services stop even when tests fail; the exit code is the tests'.
+ * `--project unit` alone runs only the unit tests: no services, type check, import rule or build.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { rmSync, existsSync } from 'node:fs';
@@ -78,6 +79,11 @@ async function main() {
       const tsc = spawnSync('npx', ['tsc', '--noEmit', '-p', 'tsconfig.check.json'], { stdio: 'inherit' });
       if (tsc.status !== 0) throw new Error('type check failed');
     }
+
+    // The import rule that keeps the layers apart (eslint.config.mjs, docs/architecture.md).
+    log('import rule (eslint src) ...');
+    const lint = spawnSync('npx', ['eslint', '--cache', '--cache-location', 'node_modules/.cache/eslint/', 'src'], { stdio: 'inherit' });
+    if (lint.status !== 0) throw new Error('the import rule failed (npx eslint src)');
 
     log('building the app ...');
     const b = spawnSync('npx', ['astro', 'build'], { stdio: ['ignore', 'ignore', 'inherit'] });
