@@ -69,7 +69,7 @@ for (const [kind, sceneOptions] of Object.entries(kinds)) {
     const t0 = performance.now();
     const result = analyzeField(
       { ...scene, fiducialPairs: registration === 'picks' ? scene.fiducialPicks : undefined },
-      { tipRadiusNm: scene.tip.radiusNm, cameraOffsetCounts: scene.camera.offsetCounts, seed },
+      { tipRadiusNm: scene.tip.radiusNm, cameraOffsetCounts: scene.camera.offsetCounts, seed, psfFromBeads: argValue('psf') !== 'optics' },
     );
     ms += performance.now() - t0;
     const matched = match(scene, result);
@@ -96,7 +96,7 @@ for (const [kind, sceneOptions] of Object.entries(kinds)) {
     nbTruth += inField.length;
     missed += inField.filter((v) => !seen.has(v.index)).length;
     nbBeadsInField += scene.beads.filter((b) => b.inAfmField).length;
-    beadsListed += ((result as { beads?: unknown[] }).beads ?? []).length;
+    beadsListed += result.beads.length;
   }
   console.log(`\n${kind} (${seeds.length} fields, ${(ms / seeds.length / 1000).toFixed(1)} s per field)`);
   console.log('marker  sens    spec    acc     (TP FN TN FP)');

@@ -22,3 +22,8 @@ export { residuals, type ResidualsResult } from './residuals';
 export { similarityToAffine } from './similarityToAffine';
 export { snapToNearest, type SnapToNearestResult } from './snapToNearest';
 export type { FiducialPair, RegistrationModel, Similarity } from './types';
+export { fitBeadSpots, type BeadSpotFit, type FitBeadSpotsOptions } from './fitBeadSpots';
+export {
+  estimateChannelRegistration, type ChannelRegistration, type EstimateChannelRegistrationOptions, type EstimateChannelRegistrationResult,
+  type RegistrationBead, type RegistrationChannel,
+} from './estimateChannelRegistration';

@@ -7,12 +7,15 @@ import {
 import { detectVesicles, levelHeightMap, measureVesicle, selectThreshold } from '../heightmap';
 import type { MeasureVesicleResult } from '../heightmap/types';
 import {
-  calibrateNullZ, chanceColocalisation, DEFAULT_Z_CRITICAL, describeMarkerCallRule, estimateCameraModel, linkVesicles,
+  calibrateNullZ, chanceColocalisation, DEFAULT_Z_CRITICAL, describeMarkerCallRule, estimateCameraModel,
   type EstimateCameraModelResult, type MarkerCallRule,
 } from '../linking';
 import type { Point, Raster } from '../types';
 import { mergeSpots } from './mergeSpots';
+import { linkPerChannel } from './linkPerChannel';
+import { mapPerChannel } from './mapPerChannel';
 import { refineFiducialPairs } from './refineFiducialPairs';
+import { separateBeads } from './separateBeads';
 import type {
   AnalyzeFieldInput,
   AnalyzeFieldOptions,
@@ -87,9 +90,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   const measureOptions = { tipRadiusNm, thresholdNm: Math.max(0, threshold.thresholdNm) };
   const measure = (r: (typeof detection.vesicles)[number]) =>
     measureVesicle(levelling.levelled, detection.labels, r, afmPixelNm, measureOptions);
-  const vesicles = detection.vesicles.map(measure);
+  const detectedVesicles = detection.vesicles.map(measure);
   onProgress('measure', 0.9);
-  const fiducialCandidates = detection.fiducialCandidates.map(measure);
+  const detectedTall = detection.fiducialCandidates.map(measure);
   onProgress('measure', 1);
 
   // spots
@@ -108,24 +111,42 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
 
   // register
   onProgress('register', 0);
-  const registration = savedRegistration
+  const commonRegistration = savedRegistration
     ? registerFromSaved(savedRegistration, { afmPixelNm, flPixelNm })
     : fiducialPairs
-    ? registerFromPicks(fiducialPairs, vesicles, fiducialCandidates, detection.labels, heightNm.width, spotsPerChannel, {
+    ? registerFromPicks(fiducialPairs, detectedVesicles, detectedTall, detection.labels, heightNm.width, spotsPerChannel, {
         afmPixelNm, flPixelNm, snapRadiusNm,
       })
-    : registerAutomatically(vesicles, fiducialCandidates, spotsPerChannel, {
+    : registerAutomatically(detectedVesicles, detectedTall, spotsPerChannel, {
         afmPixelNm, flPixelNm, mergeSpotsPx, pairingToleranceFlPx, seed,
       });
+  // beads are never vesicles (height, fiducial picks, light in every channel); each channel gets its own transform
+  const beadSplit = separateBeads({
+    objects: detectedVesicles, tallObjects: detectedTall, labels: detection.labels, width: heightNm.width,
+    picksAfmPx: (savedRegistration?.pairs ?? fiducialPairs ?? []).map((p) => p.afm), flFromAfm: commonRegistration.flFromAfm,
+    channels: channels.map((c) => ({ marker: c.marker, raster: c.raster, sigmaPx: sigmaPxByMarker[c.marker] })), afmPixelNm, flPixelNm,
+  }, { pickRadiusNm: snapRadiusNm });
+  const vesicles = beadSplit.vesicles;
+  const fiducialCandidates = beadSplit.beadObjects;
+  const registration: FieldRegistration = {
+    ...commonRegistration, channels: beadSplit.channels, warnings: [...commonRegistration.warnings, ...beadSplit.notes],
+  };
   const vesiclesFl = vesicles.map((v) => applyAffine(registration.flFromAfm, v.centroidPx));
   const fiducialsFl = fiducialCandidates.map((f) => applyAffine(registration.flFromAfm, f.centroidPx));
+  const vesiclesFlByMarker = mapPerChannel(vesicles, beadSplit.channels);
+  // from here on each channel's PSF width is the one measured on its beads, where there were enough
+  if (options.psfFromBeads ?? true) {
+    for (const [m, c] of Object.entries(beadSplit.channels)) if (c.psfSigmaPx !== null) sigmaPxByMarker[m] = c.psfSigmaPx;
+  }
+  const fiducialsFlByMarker = mapPerChannel(fiducialCandidates, beadSplit.channels);
   onProgress('register', 1);
 
   // link: per frame a camera model (given, else estimated), dim spots, the null of z at empty places that avoid every
   // detected spot, the rule (hand-set > control > camera noise); then one joint fit of vesicles, beads and spots
   onProgress('link', 0);
   const rastersPerChannel: Record<string, Raster> = {};
-  for (const c of channels) rastersPerChannel[c.marker] = c.raster;
+  // vesicles are measured in frames without the beads' light (their halo is not the fitted PSF)
+  for (const c of channels) rastersPerChannel[c.marker] = beadSplit.rastersWithoutBeads[c.marker];
   const cameraByMarker: Record<string, EstimateCameraModelResult> = {};
   const dimSpotsByMarker: Record<string, Point[]> = {};
   const ruleByMarker: Record<string, MarkerCallRule> = {};
@@ -152,8 +173,8 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       : { rule: 'camera_noise', zCritical, nullCalibration };
     onProgress('link', (0.4 * (i + 1)) / channels.length);
   });
-  const links = linkVesicles(vesiclesFl, spotsByMarker, rastersPerChannel, {
-    sigmaPxByMarker, ruleByMarker, positivityMeasure: 'jointAmplitude', otherSourcesPx: fiducialsFl,
+  const links = linkPerChannel(vesiclesFlByMarker, spotsByMarker, rastersPerChannel, {
+    sigmaPxByMarker, ruleByMarker, positivityMeasure: 'jointAmplitude', otherSourcesPx: fiducialsFl, otherSourcesPxByMarker: fiducialsFlByMarker,
     cameraByMarker: Object.fromEntries(markers.map((m) => [m, cameraByMarker[m].camera])),
     sourceSpotsByMarker: Object.fromEntries(markers.map((m) => [m, [...dimSpotsByMarker[m], ...spotsByMarker[m]]])),
   });
@@ -161,9 +182,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   // chance colocalisation: the measured vesicle set moved by a few microns, called like vesicles
   const chanceByMarker: Record<string, ReturnType<typeof chanceColocalisation>> = {};
   for (const m of markers) {
-    const measured = vesiclesFl.filter((_, i) => links.vesicles[i].channels[m].positive !== null);
+    const measured = vesiclesFlByMarker[m].filter((_, i) => links.vesicles[i].channels[m].positive !== null);
     chanceByMarker[m] = chanceColocalisation(rastersPerChannel[m], measured, [...dimSpotsByMarker[m], ...spotsByMarker[m]], {
-      sigmaPx: sigmaPxByMarker[m], camera: cameraByMarker[m].camera, rule: ruleByMarker[m], fixedSourcesPx: fiducialsFl,
+      sigmaPx: sigmaPxByMarker[m], camera: cameraByMarker[m].camera, rule: ruleByMarker[m], fixedSourcesPx: fiducialsFlByMarker[m],
       minShiftPx: (1000 * chanceShifts.minUm) / flPixelNm, maxShiftPx: (1000 * chanceShifts.maxUm) / flPixelNm, nbShifts: chanceShifts.nbShifts, seed,
     });
   }
@@ -281,6 +302,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     fiducialCandidates,
     spotsByMarker,
     fiducialsFl,
+    beads: beadSplit.beads,
   };
 }
 
@@ -319,7 +341,7 @@ function ruleSummary(rule: MarkerCallRule, nullZ: ReturnType<typeof calibrateNul
 /** The registration before the per-channel refinement from the beads. */
 type CommonRegistration = Omit<FieldRegistration, 'channels'>;
 
-
+/** The unit of joint amplitudes and their thresholds, in words for people. */
 const AMPLITUDE_UNIT = 'counts (total counts of one vesicle\'s fitted PSF, integrated over the plane)';
 
 function validateInput(input: AnalyzeFieldInput): void {
@@ -381,7 +403,7 @@ function nearAny(points: readonly Point[], radiusPx: number): (p: Point) => bool
  * A saved registration used as is: the vesicles are mapped with its transform, whatever a refit of its pairs would
  * give; the pairs only provide the residuals (FRE) and, fitted with the saved model, the TRE estimates and warnings.
  */
-function registerFromSaved(saved: SavedRegistration, o: { afmPixelNm: number; flPixelNm: number }): FieldRegistration {
+function registerFromSaved(saved: SavedRegistration, o: { afmPixelNm: number; flPixelNm: number }): CommonRegistration {
   const { flFromAfm, model, pairs } = saved;
   if (flFromAfm.length !== 6 || !flFromAfm.every(Number.isFinite)) {
     throw new AnalysisError('invalid_saved_transform', 'The saved registration has no valid transform (6 finite numbers); save the registration again.');
@@ -414,7 +436,7 @@ function registerFromPicks(
   width: number,
   spotsPerChannel: readonly (readonly Point[])[],
   o: { afmPixelNm: number; flPixelNm: number; snapRadiusNm: number },
-): FieldRegistration {
+): CommonRegistration {
   const centroidByLabel = new Map<number, Point>();
   for (const r of [...fiducialCandidates, ...vesicles]) centroidByLabel.set(r.label, r.centroidPx);
   const refinement = refineFiducialPairs(picks, {
@@ -430,7 +452,7 @@ function registerAutomatically(
   fiducialCandidates: readonly MeasureVesicleResult[],
   spotsPerChannel: readonly (readonly Point[])[],
   o: { afmPixelNm: number; flPixelNm: number; mergeSpotsPx: number; pairingToleranceFlPx: number; seed: number },
-): FieldRegistration {
+): CommonRegistration {
   // beads and vesicles in AFM against every spot (merged across channels) in fluorescence
   const afm = [...fiducialCandidates, ...vesicles].map((r) => r.centroidPx);
   const fl = mergeSpots(spotsPerChannel, o.mergeSpotsPx);
@@ -445,7 +467,7 @@ function describe(
   pairs: FiducialPair[],
   refinement: FieldRegistration['refinement'],
   o: { afmPixelNm: number; flPixelNm: number },
-): FieldRegistration {
+): CommonRegistration {
   const evaluation = evaluateRegistration(pairs, { afmPixelNm: o.afmPixelNm, flPixelNm: o.flPixelNm });
   return {
     source,

@@ -1,5 +1,5 @@
 import type { FluorescenceSpot } from '../fluorescence/types';
-import type { FiducialPair, RegistrationModel, RegistrationWarning } from '../geometry';
+import type { ChannelRegistration, FiducialPair, RegistrationModel, RegistrationWarning } from '../geometry';
 import type { CapSizeFlag, LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
 import type { Affine, Point, Raster } from '../types';
 import type { CameraModel, ThresholdControlKind } from '../linking/types';
@@ -89,6 +89,11 @@ export interface AnalyzeFieldOptions {
   dimSpotThresholdK?: number;
   /** Chance colocalisation: shift lengths of the vesicle set (µm) and number of seeded shifts. @default { minUm: 2, maxUm: 4, nbShifts: 5 } */
   chanceShifts?: { readonly minUm: number; readonly maxUm: number; readonly nbShifts: number };
+  /**
+   * Measure vesicles with each channel's PSF width as measured on the beads (bead size and pixel width removed),
+   * where the channel had enough beads; false keeps 0.21λ/NA for every channel. @default true
+   */
+  psfFromBeads?: boolean;
   /** A fiducial pick snaps to a candidate at most this far away in either image (nm of sample); 0 keeps picks as given. @default 300 */
   snapRadiusNm?: number;
   /** Spots of different channels closer than this are one candidate for automatic pairing (fluorescence px). @default 1.5 */
@@ -138,7 +143,12 @@ export interface FieldRegistration {
   readonly leaveOneOutTreRmsNm: number | null;
   /** Predicted RMS target error at the fiducial centroid (nm); null without an error estimate. */
   readonly predictedTreAtCentroidNm: number | null;
-  readonly warnings: readonly RegistrationWarning[];
+  readonly warnings: readonly (RegistrationWarning | FieldRegistrationNote)[];
+  /**
+   * Each channel's own transform: the common flFromAfm refined by a translation (chromatic shift) measured on the
+   * beads, and the PSF width measured on them; estimated at link time from the beads, also for a saved registration.
+   */
+  readonly channels: Readonly<Record<string, ChannelRegistration>>;
   /** One entry per given pick; null for automatic pairing and for a saved registration. */
   readonly refinement: readonly FiducialRefinement[] | null;
 }
@@ -333,4 +343,43 @@ export interface AnalyzeFieldResult {
   readonly spotsByMarker: Readonly<Record<string, readonly FluorescenceSpot[]>>;
   /** Fiducial candidates mapped into fluorescence pixels. */
   readonly fiducialsFl: readonly Point[];
+  /** Beads (never vesicles): shown, exported apart, used for registration; not in records, counts or phenotypes. */
+  readonly beads: readonly BeadRecord[];
+}
+
+/** Why an object is a bead: taller than the field's vesicles, bright in every channel, or under a fiducial pick. */
+export type BeadReason = 'height' | 'multicolour' | 'fiducial_pick';
+
+/** One bead of the field. */
+export interface BeadRecord {
+  /** 0-based within the field's beads. */
+  readonly index: number;
+  /** Height-weighted centroid (AFM px). */
+  readonly xAfmPx: number;
+  readonly yAfmPx: number;
+  /** Apex height (nm): a bead's diameter. */
+  readonly heightNm: number;
+  /** Footprint-equivalent diameter (nm), tip-broadened. */
+  readonly footprintDiameterNm: number;
+  /** 4πA/P² (dimensionless). */
+  readonly circularity: number;
+  /** The first of `reasons` in the order height, multicolour, fiducial_pick. */
+  readonly reason: BeadReason;
+  readonly reasons: readonly BeadReason[];
+  /** Index of the fiducial pick (or saved pair) on it, else null. */
+  readonly pickIndex: number | null;
+  /** Centre mapped into each channel by that channel's transform (px). */
+  readonly flPxByMarker: Readonly<Record<string, Point>>;
+  /** Integrated counts of its fitted image in each channel (counts); null where not fitted. */
+  readonly integratedCountsByMarker: Readonly<Record<string, number | null>>;
+}
+
+/** A registration note of the bead and channel steps, for people. */
+export interface FieldRegistrationNote {
+  /**
+   * 'fiducial_on_vesicle': a pick sits on an object that looks like a vesicle; 'fiducial_on_background': no object
+   * under a pick; 'channel_common_transform': too few beads in a channel, which keeps the common transform.
+   */
+  readonly code: 'fiducial_on_vesicle' | 'fiducial_on_background' | 'channel_common_transform';
+  readonly message: string;
 }

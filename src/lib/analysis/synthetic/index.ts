@@ -2,7 +2,6 @@ export { createRng } from './random';
 export type { Rng } from './random';
 export { makeHeightScene } from './makeHeightScene';
 export { dilateWithBallTip } from './dilateWithBallTip';
-export { dilateWithBallTip } from './dilateWithBallTip';
 export type * from './types';
 export { makeCorrelativeScene } from './makeCorrelativeScene';
 export { tipImagedProfile } from './tipImagedProfile';

@@ -1,0 +1,172 @@
+import { applyAffine } from '../geometry/applyAffine';
+import { estimateChannelRegistration, type ChannelRegistration, type EstimateChannelRegistrationResult } from '../geometry/estimateChannelRegistration';
+import { fitBeadSpots } from '../geometry/fitBeadSpots';
+import type { MeasureVesicleResult } from '../heightmap/types';
+import type { Affine, Point, Raster } from '../types';
+import { classifyBeads, type ClassifiedBead } from './classifyBeads';
+import { subtractBeadImages } from './subtractBeadImages';
+import type { BeadReason, BeadRecord, FieldRegistrationNote } from './types';
+
+/** Inputs of {@link separateBeads}. */
+export interface SeparateBeadsInput {
+  /** Measured objects below the detection's fixed bead cut-off, and the tall ones above it. */
+  readonly objects: readonly MeasureVesicleResult[];
+  readonly tallObjects: readonly MeasureVesicleResult[];
+  readonly labels: Int32Array;
+  readonly width: number;
+  /** AFM positions of the fiducial picks or saved pairs (AFM px). */
+  readonly picksAfmPx: readonly Point[];
+  /** The common AFM px → fluorescence px transform. */
+  readonly flFromAfm: Affine;
+  /** Raw frames and the PSF sigma the optics predict (px), in channel order. */
+  readonly channels: readonly { readonly marker: string; readonly raster: Raster; readonly sigmaPx: number }[];
+  readonly afmPixelNm: number;
+  readonly flPixelNm: number;
+}
+
+/** Options of {@link separateBeads}. */
+export interface SeparateBeadsOptions {
+  /** A pick on background takes the nearest object within this distance (nm). @default 300 */
+  pickRadiusNm?: number;
+  /** Bright in every channel: at least this fraction of the known beads' median integrated counts in each. @default 0.25 */
+  multicolourFraction?: number;
+  /** Multicolour candidates must be at least this round (4πA/P²). @default 0.7 */
+  minCircularity?: number;
+  /** Fewer beads in a channel: it keeps the common transform. @default 3 */
+  minBeadsPerChannel?: number;
+}
+
+/** Result of {@link separateBeads}. */
+export interface SeparateBeadsResult {
+  readonly vesicles: readonly MeasureVesicleResult[];
+  readonly beads: readonly BeadRecord[];
+  /** The bead objects, in the order of `beads`. */
+  readonly beadObjects: readonly MeasureVesicleResult[];
+  readonly channels: Readonly<Record<string, ChannelRegistration>>;
+  /** Height fence used (nm), or null with too few objects. */
+  readonly heightFenceNm: number | null;
+  readonly notes: readonly FieldRegistrationNote[];
+  /** Each frame with the beads' light taken out ({@link subtractBeadImages}), for measuring vesicles. */
+  readonly rastersWithoutBeads: Readonly<Record<string, Raster>>;
+}
+
+/**
+ * Beads are never vesicles. After the common registration: classify beads by height and fiducial picks
+ * ({@link classifyBeads}); refine the transform per channel and measure each channel's PSF on them
+ * ({@link estimateChannelRegistration}); then test the remaining tall, round objects and every picked object for
+ * light in every channel: an object as bright as the known beads in every channel is a multicolour bead. A pick on
+ * an object that is neither taller than the vesicles nor bright in every channel is still taken out of the vesicles,
+ * with a note that it looks like a vesicle.
+ *
+ * @param input - see {@link SeparateBeadsInput}
+ * @param options - see {@link SeparateBeadsOptions}
+ * @returns vesicles, bead records with their reasons, per-channel registration and notes
+ */
+export function separateBeads(input: SeparateBeadsInput, options: SeparateBeadsOptions = {}): SeparateBeadsResult {
+  const { pickRadiusNm = 300, multicolourFraction = 0.25, minCircularity = 0.7, minBeadsPerChannel = 3 } = options;
+  const { objects, tallObjects, labels, width, picksAfmPx, flFromAfm, channels, afmPixelNm, flPixelNm } = input;
+  const split = classifyBeads(objects, tallObjects, { labels, width, afmPixelNm, picksAfmPx, pickRadiusNm });
+  const register = (beads: readonly ClassifiedBead[]): EstimateChannelRegistrationResult =>
+    estimateChannelRegistration(flFromAfm, beads.map((b) => ({ afmPx: b.object.centroidPx, diameterNm: b.object.apexHeightNm })), channels, {
+      flPixelNm, minBeads: minBeadsPerChannel,
+    });
+  let beads: ClassifiedBead[] = [...split.beads];
+  let reg = register(beads);
+
+  // multicolour: as bright as the known (tall) beads in every channel, measured where each channel's transform puts it
+  const reference: Record<string, number | null> = {};
+  for (const c of channels) {
+    const counts = reg.fitsByMarker[c.marker]
+      .map((f, i) => (f && beads[i].reasons.includes('height') ? f.integratedCounts : null))
+      .filter((v): v is number => v !== null);
+    reference[c.marker] = counts.length ? median(counts) : null;
+  }
+  const candidates = [
+    ...split.vesicles.filter((o) => split.innerFenceNm !== null && o.apexHeightNm > split.innerFenceNm && o.circularity >= minCircularity),
+    ...beads.filter((b) => b.pickIndex !== null && !b.reasons.includes('height')).map((b) => b.object),
+  ];
+  const countsOf = new Map<MeasureVesicleResult, Record<string, number | null>>();
+  if (candidates.length && channels.every((c) => reference[c.marker] !== null)) {
+    for (const c of channels) {
+      const t = reg.channels[c.marker].flFromAfm;
+      const fits = fitBeadSpots(c.raster, candidates.map((o) => applyAffine(t, o.centroidPx)), { sigmaPx: c.sigmaPx, maxShiftPx: 1.5 });
+      candidates.forEach((o, i) => {
+        const rec = countsOf.get(o) ?? {};
+        rec[c.marker] = fits[i]?.integratedCounts ?? null;
+        countsOf.set(o, rec);
+      });
+    }
+  }
+  const isMulticolour = (o: MeasureVesicleResult): boolean => {
+    const rec = countsOf.get(o);
+    return !!rec && channels.every((c) => (rec[c.marker] ?? 0) >= multicolourFraction * (reference[c.marker] ?? Infinity));
+  };
+  const newBeads = candidates.filter((o) => !beads.some((b) => b.object === o) && isMulticolour(o));
+  beads = beads.map((b) => (isMulticolour(b.object) && !b.reasons.includes('multicolour') ? { ...b, reasons: [...b.reasons, 'multicolour' as BeadReason] } : b));
+  beads.push(...newBeads.map((o) => ({ object: o, reasons: ['multicolour' as BeadReason], pickIndex: null })));
+  if (newBeads.length) reg = register(beads);
+
+  const notes: FieldRegistrationNote[] = [];
+  for (const b of beads) {
+    if (b.pickIndex === null || b.reasons.includes('height') || b.reasons.includes('multicolour')) continue;
+    notes.push({
+      code: 'fiducial_on_vesicle',
+      message: `Fiducial pair ${b.pickIndex + 1} sits on an object ${b.object.apexHeightNm.toFixed(0)} nm high that is not taller than the ` +
+        `vesicles${split.heightFenceNm === null ? '' : ` (bead height from ${split.heightFenceNm.toFixed(0)} nm)`} nor bright in every channel: ` +
+        'a vesicle rather than a bead. It was left out of the vesicles; move the pick onto a bead.',
+    });
+  }
+  for (const w of reg.warnings) notes.push({ code: 'channel_common_transform', message: w });
+  for (const k of split.unmatchedPicks) {
+    notes.push({ code: 'fiducial_on_background', message: `Fiducial pair ${k + 1} has no object under it in the AFM image within ${pickRadiusNm} nm; check the pick.` });
+  }
+
+  const rastersWithoutBeads: Record<string, Raster> = {};
+  for (const c of channels) {
+    const images = reg.fitsByMarker[c.marker].filter((f): f is NonNullable<typeof f> => f !== null && f.peakSnr >= MIN_SUBTRACT_SNR);
+    rastersWithoutBeads[c.marker] = images.length ? subtractBeadImages(c.raster, images).raster : c.raster;
+  }
+  const beadSet = new Set(beads.map((b) => b.object));
+  const records: BeadRecord[] = beads.map((b, index) => {
+    const flPxByMarker: Record<string, Point> = {};
+    const integratedCountsByMarker: Record<string, number | null> = {};
+    const i = reg.fitsByMarker[channels[0]?.marker]?.length ? beads.indexOf(b) : -1;
+    for (const c of channels) {
+      flPxByMarker[c.marker] = applyAffine(reg.channels[c.marker].flFromAfm, b.object.centroidPx);
+      integratedCountsByMarker[c.marker] = i >= 0 ? reg.fitsByMarker[c.marker][i]?.integratedCounts ?? null : null;
+    }
+    const order: BeadReason[] = ['height', 'multicolour', 'fiducial_pick'];
+    const reasons = order.filter((r) => b.reasons.includes(r));
+    return {
+      index,
+      xAfmPx: b.object.centroidPx.x,
+      yAfmPx: b.object.centroidPx.y,
+      heightNm: b.object.apexHeightNm,
+      footprintDiameterNm: b.object.footprintDiameterNm,
+      circularity: b.object.circularity,
+      reason: reasons[0],
+      reasons,
+      pickIndex: b.pickIndex,
+      flPxByMarker,
+      integratedCountsByMarker,
+    };
+  });
+  return {
+    vesicles: objects.filter((o) => !beadSet.has(o)),
+    beads: records,
+    beadObjects: beads.map((b) => b.object),
+    channels: reg.channels,
+    heightFenceNm: split.heightFenceNm,
+    notes,
+    rastersWithoutBeads,
+  };
+}
+
+/** Bead images fainter than this (peak over background SD) stay in the frame: too faint to measure or to matter. */
+const MIN_SUBTRACT_SNR = 10;
+
+function median(values: readonly number[]): number {
+  const s = [...values].sort((p, q) => p - q);
+  const n = s.length;
+  return n % 2 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+}
