@@ -88,7 +88,7 @@ describe('npm run analyze (scripts/analyze.ts)', () => {
     expect(lines[1]).toBe(
       'vesicle,x_afm_px,y_afm_px,x_fl_px,y_fl_px,height_nm,cap_base_diameter_nm,cap_height_nm,cap_contact_angle_deg,cap_volume_nm3,' +
         'cap_sphere_diameter_nm,cap_flag,split,footprint_diameter_nm,footprint_area_nm2,footprint_volume_nm3,circularity,' +
-        ['CD9', 'CD63', 'CD81'].map((m) => `${m}_amplitude_counts,${m}_amplitude_se_counts,${m}_z,${m}_q,${m}_call`).join(',') + ',out_of_frame,phenotype',
+        ['CD9', 'CD63', 'CD81'].map((m) => `${m}_amplitude_counts,${m}_amplitude_se_counts,${m}_z,${m}_z_calibrated,${m}_q,${m}_call`).join(',') + ',out_of_frame,phenotype',
     );
     const rows = lines.slice(2).map((l) => l.split(','));
     // the test scene places 24 vesicles; detection finds ≥ 95 % of them with ≥ 95 % precision (core test)
@@ -96,10 +96,10 @@ describe('npm run analyze (scripts/analyze.ts)', () => {
     expect(rows.length).toBeGreaterThanOrEqual(Math.floor(0.95 * truth));
     expect(rows.length).toBeLessThanOrEqual(Math.ceil(truth / 0.95));
     for (const r of rows) {
-      expect(r).toHaveLength(34); // 17 per vesicle + 3 markers × 5 (amplitude, SE, z, q, call) + out_of_frame + phenotype
+      expect(r).toHaveLength(37); // 17 per vesicle + 3 markers × 6 (amplitude, SE, z, calibrated z, q, call) + out_of_frame + phenotype
       expect(Number(r[5])).toBeGreaterThan(2); // heights of 8–30 nm were drawn
       expect(r[11]).toBe('no_tip_radius'); // no --tip-radius: the cap is the imaged one, and says so
-      for (const call of [21, 26, 31]) expect(['positive', 'negative', 'not_measured']).toContain(r[call]);
+      for (const call of [22, 28, 34]) expect(['positive', 'negative', 'not_measured']).toContain(r[call]);
     }
     const summary = JSON.parse(await readFile(f('summary.json'), 'utf8'));
     expect(summary.caution).toMatch(/research use only/i);
@@ -108,7 +108,7 @@ describe('npm run analyze (scripts/analyze.ts)', () => {
     expect(summary.flPixelNm).toBeCloseTo(65, 6);
     expect(summary.registration.source).toBe('fiducials');
     expect(summary.registration.mirrored).toBe(true);
-    expect(summary.nbOutOfFrame).toBe(rows.filter((r) => r[32] === '1').length);
+    expect(summary.nbOutOfFrame).toBe(rows.filter((r) => r[35] === '1').length);
     expect(summary.parameters.emissionSource).toEqual(['flag', 'flag', 'flag']);
     for (const stage of ['level', 'detect', 'measure', 'spots', 'register', 'link', 'summarise']) {
       expect(run.stderr).toMatch(new RegExp(`\\[analyze\\] ${stage}\\s+\\d+ ms`));

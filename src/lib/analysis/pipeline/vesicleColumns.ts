@@ -13,21 +13,15 @@ export interface VesicleColumn {
   readonly cell: (r: VesicleRecord) => VesicleCell;
 }
 
-/** The call statistics of a marker, read where the record carries them (records rebuilt from storage may not). */
-type CallStatistics = VesicleMarkerCall & {
-  readonly amplitudeStdErrCounts?: number | null;
-  readonly z?: number | null;
-  readonly qValue?: number | null;
-};
-
 const f = (value: number | null | undefined, digits: number): VesicleCell =>
   value === null || value === undefined || !Number.isFinite(value) ? null : { value, digits };
 
 /**
  * The one per-vesicle column set of every export (command line, lab and collaborator exports), documented in
  * docs/vesicle-columns.md: index, positions, apex height, the tip-corrected spherical-cap sizes with their flag, the
- * split flag, the threshold footprint (named as such), then per marker the joint amplitude, its standard error, z,
- * the Benjamini–Hochberg q and the call (positive, negative, not_measured), then out_of_frame and phenotype.
+ * split flag, the threshold footprint (named as such), then per marker the joint amplitude, its standard error, z
+ * (amplitude / SE), z calibrated by the frame's null, the Benjamini–Hochberg q and the call (positive, negative,
+ * not_measured), then out_of_frame and phenotype.
  * Numbers carry fixed decimals (q three significant digits), so equal results give byte-identical files; write
  * the cells with the product's CSV writer (lib/csv writeCsv), which escapes formula-like text such as a marker
  * name that starts with "+".
@@ -61,15 +55,17 @@ export function vesicleColumns(markers: readonly string[]): readonly VesicleColu
     { name: 'circularity', unit: '', cell: (r) => f(r.circularity, 3) },
   ];
   for (const m of markers) {
-    const call = (r: VesicleRecord): CallStatistics => {
+    // the call statistics are optional in records rebuilt from storage that did not keep them: empty cells then
+    const call = (r: VesicleRecord): VesicleMarkerCall => {
       const c = r.markers[m];
       if (!c) throw new RangeError(`record ${r.index} has no call for marker ${m}`);
       return c;
     };
     columns.push(
       { name: `${m}_amplitude_counts`, unit: 'counts', cell: (r) => f(call(r).amplitudeCounts, 1) },
-      { name: `${m}_amplitude_se_counts`, unit: 'counts', cell: (r) => f(call(r).amplitudeStdErrCounts, 1) },
+      { name: `${m}_amplitude_se_counts`, unit: 'counts', cell: (r) => f(call(r).amplitudeSeCounts, 1) },
       { name: `${m}_z`, unit: '', cell: (r) => f(call(r).z, 2) },
+      { name: `${m}_z_calibrated`, unit: '', cell: (r) => f(call(r).zCalibrated, 2) },
       { name: `${m}_q`, unit: '', cell: (r) => significant(call(r).qValue, 3) },
       { name: `${m}_call`, unit: '', cell: (r) => callWord(call(r).positive) },
     );

@@ -8,8 +8,8 @@ const record = (over: Partial<VesicleRecord> = {}): VesicleRecord => ({
   cap: { baseRadiusNm: 50, heightNm: 20, contactAngleDeg: 43.6028, volumeNm3: 82728.61, volumeEquivalentDiameterNm: 54.0611 },
   capFlag: null, split: false, outOfFrame: false, phenotype: 'CD9+ CD63-',
   markers: {
-    CD9: { intensityCounts: 512.25, intensitySnr: 9, amplitudeCounts: 600, amplitudeStdErrCounts: 48.21, z: 12.446, qValue: 3.4e-12, spotDistancePx: 0.2, positive: true } as VesicleRecord['markers'][string],
-    CD63: { intensityCounts: -3.04, intensitySnr: -0.1, amplitudeCounts: 0, amplitudeStdErrCounts: 50, z: -0.004, qValue: 0.61234, spotDistancePx: null, positive: false } as VesicleRecord['markers'][string],
+    CD9: { intensityCounts: 512.25, intensitySnr: 9, amplitudeCounts: 600, amplitudeSeCounts: 48.21, z: 12.446, zCalibrated: 11.9, qValue: 3.4e-12, spotDistancePx: 0.2, positive: true },
+    CD63: { intensityCounts: -3.04, intensitySnr: -0.1, amplitudeCounts: 0, amplitudeSeCounts: 50, z: -0.004, zCalibrated: -0.3, qValue: 0.61234, spotDistancePx: null, positive: false },
   },
   ...over,
 });
@@ -30,12 +30,13 @@ describe('vesicle CSV columns', () => {
     expect(lines[0]).toBe(
       'vesicle,x_afm_px,y_afm_px,x_fl_px,y_fl_px,height_nm,cap_base_diameter_nm,cap_height_nm,cap_contact_angle_deg,cap_volume_nm3,' +
         'cap_sphere_diameter_nm,cap_flag,split,footprint_diameter_nm,footprint_area_nm2,footprint_volume_nm3,circularity,' +
-        'CD9_amplitude_counts,CD9_amplitude_se_counts,CD9_z,CD9_q,CD9_call,CD63_amplitude_counts,CD63_amplitude_se_counts,CD63_z,CD63_q,CD63_call,' +
+        'CD9_amplitude_counts,CD9_amplitude_se_counts,CD9_z,CD9_z_calibrated,CD9_q,CD9_call,' +
+        'CD63_amplitude_counts,CD63_amplitude_se_counts,CD63_z,CD63_z_calibrated,CD63_q,CD63_call,' +
         'out_of_frame,phenotype',
     );
     // −0.0001 and −0.004 round to zero and are written without a minus sign; q keeps three significant digits
-    expect(lines[1]).toBe('0,10.123,20.000,1.500,0.000,12.35,100.00,20.00,43.60,82729,54.06,,0,80.50,5089,41235,0.988,600.0,48.2,12.45,3.40e-12,positive,0.0,50.0,0.00,0.612,negative,0,CD9+ CD63-');
-    expect(lines[2]).toBe('1,10.123,20.000,1.500,0.000,12.35,,,,,,overhang,1,80.50,5089,41235,0.988,,,,,not_measured,,,,,not_measured,1,CD9? CD63?');
+    expect(lines[1]).toBe('0,10.123,20.000,1.500,0.000,12.35,100.00,20.00,43.60,82729,54.06,,0,80.50,5089,41235,0.988,600.0,48.2,12.45,11.90,3.40e-12,positive,0.0,50.0,0.00,-0.30,0.612,negative,0,CD9+ CD63-');
+    expect(lines[2]).toBe('1,10.123,20.000,1.500,0.000,12.35,,,,,,overhang,1,80.50,5089,41235,0.988,,,,,,not_measured,,,,,,not_measured,1,CD9? CD63?');
     expect(lines[3]).toBe('');
     expect(lines).toHaveLength(4);
   });
