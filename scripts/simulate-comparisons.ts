@@ -1,9 +1,9 @@
 /**
  * Simulated cohorts for the group comparison (not a test; prints figures for docs/statistics.md):
- *   npx tsx scripts/simulate-comparisons.ts [--studies 2000] [--seed 12]
+ *   npx tsx scripts/simulate-comparisons.ts [--studies 2000] [--seed 12] [--field-sd 0.2]
  * Each simulated study has 3–6 donors per group, 2–3 fields per donor and about 300 vesicles per field
  * (Poisson). A donor's marker-positive fraction is expit(μ + donor effect + field effect) with between-donor
- * SD 0.5 and between-field SD 0.2 on the logit scale, μ = logit(0.30). Under "null" both groups share μ;
+ * SD 0.5 and between-field SD 0.2 (--field-sd) on the logit scale, μ = logit(0.30). Under "null" both groups share μ;
  * under "difference" group A's μ is higher by 1.0 (0.30 → 0.54) or 0.6 (0.30 → 0.44) on the logit scale.
  * Four tests are run on every study:
  *   - the product's comparison (compareGroups, the module the web page, its CSV and npm run compare use),
@@ -25,7 +25,7 @@ const STUDIES = arg('studies', 2000);
 const SEED = arg('seed', 12);
 const BASE_LOGIT = Math.log(0.3 / 0.7);
 const DONOR_SD = 0.5;
-const FIELD_SD = 0.2;
+const FIELD_SD = arg('field-sd', 0.2);
 const VESICLES_PER_FIELD = 300;
 const ALPHA = 0.05;
 
