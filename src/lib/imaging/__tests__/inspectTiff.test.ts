@@ -124,6 +124,40 @@ describe('inspectTiff: pixel size in nm', () => {
   });
 });
 
+describe('inspectTiff: emission wavelength per OME-XML channel', () => {
+  const withChannels = (channels: string) => `<OME xmlns="http://www.openmicroscopy.org/Schemas/OME/2016-06"><Image ID="Image:0">` +
+    `<Pixels ID="Pixels:0" DimensionOrder="XYCZT" Type="uint16" SizeX="3" SizeY="2" SizeZ="1" SizeC="4" SizeT="1">${channels}` +
+    `<TiffData IFD="0"/></Pixels></Image></OME>`;
+
+  it('reads Channel@EmissionWavelength, unit attribute default nm, other units converted (OME schema 2016-06)', () => {
+    const meta = inspectTiff(small({
+      imageDescription: withChannels(
+        '<Channel ID="Channel:0:0" EmissionWavelength="520"/>' +
+          '<Channel ID="Channel:0:1" EmissionWavelength="0.59" EmissionWavelengthUnit="&#181;m"></Channel>' +
+          '<Channel ID="Channel:0:2" Name="no emission"/>' +
+          '<Channel ID="Channel:0:3" EmissionWavelength="6700" EmissionWavelengthUnit="Å"/>',
+      ),
+    }));
+    // 0.59 µm = 590 nm, 6700 Å = 670 nm (SI factors); tolerance 1e-9 covers float64 rounding of the decimals
+    expect(meta.channelEmissionNm).toHaveLength(4);
+    expect(meta.channelEmissionNm[0]).toBe(520);
+    expect(meta.channelEmissionNm[1]).toBeCloseTo(590, 9);
+    expect(meta.channelEmissionNm[2]).toBeNull();
+    expect(meta.channelEmissionNm[3]).toBeCloseTo(670, 9);
+    expect(meta.warnings).toEqual([]);
+  });
+
+  it('ignores a non-positive value or an unknown unit with a warning, and gives [] without OME-XML', () => {
+    const meta = inspectTiff(small({
+      imageDescription: withChannels('<Channel ID="Channel:0:0" EmissionWavelength="-5"/><Channel ID="Channel:0:1" EmissionWavelength="600" EmissionWavelengthUnit="Hz"/>'),
+    }));
+    expect(meta.channelEmissionNm).toEqual([null, null]);
+    expect(meta.warnings.join(' ')).toMatch(/emission wavelength of channel 1 \("-5"\) is not a positive number/);
+    expect(meta.warnings.join(' ')).toMatch(/unit "Hz" of channel 2 is not a length/);
+    expect(inspectTiff(small({ imageDescription: 'a plain description' })).channelEmissionNm).toEqual([]);
+  });
+});
+
 describe('inspectTiff and decodeTiff: every bad input gives its code', () => {
   it('not_tiff: PNG signature, text, empty file', () => {
     const png = Uint8Array.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0]);
