@@ -5,7 +5,7 @@ import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
 import { sampleSummaryCsv } from '../../../../lib/reporting/exports';
 import { safeFileName } from '../../../../lib/reporting/csv';
 
-/** Summary CSV of a sample (marker fractions and phenotype counts with Wilson intervals). */
+/** Summary CSV of a sample (marker fractions and phenotype shares with 95% intervals over its fields, per-field counts). */
 export const GET = handle(async (ctx) => {
   const { db, sel } = await sampleSelectionFor(ctx);
   const results = await sampleResultsFor(db, sel);
