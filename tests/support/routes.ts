@@ -49,6 +49,7 @@ ROUTES.push(
   { file: 'fields/[id]/index.ts', method: 'GET', path: '/api/fields/:field', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
   { file: 'fields/[id]/retry.ts', method: 'POST', path: '/api/fields/:field/retry', allowed: ['admin', 'biologist'], studyScoped: true },
   { file: 'fields/[id]/detection.ts', method: 'GET', path: '/api/fields/:field/detection', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'fields/[id]/beads.csv.ts', method: 'GET', path: '/api/fields/:field/beads.csv', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
   { file: 'fields/[id]/tiles/[...path].ts', method: 'GET', path: '/api/fields/:field/tiles/height.dzi', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
 );
 
@@ -84,4 +85,10 @@ ROUTES.push(
   { file: 'studies/[id]/positivity.ts', method: 'GET', path: '/api/studies/:study/positivity', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
   { file: 'studies/[id]/positivity.ts', method: 'PUT', path: '/api/studies/:study/positivity', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
   { file: 'studies/[id]/relink.ts', method: 'POST', path: '/api/studies/:study/relink', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
+);
+
+// The study's camera noise model (offset, gain, read noise) used by linking.
+ROUTES.push(
+  { file: 'studies/[id]/camera.ts', method: 'GET', path: '/api/studies/:study/camera', allowed: ['admin', 'biologist', 'analyst'], studyScoped: true },
+  { file: 'studies/[id]/camera.ts', method: 'PUT', path: '/api/studies/:study/camera', allowed: ['admin', 'analyst'], studyScoped: true, body: {} },
 );

@@ -9,6 +9,8 @@ interface Props { fieldId?: string; sampleId?: string }
 
 const col = createColumnHelper<Row>();
 const n = (v: number | null | undefined, d = 1) => (v == null || !Number.isFinite(v) ? '–' : v.toFixed(d));
+/** q below 0.001 as "< 0.001"; else 2 significant digits. */
+const fmtQ = (q: number | null) => (q == null || !Number.isFinite(q) ? '–' : q < 0.001 ? '< 0.001' : q.toPrecision(2));
 const SORTABLE = new Set(['index', 'heightNm', 'diameterNm', 'volumeNm3', 'phenotype']);
 
 function Table({ fieldId, sampleId }: Props) {
@@ -29,28 +31,34 @@ function Table({ fieldId, sampleId }: Props) {
   const columns = useMemo(() => [
     col.accessor('index', { header: '#', cell: (c) => c.getValue() + 1 }),
     col.accessor('heightNm', { header: 'Height (nm)', cell: (c) => n(c.getValue()) }),
-    col.accessor('diameterNm', { header: 'Diameter (nm)', cell: (c) => n(c.getValue()) }),
-    col.accessor('volumeNm3', { header: 'Volume (nm³)', cell: (c) => Math.round(c.getValue()).toLocaleString('en') }),
+    // the threshold footprint is tip-broadened and threshold-dependent: named as such; the cap columns are the sizes
+    col.accessor('diameterNm', { header: 'Footprint diameter (nm)', cell: (c) => n(c.getValue()) }),
+    col.display({ id: 'capBase', header: 'Cap base diameter (nm)', cell: (c) => n(c.row.original.capBaseDiameterNm) }),
+    col.accessor('contactAngleDeg', { header: 'Contact angle (°)', cell: (c) => n(c.getValue(), 0) }),
+    col.display({ id: 'capVolume', header: 'Cap volume (nm³)', cell: (c) => (c.row.original.capVolumeNm3 == null ? '–' : Math.round(c.row.original.capVolumeNm3).toLocaleString('en')) }),
     col.accessor('sphereDiameterNm', { header: 'Sphere-equiv. diameter (nm)', cell: (c) => n(c.getValue()) }),
-    // each marker: net counts with the call, then its SNR (net counts over the background noise: dimensionless, no unit)
+    // each marker: the joint amplitude with its call, then z (amplitude / SE) and q (BH within the field)
     ...markers.flatMap((m, i) => [
       col.display({
         id: `m${i}`,
-        header: `${m} (counts)`,
+        header: `${m} amplitude (counts)`,
         cell: (c) => {
           const k = c.row.original.markers[i];
-          const pos = c.row.original.phenotype.split(' ').includes(`${m}+`);
-          return <span className={pos ? 'text-cap-600 font-semibold' : 'text-mica-600'}>{n(k?.intensity, 0)} {k?.intensity == null ? '' : pos ? '+' : '−'}</span>;
+          const call = k?.call ?? (k?.amplitude == null ? 'not_measured' : c.row.original.phenotype.split(' ').includes(`${m}+`) ? 'positive' : 'negative');
+          if (call === 'not_measured') return <span className="text-mica-400" title="outside this channel's frame: no call">not measured</span>;
+          const pos = call === 'positive';
+          return <span className={pos ? 'text-cap-600 font-semibold' : 'text-mica-600'}>{n(k?.amplitude, 0)} {pos ? '+' : '−'}</span>;
         },
       }),
-      col.display({
-        id: `snr${i}`,
-        header: `${m} SNR`,
-        cell: (c) => <span className="text-mica-600">{n(c.row.original.markers[i]?.snr, 1)}</span>,
-      }),
+      col.display({ id: `z${i}`, header: `${m} z`, cell: (c) => <span className="text-mica-600">{n(c.row.original.markers[i]?.z ?? null, 1)}</span> }),
+      col.display({ id: `q${i}`, header: `${m} q`, cell: (c) => <span className="text-mica-600">{fmtQ(c.row.original.markers[i]?.q ?? null)}</span> }),
     ]),
     col.accessor('phenotype', { header: 'Phenotype', cell: (c) => <span className="whitespace-nowrap">{c.getValue()}</span> }),
-    col.accessor('outOfFrame', { header: 'Outside frame', cell: (c) => (c.getValue() ? 'yes' : '') }),
+    col.display({
+      id: 'flags', header: 'Flags',
+      cell: (c) => [c.row.original.split ? 'split from a touching pair' : '', c.row.original.capFlag ? `cap: ${c.row.original.capFlag.replaceAll('_', ' ')}` : '', c.row.original.outOfFrame ? 'outside a frame' : '']
+        .filter(Boolean).join('; '),
+    }),
   ], [markers.join(',')]);
 
   const table = useReactTable({

@@ -11,14 +11,13 @@ import { putBytes } from '../storage/objects';
 import { detectionKey, tilePrefix } from '../storage/keys';
 import { ImagingError } from '../imaging';
 import { decodeStoredFile, type DecodeLimits } from './decodeStoredFile';
-import { analyzeHeightMap } from '../analysis/heightmap';
 import { correctBackground, detectSpots, psfSigmaPx } from '../analysis/fluorescence';
 import type { Raster } from '../analysis/types';
 import { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from '../analysis/pipeline/opticsDefaults';
 import { renderHeightLayer, renderChannelLayer, TILE_OVERLAP, TILE_SIZE } from './renderLayers';
 import { setFieldProgress, failField } from './progress';
 import type { FieldDetection } from './detectionTypes';
-import { DetectionSettings, DEFAULT_MIN_AREA_PX, defaultDetectionSettings, detectionOptions } from '../schemas/detectionSettings';
+import { fieldHeightMap } from './fieldHeightMap';
 
 export interface IngestDeps { db: Db; st: Storage; decodeLimits: DecodeLimits }
 
@@ -44,17 +43,8 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
     const height: Raster = topo.pages[0];
 
     await progress('levelling and detecting vesicles', 0.15);
-    // settings saved by an analyst (validated again: the column is plain JSON); none = the analysis defaults
-    const parsed = field.detectionSettings == null ? null : DetectionSettings.safeParse(field.detectionSettings);
-    if (parsed && !parsed.success) throw new PermanentJobError('The saved detection settings are not valid; save them again on the field page.');
-    const chosen = parsed?.data ?? null;
-    const options = detectionOptions(chosen, field.afmPixelNm!, field.tipRadiusNm ?? 0);
-    const afm = analyzeHeightMap(height, field.afmPixelNm!, options);
-    const settingsUsed: NonNullable<FieldDetection['settings']> = {
-      ...(chosen ?? defaultDetectionSettings(field.afmPixelNm!)),
-      minAreaPx: options.detect?.minAreaPx ?? DEFAULT_MIN_AREA_PX,
-      source: chosen ? 'analyst' : 'defaults',
-    };
+    // the same call linking makes, so the vesicles shown for review are the ones linking measures
+    const { afm, settingsUsed } = fieldHeightMap(field, height);
 
     await progress('rendering the height map', 0.3);
     const layers: { layer: string; prefix: string; width: number; height: number; display: Record<string, unknown> }[] = [];

@@ -7,19 +7,38 @@
  */
 import { asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { fields, fieldFiles, samples, markerChannels, registrations, linkRuns, vesicles, releases } from '../db/schema';
+import { fields, fieldFiles, samples, studies, markerChannels, registrations, linkRuns, vesicles, releases, beads, type VesicleMarkerJson } from '../db/schema';
 import type { Storage } from '../storage/client';
 import { decodeStoredFile } from './decodeStoredFile';
-import { analyzeField, fieldStages, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type FieldStage } from '../analysis/pipeline';
+import { analyzeField, fieldStages, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type AnalyzeFieldResult, type FieldStage, type VesicleRecord } from '../analysis/pipeline';
 import type { Affine } from '../analysis/types';
 import { summariseLinkRun } from '../db/queries/linkRunSummaries';
 import { setFieldProgress } from './progress';
 import { controlThresholds } from './controlThresholds';
 import { PermanentJobError, type IngestDeps } from './ingestField';
-import { DEFAULT_POSITIVITY_K, roundK, type MarkerPositivityUsed } from './positivitySettings';
+import { DEFAULT_POSITIVITY_K, roundK } from './positivitySettings';
+import { fieldHeightMap, reviewedDetectionMismatch } from './fieldHeightMap';
+import type { FieldDetection } from './detectionTypes';
+import { getBytes } from '../storage/objects';
+import { detectionKey } from '../storage/keys';
 
 const BATCH = 1000;
-const fin = (v: number) => (Number.isFinite(v) ? v : null);
+const fin = (v: number | null | undefined) => (v != null && Number.isFinite(v) ? v : null);
+
+type MarkerRule = 'camera_noise' | 'control' | 'manual';
+/** What linking reads of a control threshold (controlThresholds.ts); `kind` where it says which control set it. */
+type ControlThreshold = { thresholdCounts: number; nbControls: number; kind?: 'isotype' | 'secondary_only' };
+
+/** detection.json as ingestion stored it for review. */
+async function readDetection(st: Storage, fieldId: string): Promise<FieldDetection> {
+  let bytes: Uint8Array;
+  try {
+    bytes = await getBytes(st, detectionKey(fieldId));
+  } catch {
+    throw new PermanentJobError('The detection shown for review is missing: press "Detect again" on the field page, check the vesicles, then link.');
+  }
+  return JSON.parse(new TextDecoder().decode(bytes)) as FieldDetection;
+}
 
 export async function linkField(deps: IngestDeps, fieldId: string) {
   const { db, st } = deps;
@@ -38,16 +57,34 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     const frames = [];
     for (const f of files.filter((x) => x.kind === 'fluorescence')) frames.push(...(await decode(f.objectKey)).pages);
     const markers = frames.map((_, c) => panel[c]?.marker ?? `ch${c + 1}`);
-    // the panel's settings per marker: a hand-set threshold wins; else mean + k SD of controls, else of empty places
+
+    // One vesicle set: the detection the analyst reviewed (detection.json, written by ingestion with the field's
+    // settings) is made again by the same call and must match it record for record; that detection is then linked.
+    const reviewed = await readDetection(st, fieldId);
+    const { afm, settingsUsed } = fieldHeightMap(field, topo.pages[0]);
+    const mismatch = reviewedDetectionMismatch(reviewed, afm, settingsUsed);
+    if (mismatch) {
+      throw new PermanentJobError(`The vesicles to link are not the ones shown for review (${mismatch}). Press "Detect again" on the field page, check the vesicles, then link.`);
+    }
+
+    // per marker: a threshold set by hand wins; else the study's control samples (per control kind); else camera noise
     const setting = (m: string) => panel.find((p) => p.marker === m);
     const kOf = (m: string) => roundK(setting(m)?.positivityK ?? DEFAULT_POSITIVITY_K);
     const manual = Object.fromEntries(markers.flatMap((m) => (setting(m)?.manualThresholdCounts != null ? [[m, setting(m)!.manualThresholdCounts!]] : [])));
     const positivityKByMarker = Object.fromEntries(markers.map((m) => [m, kOf(m)]));
     // all markers go in, in channel order (the stored calls are indexed by channel); hand-set ones are dropped after
-    const fromControls = sample.controlKind === 'none' && markers.some((m) => manual[m] === undefined)
-      ? await controlThresholds(db, sample.studyId, markers, positivityKByMarker) : {};
-    const controls = Object.fromEntries(Object.entries(fromControls).filter(([m]) => manual[m] === undefined));
-    const thresholdCountsByMarker: Record<string, number> = { ...Object.fromEntries(Object.entries(controls).map(([m, t]) => [m, t.thresholdCounts])), ...manual };
+    const fromControls: Record<string, ControlThreshold> = sample.controlKind === 'none' && markers.some((m) => manual[m] === undefined)
+      ? await controlThresholds(db, sample.studyId, markers, positivityKByMarker) as Record<string, ControlThreshold> : {};
+    const controlThresholdByMarker = Object.fromEntries(Object.entries(fromControls).filter(([m]) => manual[m] === undefined)
+      .map(([m, t]) => [m, { kind: t.kind ?? 'isotype', thresholdCounts: t.thresholdCounts, nbControls: t.nbControls }]));
+    const [study] = await db.select({ offset: studies.cameraOffsetCounts, gain: studies.cameraGainCountsPerPhoton, read: studies.cameraReadNoiseCounts })
+      .from(studies).where(eq(studies.id, sample.studyId));
+    // the study's camera model: values left unset are estimated from each frame by the analysis
+    const camera = {
+      ...(study?.offset != null ? { offsetCounts: study.offset } : {}),
+      ...(study?.gain != null ? { gainCountsPerPhoton: study.gain } : {}),
+      ...(study?.read != null ? { readNoiseCounts: study.read } : {}),
+    };
 
     // analyzeField is synchronous: its stage reports are written in order once it returns
     // (the bar moves reading → analysing → saving), never after the final state.
@@ -60,7 +97,10 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
         channels: frames.map((raster, c) => ({ marker: markers[c], raster, emissionNm: field.channelEmissionNm[c] ?? panel[c]?.emissionNm ?? DEFAULT_EMISSION_NM })),
         // the accepted transform as saved (affine or similarity), not a refit of its pairs
         savedRegistration: { flFromAfm: reg.flFromAfm as unknown as Affine, model: reg.model, pairs: reg.pairs },
-        thresholdCountsByMarker,
+        reviewedDetection: afm,
+        thresholdCountsByMarker: manual,
+        controlThresholdByMarker,
+        camera,
       },
       {
         tipRadiusNm: field.tipRadiusNm ?? 0,
@@ -71,30 +111,36 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
 
     for (const [stage, f] of stages.filter(([, f]) => f === 1)) await progress(`linking: ${stage} done`, 0.1 + 0.75 * ((fieldStages.indexOf(stage) + f) / fieldStages.length));
     await progress('saving results', 0.9);
-    const used = Object.fromEntries(markers.map((m): [string, MarkerPositivityUsed] => [m, {
-      rule: manual[m] !== undefined ? 'manual' : controls[m] ? 'control_mean_k_sd' : 'background_mean_k_sd',
-      k: manual[m] !== undefined ? null : kOf(m),
-      thresholdCounts: result.summary.channels[m]?.thresholdCounts ?? null,
-    }]));
-    const thresholdSource = (m: string) => used[m].rule === 'manual'
-      ? 'a threshold set by hand'
-      : used[m].rule === 'control_mean_k_sd'
-        ? `mean + ${used[m].k} SD of the joint amplitudes of ${controls[m].nbControls} control-sample vesicles`
-        : `mean + ${used[m].k} SD of joint amplitudes fitted at ${result.summary.channels[m]?.nbBackgroundApertures ?? '?'} empty places of the frame`;
-    // per marker: the rule, its k (null when set by hand) and the threshold compared (counts)
+    const ch = (m: string) => result.summary.channels[m];
+    const ruleOf = (m: string): MarkerRule => (manual[m] !== undefined ? 'manual' : (ch(m)?.rule ?? (controlThresholdByMarker[m] ? 'control' : 'camera_noise')));
+    // per marker: the rule, what "positive" means under it (one sentence), z_crit or the threshold, and the camera model
     const settings = {
       registrationVersion: reg.version,
       registrationModel: reg.model,
+      detection: settingsUsed,
       positivityMeasure: 'joint_amplitude',
-      thresholdUnit: result.summary.channels[markers[0]]?.thresholdUnit ?? 'counts',
-      thresholdRule: Object.fromEntries(markers.map((m) => [m, used[m].rule])),
-      thresholdMethod: markers.map((m) => `${m}: joint NNLS amplitude (counts of PSF amplitude) above ${thresholdSource(m)}`).join('; '),
-      thresholds: Object.fromEntries(markers.map((m) => [m, used[m].thresholdCounts])),
-      k: Object.fromEntries(markers.map((m) => [m, used[m].k])),
-      nbThresholdValues: Object.fromEntries(markers.map((m) => [m, used[m].rule === 'manual' ? null
-        : used[m].rule === 'control_mean_k_sd' ? controls[m].nbControls : (result.summary.channels[m]?.nbBackgroundApertures ?? null)])),
+      thresholdUnit: ch(markers[0])?.thresholdUnit ?? 'counts',
+      thresholdRule: Object.fromEntries(markers.map((m) => [m, ruleOf(m)])),
+      ruleSentence: Object.fromEntries(markers.map((m) => [m, ch(m)?.ruleSentence ?? null])),
+      thresholdMethod: markers.map((m) => `${m}: ${ch(m)?.ruleSentence ?? ruleOf(m)}`).join('; '),
+      thresholds: Object.fromEntries(markers.map((m) => [m, ch(m)?.thresholdCounts ?? null])),
+      k: Object.fromEntries(markers.map((m) => [m, ruleOf(m) === 'manual' ? null : kOf(m)])),
+      zCritical: Object.fromEntries(markers.map((m) => [m, ch(m)?.zCritical ?? null])),
+      controlKind: Object.fromEntries(markers.map((m) => [m, ch(m)?.controlKind ?? null])),
+      nbThresholdValues: Object.fromEntries(markers.map((m) => [m, ruleOf(m) === 'manual' ? null
+        : ruleOf(m) === 'control' ? (controlThresholdByMarker[m]?.nbControls ?? null) : (ch(m)?.nbBackgroundApertures ?? null)])),
+      camera: Object.fromEntries(markers.map((m) => [m, { model: ch(m)?.camera ?? null, source: ch(m)?.cameraSource ?? null, note: ch(m)?.cameraNote ?? null }])),
+      chancePositiveFraction: Object.fromEntries(markers.map((m) => [m, ch(m)?.chancePositiveFraction ?? null])),
       markers,
     };
+    // any object under a fiducial pick is a bead, whatever its height: it leaves the vesicles for the bead list
+    const picked = underPicks(result, topo.pages[0].width, reg.pairs);
+    const released = result.records.filter((r) => !picked.has(r));
+    const beadRows = [...fieldBeads(result), ...[...picked].map((r) => ({
+      xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: fin(r.xFlPx), yFlPx: fin(r.yFlPx), heightNm: r.heightNm, footprintDiameterNm: r.footprintDiameterNm,
+      reason: 'under a fiducial pick', underFiducialPick: true,
+      markers: markers.map((m) => ({ amplitude: fin(r.markers[m]?.amplitudeCounts), se: fin(r.markers[m]?.amplitudeSeCounts), z: fin(r.markers[m]?.z) })) as unknown[],
+    }))].map((b, index) => ({ ...b, index }));
     await db.transaction(async (tx) => {
       // one writer per field at a time: a job retried while its first run still finishes waits here
       await tx.execute(sql`select id from fields where id = ${fieldId} for update`);
@@ -105,37 +151,42 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       if (deletable.length) await tx.delete(linkRuns).where(inArray(linkRuns.id, deletable));
       // what is left of older runs is frozen by releases: kept, but no longer current
       await tx.update(linkRuns).set({ current: false }).where(eq(linkRuns.fieldId, fieldId));
-      const [run] = await tx.insert(linkRuns).values({ fieldId, registrationId: reg.id, settings, summary: result.summary as unknown as Record<string, unknown>, current: true }).returning();
-      const rows = result.records.map((r) => {
+      const [run] = await tx.insert(linkRuns).values({
+        fieldId, registrationId: reg.id, settings, summary: result.summary as unknown as Record<string, unknown>, current: true,
+        channelRegistration: channelRegistrationOf(result),
+      }).returning();
+      const rows = released.map((r) => {
         let bits = 0;
         let measured = 0;
-        const calls = markers.map((m, i) => {
+        // JSON has no NaN: a vesicle outside a frame has null values there and the call 'not_measured'
+        const calls: VesicleMarkerJson[] = markers.map((m, i) => {
           const c = r.markers[m];
           if (c?.positive) bits |= 1 << i;
           // positive null: outside that channel's frame, no call (leaves that marker's denominator)
-          if (c && c.positive !== null) measured |= 1 << i;
+          if (c && c.positive != null) measured |= 1 << i;
           return {
-            intensity: c?.intensityCounts ?? NaN, snr: c?.intensitySnr ?? NaN, amplitude: c?.amplitudeCounts ?? NaN,
-            amplitudeUnconstrained: c?.unconstrainedAmplitudeCounts ?? NaN, spotDistancePx: c?.spotDistancePx ?? null,
+            intensity: fin(c?.intensityCounts), snr: fin(c?.intensitySnr), amplitude: fin(c?.amplitudeCounts),
+            // counts, may be < 0: feeds later control-sample thresholds
+            amplitudeUnconstrained: fin(c?.unconstrainedAmplitudeCounts), spotDistancePx: fin(c?.spotDistancePx),
+            se: fin(c?.amplitudeSeCounts), z: fin(c?.z ?? c?.amplitudeSnr), zCalibrated: fin(c?.zCalibrated), p: fin(c?.pValue), q: fin(c?.qValue),
+            call: c?.positive == null ? 'not_measured' : c.positive ? 'positive' : 'negative',
           };
         });
         return {
           linkRunId: run.id, fieldId, sampleId: sample.id, index: r.index, xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: r.xFlPx, yFlPx: r.yFlPx,
           heightNm: r.heightNm, meanHeightNm: r.meanHeightNm, areaNm2: r.areaNm2, diameterNm: r.footprintDiameterNm, volumeNm3: r.volumeNm3, circularity: r.circularity,
-          capRadiusNm: r.cap?.baseRadiusNm ?? null, contactAngleDeg: r.cap?.contactAngleDeg ?? null, sphereDiameterNm: r.cap?.volumeEquivalentDiameterNm ?? null,
-          outOfFrame: r.outOfFrame, markerBits: bits, measuredBits: measured, phenotype: r.phenotype,
-          // JSON has no NaN: a vesicle outside a frame has null values there
-          // amplitudeUnconstrained (counts, may be < 0) feeds later control-sample thresholds
-          markers: calls.map((c) => ({
-            intensity: fin(c.intensity), snr: fin(c.snr), amplitude: fin(c.amplitude), amplitudeUnconstrained: fin(c.amplitudeUnconstrained), spotDistancePx: c.spotDistancePx,
-          })) as never,
+          capRadiusNm: fin(r.cap?.baseRadiusNm), capBaseDiameterNm: r.cap ? fin(2 * r.cap.baseRadiusNm) : null, capHeightNm: fin(r.cap?.heightNm),
+          contactAngleDeg: fin(r.cap?.contactAngleDeg), capVolumeNm3: fin(r.cap?.volumeNm3), sphereDiameterNm: fin(r.cap?.volumeEquivalentDiameterNm),
+          capFlag: r.capFlag ?? null, split: r.split ?? false,
+          outOfFrame: r.outOfFrame, markerBits: bits, measuredBits: measured, phenotype: r.phenotype, markers: calls,
         };
       });
+      if (beadRows.length) await tx.insert(beads).values(beadRows.map((b) => ({ ...b, linkRunId: run.id })));
       for (let i = 0; i < rows.length; i += BATCH) await tx.insert(vesicles).values(rows.slice(i, i + BATCH));
       await summariseLinkRun(tx, run.id, markers.length);
       await tx.update(fields).set({ status: 'linked', failureReason: null, progress: { stage: 'done', fraction: 1 }, version: sql`${fields.version} + 1`, updatedAt: sql`now()` }).where(eq(fields.id, fieldId));
     });
-    return { vesicles: result.records.length, phenotypes: result.summary.phenotypeCounts };
+    return { vesicles: released.length, beads: beadRows.length };
   } catch (e) {
     // failing the link keeps the registration: the field stays "registered" with the reason shown
     const reason = e instanceof PermanentJobError ? e.message : `Linking failed: ${(e as Error).message}`;
@@ -145,3 +196,66 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
 }
 
 
+
+/**
+ * What linking stores of a bead. The pipeline's own bead list is read where it has one (`beads`); otherwise the
+ * fiducial candidates (taller than the bead cut-off) are the beads. Beads never become vesicle rows.
+ */
+interface BeadLike {
+  xAfmPx?: number; yAfmPx?: number; xFlPx?: number | null; yFlPx?: number | null; centroidPx?: { x: number; y: number };
+  heightNm?: number; apexHeightNm?: number; footprintDiameterNm?: number; reason?: string; underFiducialPick?: boolean;
+  markers?: Record<string, unknown> | unknown[];
+}
+
+function fieldBeads(result: AnalyzeFieldResult) {
+  const own = (result as unknown as { beads?: readonly BeadLike[] }).beads;
+  const list: BeadLike[] = own ? [...own] : result.fiducialCandidates.map((f, i) => ({
+    centroidPx: f.centroidPx, apexHeightNm: f.apexHeightNm, footprintDiameterNm: f.footprintDiameterNm,
+    xFlPx: result.fiducialsFl[i]?.x ?? null, yFlPx: result.fiducialsFl[i]?.y ?? null, reason: 'taller than the bead cut-off',
+  }));
+  return list.map((b) => ({
+    xAfmPx: b.xAfmPx ?? b.centroidPx?.x ?? NaN, yAfmPx: b.yAfmPx ?? b.centroidPx?.y ?? NaN,
+    xFlPx: fin(b.xFlPx), yFlPx: fin(b.yFlPx),
+    heightNm: b.heightNm ?? b.apexHeightNm ?? NaN, footprintDiameterNm: b.footprintDiameterNm ?? NaN,
+    reason: b.reason ?? 'bead', underFiducialPick: b.underFiducialPick ?? false,
+    markers: (Array.isArray(b.markers) ? b.markers : b.markers ? Object.values(b.markers) : []) as unknown[],
+  }));
+}
+
+/** AFM px within which a pick names the object whose centroid is nearest when it falls between regions. */
+const PICK_SNAP_PX = 2;
+
+/**
+ * Vesicle records that sit under a registration pick: the region under the pick's AFM pixel, or else the vesicle
+ * whose centroid is within PICK_SNAP_PX of it. Fiducials are beads by the analyst's own choice.
+ */
+function underPicks(result: AnalyzeFieldResult, width: number, pairs: readonly { afm: { x: number; y: number } }[]): Set<VesicleRecord> {
+  const out = new Set<VesicleRecord>();
+  const labelAt = (x: number, y: number) => {
+    const [ix, iy] = [Math.round(x), Math.round(y)];
+    return width > 0 && ix >= 0 && iy >= 0 && ix < width && iy * width + ix < result.labels.length ? result.labels[iy * width + ix] : 0;
+  };
+  for (const p of pairs) {
+    const label = labelAt(p.afm.x, p.afm.y);
+    let hit = label > 0 ? result.vesicles.findIndex((v) => v.label === label) : -1;
+    if (hit < 0) {
+      let best = PICK_SNAP_PX;
+      result.vesicles.forEach((v, i) => {
+        const d = Math.hypot(v.centroidPx.x - p.afm.x, v.centroidPx.y - p.afm.y);
+        if (d <= best) [best, hit] = [d, i];
+      });
+    }
+    if (hit < 0) continue;
+    const c = result.vesicles[hit].centroidPx;
+    const record = result.records.find((r) => r.xAfmPx === c.x && r.yAfmPx === c.y);
+    if (record) out.add(record);
+  }
+  return out;
+}
+
+/** Per-channel registration (offsets and PSF widths from the beads) where the pipeline reports it; else null. */
+function channelRegistrationOf(result: AnalyzeFieldResult): unknown[] | null {
+  const r = result as unknown as { channelRegistration?: readonly unknown[]; registration?: { channels?: readonly unknown[] } };
+  const channels = r.channelRegistration ?? r.registration?.channels;
+  return channels ? JSON.parse(JSON.stringify(channels)) : null;
+}

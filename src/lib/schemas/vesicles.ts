@@ -33,9 +33,19 @@ export const VesicleRow = z.object({
   volumeNm3: z.number(),
   sphereDiameterNm: z.number().nullable(),
   contactAngleDeg: z.number().nullable(),
+  /** Spherical cap after tip correction (null where capFlag says it was not possible; absent in older servers). */
+  capBaseDiameterNm: z.number().nullable().optional(),
+  capVolumeNm3: z.number().nullable().optional(),
+  capFlag: z.string().nullable().optional(),
+  split: z.boolean().optional(),
   outOfFrame: z.boolean(),
   phenotype: z.string(),
-  markers: z.array(z.object({ intensity: z.number().nullable(), snr: z.number().nullable(), amplitude: z.number().nullable(), spotDistancePx: z.number().nullable() })),
+  /** Per channel: the call and its error model (runs linked before calls had one lack se, z, p, q and call). */
+  markers: z.array(z.object({
+    intensity: z.number().nullable(), snr: z.number().nullable(), amplitude: z.number().nullable(), spotDistancePx: z.number().nullable(),
+    se: z.number().nullable().optional(), z: z.number().nullable().optional(), p: z.number().nullable().optional(), q: z.number().nullable().optional(),
+    call: z.enum(['positive', 'negative', 'not_measured']).optional(),
+  })),
 });
 export const VesiclePage = z.object({ rows: z.array(VesicleRow), total: z.number(), markers: z.array(z.string()), phenotypes: z.array(z.object({ phenotype: z.string(), n: z.number() })) });
 export type VesiclePage = z.infer<typeof VesiclePage>;

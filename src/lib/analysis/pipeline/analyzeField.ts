@@ -71,18 +71,20 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
 
   // level
   onProgress('level', 0);
-  const levelling = levelHeightMap(heightNm, level);
+  // the detection an analyst reviewed, when given, is used as is: linking releases exactly those vesicles
+  const reviewed = input.reviewedDetection;
+  const levelling = reviewed?.levelling ?? levelHeightMap(heightNm, level);
   onProgress('level', 1);
 
   // detect
   onProgress('detect', 0);
-  const threshold = selectThreshold(
+  const threshold = reviewed?.threshold ?? selectThreshold(
     levelling.levelled,
     thresholdNm === undefined
       ? { method: 'robust', k: 3, backgroundMask: levelling.backgroundMask }
       : { method: 'manual', thresholdNm },
   );
-  const detection = detectVesicles(levelling.levelled, { thresholdNm: threshold.thresholdNm });
+  const detection = reviewed?.detection ?? detectVesicles(levelling.levelled, { thresholdNm: threshold.thresholdNm });
   onProgress('detect', 1);
 
   // measure
@@ -90,9 +92,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   const measureOptions = { tipRadiusNm, thresholdNm: Math.max(0, threshold.thresholdNm) };
   const measure = (r: (typeof detection.vesicles)[number]) =>
     measureVesicle(levelling.levelled, detection.labels, r, afmPixelNm, measureOptions);
-  const detectedVesicles = detection.vesicles.map(measure);
+  const detectedVesicles = reviewed ? [...reviewed.vesicles] : detection.vesicles.map(measure);
   onProgress('measure', 0.9);
-  const detectedTall = detection.fiducialCandidates.map(measure);
+  const detectedTall = reviewed ? [...reviewed.fiducialCandidates] : detection.fiducialCandidates.map(measure);
   onProgress('measure', 1);
 
   // spots
@@ -237,7 +239,6 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     nbMeasuredAllChannels++;
     phenotypeCounts[r.phenotype] = (phenotypeCounts[r.phenotype] ?? 0) + 1;
   }
-
   const channelSummaries: Record<string, FieldChannelSummary> = {};
   const spotsWithoutVesicleByMarker: Record<string, number> = {};
   for (const c of channels) {
@@ -269,7 +270,6 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
       chancePositiveFraction: Number.isFinite(chanceByMarker[c.marker].chancePositiveFraction) ? chanceByMarker[c.marker].chancePositiveFraction : null,
       nbChancePositions: chanceByMarker[c.marker].nbPositions,
       nbOtherSources: links.nbOtherSpotSourcesByMarker[c.marker],
-
       nbSpotsWithoutVesicle: withoutVesicle,
       nbSpotsOnFiducials: onFiducial,
     };

@@ -1,6 +1,6 @@
 import type { FluorescenceSpot } from '../fluorescence/types';
 import type { ChannelRegistration, FiducialPair, RegistrationModel, RegistrationWarning } from '../geometry';
-import type { CapSizeFlag, LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
+import type { AnalyzeHeightMapResult, CapSizeFlag, LevelHeightMapOptions, MeasureVesicleResult } from '../heightmap/types';
 import type { Affine, Point, Raster } from '../types';
 import type { CameraModel, ThresholdControlKind } from '../linking/types';
 
@@ -40,6 +40,12 @@ export interface AnalyzeFieldInput {
    * Takes precedence over `fiducialPairs`.
    */
   readonly savedRegistration?: SavedRegistration;
+  /**
+   * The height-map detection an analyst reviewed (analyzeHeightMap with the field's detection settings). When
+   * given, its levelling, threshold, regions and measured vesicles and fiducial candidates are used as they are,
+   * so the vesicles linked are exactly those reviewed; `thresholdNm`, `level` and `tipRadiusNm` then play no part.
+   */
+  readonly reviewedDetection?: AnalyzeHeightMapResult;
   /**
    * Positivity threshold per marker set by hand (the manual rule), in joint-amplitude counts (total counts of one
    * vesicle's PSF, the quantity called). Wins over a control threshold and over the camera-noise rule.

@@ -41,7 +41,8 @@ export async function pageVesicles(db: Db, q: VesicleQuery) {
     (select coalesce(json_agg(p), '[]'::json) from (
        select id, field_id as "fieldId", index, x_afm_px as "xAfmPx", y_afm_px as "yAfmPx", x_fl_px as "xFlPx", y_fl_px as "yFlPx",
               height_nm as "heightNm", diameter_nm as "diameterNm", volume_nm3 as "volumeNm3", sphere_diameter_nm as "sphereDiameterNm",
-              contact_angle_deg as "contactAngleDeg", out_of_frame as "outOfFrame", phenotype, markers
+              contact_angle_deg as "contactAngleDeg", cap_base_diameter_nm as "capBaseDiameterNm", cap_volume_nm3 as "capVolumeNm3",
+              cap_flag as "capFlag", split, out_of_frame as "outOfFrame", phenotype, markers
          from vesicles where ${where}
         order by ${SORT_SQL[q.sort]} ${q.dir === 'asc' ? 'asc' : 'desc'}, id asc limit ${limit} offset ${offset}) p) as rows,
     ${filters.length ? `(select count(*)::int from vesicles where ${where})` : 'null::int'} as filtered_total,
@@ -56,5 +57,5 @@ export async function pageVesicles(db: Db, q: VesicleQuery) {
 type VesicleRowOut = {
   id: number; fieldId: string; index: number; xAfmPx: number; yAfmPx: number; xFlPx: number | null; yFlPx: number | null;
   heightNm: number; diameterNm: number; volumeNm3: number; sphereDiameterNm: number | null; contactAngleDeg: number | null;
-  outOfFrame: boolean; phenotype: string; markers: unknown;
+  capBaseDiameterNm: number | null; capVolumeNm3: number | null; capFlag: string | null; split: boolean; outOfFrame: boolean; phenotype: string; markers: unknown;
 };

@@ -17,7 +17,10 @@ export interface VesicleMarkerJson {
   spotDistancePx: number | null;
   /** Standard error of the amplitude (counts). */
   se?: number | null;
+  /** amplitude / se (dimensionless). */
   z?: number | null;
+  /** z calibrated by the frame's null at empty places; p is its one-sided p-value, q the BH q within the field. */
+  zCalibrated?: number | null;
   p?: number | null;
   q?: number | null;
   call?: 'positive' | 'negative' | 'not_measured';

@@ -11,12 +11,14 @@ import { listPanel } from '../../../lib/db/queries/studies';
 import { vesicleCsvColumns, vesicleCsvCells } from '../../../lib/analysis/pipeline';
 import { writeCsv, RESEARCH_USE_COMMENT } from '../../../lib/csv';
 import { VesicleQuery } from '../../../lib/schemas/vesicles';
+import { vesicleRecordFromRow } from '../../../lib/db/queries/vesicleRecord';
 
 const PAGE = 2000;
 
 /**
  * Per-vesicle CSV of a field or a sample, streamed page by page (keyset on id) so a sample of any
- * size never sits whole in memory. Same columns as the command line, plus field, sample and transform.
+ * size never sits whole in memory. The one per-vesicle column set (docs/vesicle-columns.md: cap sizes, footprint, and
+ * per marker amplitude, SE, z, q and the call), plus field, sample and transform.
  */
 export const GET = handle(async (ctx) => {
   requireUser(ctx.locals);
@@ -44,14 +46,7 @@ export const GET = handle(async (ctx) => {
         .limit(PAGE);
       if (!rows.length) return c.close();
       lastId = rows[rows.length - 1].v.id;
-      const text = writeCsv({ lineEnding: '\n', rows: rows.map(({ v, regVersion }) => vesicleCsvCells({
-        index: v.index, xAfmPx: v.xAfmPx, yAfmPx: v.yAfmPx, xFlPx: v.xFlPx ?? NaN, yFlPx: v.yFlPx ?? NaN, heightNm: v.heightNm, footprintDiameterNm: v.diameterNm,
-        volumeNm3: v.volumeNm3, areaNm2: v.areaNm2, circularity: v.circularity, meanHeightNm: v.meanHeightNm, cap: null, capFlag: null, split: false, outOfFrame: v.outOfFrame, phenotype: v.phenotype,
-        markers: Object.fromEntries(markers.map((m, i) => [m, {
-          intensityCounts: v.markers[i]?.intensity ?? null, intensitySnr: v.markers[i]?.snr ?? null, amplitudeCounts: v.markers[i]?.amplitude ?? null,
-          spotDistancePx: v.markers[i]?.spotDistancePx ?? null, positive: v.markers[i]?.intensity == null ? null : (v.markerBits & (1 << i)) !== 0,
-        }])),
-      }, markers, [v.fieldId, sampleCode, String(regVersion ?? '')])) });
+      const text = writeCsv({ lineEnding: '\n', rows: rows.map(({ v, regVersion }) => vesicleCsvCells(vesicleRecordFromRow(v, markers), markers, [v.fieldId, sampleCode, String(regVersion ?? '')])) });
       c.enqueue(enc.encode(text));
     },
   });

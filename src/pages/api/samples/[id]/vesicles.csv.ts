@@ -1,27 +1,34 @@
 import type { APIRoute } from 'astro';
 import { handle } from '../../../../lib/http/respond';
-import { getPanel } from '../../../../lib/db/queries/sampleSelection';
+import { getPanel } from '../../../../lib/db/queries/results';
 import { pageVesicles } from '../../../../lib/db/queries/vesicleExport';
+import { vesicleRecordFromRow } from '../../../../lib/db/queries/vesicleRecord';
 import { sampleSelectionFor } from '../../../../lib/reporting/routeSelection';
-import { sampleVesicleCsvHeader, sampleVesicleCsvRow } from '../../../../lib/reporting/exports';
 import { safeFileName } from '../../../../lib/reporting/csv';
+import { vesicleCsvColumns, vesicleCsvCells } from '../../../../lib/analysis/pipeline';
+import { writeCsv, RESEARCH_USE_COMMENT } from '../../../../lib/csv';
 
-/** Per-vesicle CSV, streamed page by page (keyset pagination), so any size holds one page in memory. */
+/**
+ * Per-vesicle CSV of a sample's release (collaborators) or current analysis (lab), streamed page by page (keyset
+ * pagination), so any size holds one page in memory. The one per-vesicle column set (docs/vesicle-columns.md: cap
+ * sizes, footprint, per marker amplitude, SE, z, q and the call), then sample code, field and link run.
+ */
 export const GET = handle(async (ctx) => {
   const { db, sel } = await sampleSelectionFor(ctx);
-  const panel = await getPanel(db, sel.sample.studyId);
-  const channels = panel.map((c) => c.channelIndex);
+  const markers = (await getPanel(db, sel.sample.studyId)).map((c) => c.marker);
   const pages = pageVesicles(db, sel.linkRunIds);
   const encoder = new TextEncoder();
   const stream = new ReadableStream<Uint8Array>({
     start(controller) {
-      controller.enqueue(encoder.encode(sampleVesicleCsvHeader(panel.map((c) => c.marker))));
+      // header names (lab-chosen marker names) and cells go through the formula-escaping writer
+      controller.enqueue(encoder.encode(writeCsv({ comments: [RESEARCH_USE_COMMENT], header: vesicleCsvColumns(markers, ['sample_code', 'field_id', 'link_run_id']), lineEnding: '\n' })));
     },
     async pull(controller) {
       try {
         const next = await pages.next();
         if (next.done) return controller.close();
-        controller.enqueue(encoder.encode(next.value.map((v) => sampleVesicleCsvRow(sel.sample.code, v, channels)).join('')));
+        const rows = next.value.map((v) => vesicleCsvCells(vesicleRecordFromRow(v, markers), markers, [sel.sample.code, v.fieldId, v.linkRunId]));
+        controller.enqueue(encoder.encode(writeCsv({ rows, lineEnding: '\n' })));
       } catch (err) {
         console.error('[vesicles.csv] stream failed:', err);
         controller.error(err);
