@@ -71,7 +71,10 @@ async function main() {
     // the worker starts before the seed, the type check and the build, so the demo fields are ingested meanwhile
     const worker = spawn(process.execPath, ['scripts/run-bundled.mjs', 'worker'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
     children.push(worker);
-    await seedAll(s.env, log);
+    // The demo pilot costs the worker minutes: it is made for the whole suite, or when a test that reads it is named.
+    const named = process.argv.slice(2).filter((x) => /\.test\.ts$/.test(x));
+    const withPilot = process.env.HEIGHTLIGHT_SKIP_PILOT !== '1' && (named.length === 0 || named.some((x) => /demo-pilot|first-screens/.test(x)));
+    await seedAll(s.env, log, { pilot: withPilot });
 
     // Skipping the type check is for quick local iterations only; CI always runs it.
     if (process.env.HEIGHTLIGHT_SKIP_TYPECHECK !== '1' || process.env.CI) {
@@ -94,8 +97,8 @@ async function main() {
     await waitForHttp(`${s.env.PUBLIC_URL}/signin`, 60_000);
     log(`app up at ${s.env.PUBLIC_URL}`);
     // the demo pilot through registration, linking, approval and release with the worker, before any test
-    // reads it (tests/integration/demo-pilot.test.ts checks what it left); HEIGHTLIGHT_SKIP_PILOT=1 skips it for quick local runs
-    if (process.env.HEIGHTLIGHT_SKIP_PILOT !== '1') await runPilot(s.env, log);
+    // reads it (tests/integration/demo-pilot.test.ts checks what it left); HEIGHTLIGHT_SKIP_PILOT=1 skips it
+    if (withPilot) await runPilot(s.env, log);
 
     // Asynchronous on purpose: the S3 fake and the SMTP sink live in this process and must keep answering.
     const args = ['vitest', 'run', ...process.argv.slice(2)];

@@ -1,11 +1,10 @@
 import type { Raster } from '../types';
 
-/** One bead image in a frame: fitted centre (px), integrated counts above background, local background (counts). */
+/** One bead image in a frame: fitted centre (px) and integrated counts above background (counts), e.g. from fitBeadSpots. */
 export interface BeadImage {
   readonly x: number;
   readonly y: number;
   readonly integratedCounts: number;
-  readonly backgroundCounts: number;
 }
 
 /** Options of {@link subtractBeadImages}. */
@@ -29,8 +28,8 @@ export interface SubtractBeadImagesResult {
  * Gaussian the joint fit assumes nor point-like (the optics' rings, the bead's own size), and at 20–100× a
  * vesicle's brightness its mis-modelled halo would bias the background of vesicles half a micron away. So the
  * bead image is measured on the beads themselves: the median over beads of the radial profile (counts above the
- * local background per integrated count, in radial bins about the fitted centre), then each bead's scaled copy is
- * subtracted. Written here because the profile comes from the field's own beads; no package does this.
+ * bead's local background, the median of a 2 px annulus just outside the profile, per integrated count, in radial
+ * bins about the fitted centre), then each bead's scaled copy is subtracted. Written here because the profile comes from the field's own beads; no package does this.
  *
  * @param raster - raw frame (counts); not modified
  * @param beads - the beads' fitted images in this frame
@@ -42,21 +41,24 @@ export function subtractBeadImages(raster: Raster, beads: readonly BeadImage[], 
   const { data, width, height } = raster;
   const nbBins = Math.ceil(radiusPx / binPx);
   const perBead = beads.map((b) => {
+    const ring: number[] = [];
+    forEachNear(b, radiusPx + 2, width, height, (x, y, r) => {
+      if (r >= radiusPx) ring.push(data[y * width + x]);
+    });
+    const background = ring.length ? medianOf(ring) : 0;
     const sum = new Float64Array(nbBins);
     const count = new Float64Array(nbBins);
     forEachNear(b, radiusPx, width, height, (x, y, r) => {
       const k = Math.floor(r / binPx);
-      sum[k] += (data[y * width + x] - b.backgroundCounts) / b.integratedCounts;
+      sum[k] += (data[y * width + x] - background) / b.integratedCounts;
       count[k] += 1;
     });
     return { sum, count };
   });
   const profile = new Float64Array(nbBins);
   for (let k = 0; k < nbBins; k++) {
-    const values = perBead.filter((p) => p.count[k] > 0).map((p) => p.sum[k] / p.count[k]).sort((a, b) => a - b);
-    if (values.length === 0) continue;
-    const n = values.length;
-    profile[k] = n % 2 ? values[(n - 1) / 2] : 0.5 * (values[n / 2 - 1] + values[n / 2]);
+    const values = perBead.filter((p) => p.count[k] > 0).map((p) => p.sum[k] / p.count[k]);
+    if (values.length) profile[k] = medianOf(values);
   }
   const out = Float32Array.from(data);
   for (const b of beads) {
@@ -69,6 +71,12 @@ export function subtractBeadImages(raster: Raster, beads: readonly BeadImage[], 
     });
   }
   return { raster: { data: out, width, height }, profile };
+}
+
+function medianOf(values: number[]): number {
+  const s = [...values].sort((a, b) => a - b);
+  const n = s.length;
+  return n % 2 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
 }
 
 function forEachNear(p: { x: number; y: number }, radiusPx: number, w: number, h: number, f: (x: number, y: number, r: number) => void): void {
