@@ -7,7 +7,8 @@ import { seed } from '../seed';
 import { seedDemoFields } from '../seedDemoFields';
 import { seedPilot } from '../seedPilot';
 
-export async function seedAll(env: Record<string, string>, log: (m: string) => void) {
+/** @param o.pilot - also generate the demo pilot's fields and queue their ingestion (default true) */
+export async function seedAll(env: Record<string, string>, log: (m: string) => void, o: { pilot?: boolean } = {}) {
   const db = createDb(env.DATABASE_URL, 2);
   try {
     await seed(db);
@@ -17,8 +18,10 @@ export async function seedAll(env: Record<string, string>, log: (m: string) => v
     const created = await seedDemoFields(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }));
     if (created.length) log(`queued ${created.length} demo field(s) for processing`);
     // the pilot study's fields: generated once (a few seconds each), then ingested by the worker; runPilot does the rest
-    const pilot = await seedPilot(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }), log);
-    if (pilot.created.length) log(`queued ${pilot.created.length} demo pilot field(s) for processing`);
+    if (o.pilot ?? true) {
+      const pilot = await seedPilot(db, st, (id) => boss.send(QUEUES.ingestField, { fieldId: id }), log);
+      if (pilot.created.length) log(`queued ${pilot.created.length} demo pilot field(s) for processing`);
+    }
   } finally {
     await db.$client.end();
   }
