@@ -1,3 +1,4 @@
+import KDBush from 'kdbush';
 import { AnalysisError } from '../errors';
 import { robustNoiseSigma } from '../fluorescence/robustNoiseSigma';
 import type { Point, Raster } from '../types';
@@ -12,9 +13,14 @@ export interface CalibrateNullZOptions {
   /** Camera noise model, as for the vesicles' fit. Required. */
   camera: CameraModel;
   /**
-   * Places keep at least this distance from every position in avoidPx (px): at 5σ a spot's own light is
-   * e^(−12.5) of its peak, and its tail inside a ±3σ window is taken by the background column.
-   * @default 5·sigmaPx
+   * Light sources near the places (spots, dim ones included, and beads) (px): each gets its own PSF column in the
+   * place's fit, exactly as around a vesicle, so a neighbour's tail inside the window is not read as background.
+   * @default none
+   */
+  sourcesPx?: readonly Point[];
+  /**
+   * Places keep at least this distance from every position in avoidPx (px).
+   * @default 4·sigmaPx
    */
   exclusionRadiusPx?: number;
   /**
@@ -37,9 +43,10 @@ export interface CalibrateNullZResult extends NullCalibration {
 }
 
 /**
- * The null distribution of z = amplitude/SE in one frame, measured where nothing is: a PSF amplitude is fitted alone at
+ * The null distribution of z = amplitude/SE in one frame, measured where nothing is: a PSF amplitude is fitted at
  * places of a lattice that keep away from every vesicle, bead and detected spot (the caller passes dim spots found at
- * a low threshold too), and z is summarised by its median and 1.4826·MAD. Robust statistics, not mean and SD,
+ * a low threshold too), together with the sources near each place as around a vesicle, and z is summarised by its
+ * median and 1.4826·MAD. Robust statistics, not mean and SD,
  * because the few places that still hold an undetected dim emitter or free dye would otherwise widen the null, and
  * more so the denser the sample; median and MAD move little with a few percent of such places. A calibrated
  * z_c = (z − median)/MAD then follows N(0, 1) at empty places whatever the residual error of the camera model.
@@ -52,7 +59,7 @@ export interface CalibrateNullZResult extends NullCalibration {
  * @see Rousseeuw PJ, Croux C. JASA 88:1273–1283, 1993 (MAD consistency factor 1.4826).
  */
 export function calibrateNullZ(raster: Raster, avoidPx: readonly Point[], options: CalibrateNullZOptions): CalibrateNullZResult {
-  const { sigmaPx, camera, exclusionRadiusPx = 5 * sigmaPx, spacingPx = 7 * sigmaPx, maxPositions = 600, minPlaces = 30 } = options;
+  const { sigmaPx, camera, sourcesPx = [], exclusionRadiusPx = 4 * sigmaPx, spacingPx = 7 * sigmaPx, maxPositions = 600, minPlaces = 30 } = options;
   let positions: Point[];
   try {
     positions = backgroundPositions(raster, avoidPx, { sigmaPx, exclusionRadiusPx, spacingPx, maxPositions, minPositions: minPlaces });
@@ -62,7 +69,12 @@ export function calibrateNullZ(raster: Raster, avoidPx: readonly Point[], option
     }
     throw e;
   }
-  const fits = estimateMarkerAmplitudes(raster, positions, { sigmaPx, camera }).amplitudes;
+  // sources within reach of a place's window join its fit; further ones fall in other neighbourhoods
+  const index = new KDBush(positions.length);
+  for (const p of positions) index.add(p.x, p.y);
+  index.finish();
+  const near = sourcesPx.filter((s) => index.within(s.x, s.y, 8 * sigmaPx).length > 0);
+  const fits = estimateMarkerAmplitudes(raster, [...positions, ...near], { sigmaPx, camera }).amplitudes.slice(0, positions.length);
   const z = fits.map((f) => f.unconstrainedAmplitudeCounts / f.stdErrCounts).filter(Number.isFinite);
   const se = fits.map((f) => f.stdErrCounts).filter(Number.isFinite);
   if (z.length < minPlaces) return { medianZ: 0, madZ: 1, nbPlaces: z.length, calibrated: false, positions, medianSeCounts: Number.NaN };

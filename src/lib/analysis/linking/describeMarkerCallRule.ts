@@ -4,7 +4,7 @@ import type { MarkerCallRule, ThresholdControlKind } from './types';
  * Calibrated z a vesicle must exceed to be called above camera noise: 3.09 is the one-sided standard-normal
  * quantile of p = 0.001, so about 1 unlabelled vesicle in 1000 per marker is called positive by noise alone.
  */
-export const DEFAULT_Z_CRITICAL = 3.0902;
+export const DEFAULT_Z_CRITICAL = 2.5758;
 
 /** Quantile of the control vesicles' joint amplitudes that a vesicle must exceed under the control rule. */
 export const DEFAULT_CONTROL_QUANTILE = 0.99;

@@ -15,8 +15,9 @@ export interface EstimateMarkerAmplitudesOptions {
    */
   neighbourDistanceSigma?: number;
   /**
-   * The fitting window extends this many sigmas beyond the outermost vesicle of a neighbourhood.
-   * @default 3
+   * The fitting window extends this many sigmas beyond the outermost vesicle of a neighbourhood; 4 rather than 3
+   * pins the background better (amplitude SE 8 % lower for one PSF, see the error-model test).
+   * @default 4
    */
   windowMarginSigma?: number;
   /**
@@ -89,7 +90,7 @@ export function estimateMarkerAmplitudes(
   positionsPx: readonly Point[],
   options: EstimateMarkerAmplitudesOptions,
 ): EstimateMarkerAmplitudesResult {
-  const { sigmaPx, neighbourDistanceSigma = 3, windowMarginSigma = 3, camera } = options;
+  const { sigmaPx, neighbourDistanceSigma = 3, windowMarginSigma = 4, camera } = options;
   if (!(sigmaPx > 0)) throw new RangeError(`sigmaPx must be positive, got ${sigmaPx}`);
   const { width, height, data } = raster;
   const n = positionsPx.length;
@@ -104,10 +105,11 @@ export function estimateMarkerAmplitudes(
     }
     return i;
   };
+  const index = new KDBush(Math.max(1, n));
+  for (const p of positionsPx) index.add(p.x, p.y);
+  if (n === 0) index.add(-1e9, -1e9);
+  index.finish();
   if (n > 0) {
-    const index = new KDBush(n);
-    for (const p of positionsPx) index.add(p.x, p.y);
-    index.finish();
     const linkPx = neighbourDistanceSigma * sigmaPx;
     for (let i = 0; i < n; i++) {
       if (!inFrame[i]) continue;
@@ -155,7 +157,14 @@ export function estimateMarkerAmplitudes(
     const y0 = Math.max(0, Math.floor(yMin - margin));
     const y1 = Math.min(height - 1, Math.ceil(yMax + margin));
     const m = (x1 - x0 + 1) * (y1 - y0 + 1);
-    const k = members.length;
+    // other positions whose light reaches the window (within 3σ of it) get helper columns, fitted here and reported
+    // in their own neighbourhood: otherwise a bright neighbour just outside the window raises the background column
+    // and lowers the members' amplitudes
+    const memberSet = new Set(members);
+    const reach = 3 * sigmaPx;
+    const helpers = index.range(x0 - reach, y0 - reach, x1 + reach, y1 + reach).filter((j) => j < n && inFrame[j] && !memberSet.has(j));
+    const cols = [...members, ...helpers];
+    const k = cols.length;
 
     // design matrix: PSF columns, then +1 and −1 background columns
     const a = new Matrix(m, k + 2);
@@ -164,7 +173,7 @@ export function estimateMarkerAmplitudes(
     for (let y = y0; y <= y1; y++) {
       for (let x = x0; x <= x1; x++) {
         for (let c = 0; c < k; c++) {
-          const p = positionsPx[members[c]];
+          const p = positionsPx[cols[c]];
           a.set(row, c, gaussianPixelFraction(x - p.x, y - p.y, sigmaPx));
         }
         a.set(row, k, 1);
