@@ -1,4 +1,5 @@
 import { useEffect, useState, type FormEvent } from 'react';
+import { roleName } from '../../lib/auth/roleNames';
 
 interface Person { id: string; email: string; name: string; role: string; active: boolean; pendingInvitation: boolean }
 const ROLES = ['biologist', 'analyst', 'collaborator', 'admin'] as const;
@@ -39,7 +40,7 @@ export default function PeopleAdmin() {
         <div><label className="field-label" htmlFor="inv-name">Name</label><input className="input" id="inv-name" name="name" required /></div>
         <div><label className="field-label" htmlFor="inv-email">E-mail</label><input className="input" id="inv-email" name="email" type="email" required /></div>
         <div><label className="field-label" htmlFor="inv-role">Role</label>
-          <select className="input" id="inv-role" name="role">{ROLES.map((r) => <option key={r} value={r}>{r}</option>)}</select></div>
+          <select className="input" id="inv-role" name="role">{ROLES.map((r) => <option key={r} value={r}>{roleName(r)}</option>)}</select></div>
         <button className="btn" type="submit">Send invitation</button>
       </form>
       {msg && <p className={`notice ${msg.ok ? 'notice-ok' : 'notice-error'}`} role="status">{msg.text}</p>}
@@ -51,7 +52,7 @@ export default function PeopleAdmin() {
               <td>{p.name}</td><td>{p.email}</td>
               <td>
                 <select aria-label={`Role of ${p.email}`} className="input" value={p.role} onChange={(e) => changeRole(p.id, e.target.value)}>
-                  {ROLES.map((r) => <option key={r} value={r}>{r}</option>)}
+                  {ROLES.map((r) => <option key={r} value={r}>{roleName(r)}</option>)}
                 </select>
               </td>
               <td>{!p.active ? 'deactivated' : p.pendingInvitation ? 'invited' : 'active'}</td>

@@ -161,7 +161,7 @@ export function misevChecklist(input: ChecklistInput): ChecklistItem[] {
   });
 
   items.push({
-    id: 'counts', title: 'Counts per sample (n vesicles, n positive) with 95% CI', source: 'Newcombe 1998, Stat Med 17:857–872 (a field this product proposes)',
+    id: 'counts', title: 'Numbers of vesicles per sample (all and positive) with 95% CI', source: 'Newcombe 1998, Stat Med 17:857–872 (a field this product proposes)',
     status: input.releasedSamples === 0 ? 'missing' : input.releasedSamples === nS ? 'recorded' : 'partial',
     detail: `Released for ${input.releasedSamples} of ${nS} sample(s), each with Wilson 95% intervals.`,
   });

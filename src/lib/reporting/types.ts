@@ -45,7 +45,7 @@ export interface MarkerFraction extends ClusteredEstimate {
 export interface PhenotypeCount extends ClusteredEstimate {
   /** marker_bits: bit i set = panel channel i positive. */
   readonly bits: number;
-  /** e.g. "CD9+ CD63− CD81+". */
+  /** e.g. "CD9+ CD63- CD81+" (phenotypeLabel). */
   readonly label: string;
 }
 

@@ -11,7 +11,7 @@ export function HistogramPlot({ histogram, xLabel, label }: { histogram: Histogr
       height: 220,
       marginLeft: 50,
       x: { label: xLabel },
-      y: { label: 'vesicles (count)', grid: true },
+      y: { label: 'number of vesicles', grid: true },
       marks: [Plot.rectY(bins, { x1: 'x1', x2: 'x2', y: 'n', fill: '#5b4fc4', insetLeft: 0.5, insetRight: 0.5 }), Plot.ruleY([0])],
     });
   }, [histogram, xLabel]);

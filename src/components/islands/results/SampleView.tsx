@@ -21,7 +21,7 @@ export function SampleView({ r }: { r: SampleResults }) {
           {' '}(IQR {nm(r.diameter.q1Nm)}–{nm(r.diameter.q3Nm)}), median height {nm(r.height.medianNm)}.
         </p>
         <table className="data-table mt-3 w-full text-sm" data-testid="marker-table">
-          <thead><tr><th>Marker</th><th>Positive (count)</th><th>Measured in this channel (count)</th><th>Positive</th><th>95% interval over fields</th><th>Between-field SD</th><th>ICC</th><th>Design effect</th></tr></thead>
+          <thead><tr><th>Marker</th><th>Number positive</th><th>Number measured in this channel</th><th>Positive</th><th>95% interval over fields</th><th>Between-field SD</th><th>ICC</th><th>Design effect</th></tr></thead>
           <tbody>
             {r.markers.map((m) => (
               <tr key={m.channelIndex}>
@@ -39,7 +39,7 @@ export function SampleView({ r }: { r: SampleResults }) {
       <section className="card">
         <h2>Phenotype combinations</h2>
         <table className="data-table mt-3 w-full text-sm">
-          <thead><tr><th>Phenotype</th><th>Vesicles (count)</th><th>Share of {r.phenotyped} measured in every channel</th><th>95% interval over fields</th><th>Between-field SD</th></tr></thead>
+          <thead><tr><th>Phenotype</th><th>Number of vesicles</th><th>Share of {r.phenotyped} measured in every channel</th><th>95% interval over fields</th><th>Between-field SD</th></tr></thead>
           <tbody>
             {r.phenotypes.map((p) => (
               <tr key={p.bits}><td>{p.label}</td><td>{p.count}</td><td>{pct(p.fraction)}</td><td>{ci(p.lower, p.upper)}</td><td>{sd(p.betweenFieldSd)}</td></tr>
@@ -67,7 +67,7 @@ export function SampleView({ r }: { r: SampleResults }) {
         <h2>Fields (quality control)</h2>
         <table className="data-table mt-3 w-full text-sm" data-testid="field-table">
           <thead>
-            <tr><th>Field</th><th>Status</th><th>Vesicles (count)</th>{r.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ / measured (%)</th>)}<th>FRE</th><th>Fiducials (count)</th><th>AFM pixel</th></tr>
+            <tr><th>Field</th><th>Status</th><th>Number of vesicles</th>{r.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ / measured (%)</th>)}<th>FRE</th><th>Number of fiducials</th><th>AFM pixel</th></tr>
           </thead>
           <tbody>
             {r.fields.map((f) => (

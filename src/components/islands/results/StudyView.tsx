@@ -73,7 +73,7 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
               <table className="data-table w-full text-sm" data-testid="sample-fractions">
                 <thead>
                   <tr>
-                    <th>Sample</th><th>Group</th><th>Release</th><th>Fields</th><th>Vesicles (count)</th>
+                    <th>Sample</th><th>Group</th><th>Release</th><th>Fields</th><th>Number of vesicles</th>
                     {data.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ (positive / measured, %, 95% interval over fields; design effect)</th>)}
                     <th>Median diameter</th><th>Median height</th>
                   </tr>

@@ -60,7 +60,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   } = input;
   const cameraOffsetCounts = options.cameraOffsetCounts ?? givenCamera.offsetCounts ?? 0;
   validateInput(input);
-  // z_crit per marker (calibrated z of the camera-noise test); 3.09 = one-sided p < 0.001
+  // z_crit per marker (calibrated z of the camera-noise test); 2.576 = one-sided p < 0.005
   const positivityKByMarker = options.positivityKByMarker ?? {};
   for (const [m, k] of Object.entries(positivityKByMarker)) {
     if (!(k > 0) || !Number.isFinite(k)) throw new RangeError(`positivityKByMarker.${m} must be a positive finite number, got ${k}`);
@@ -163,7 +163,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     dimSpotsByMarker[m] = detectSpots(bg.corrected, { sigmaPx, thresholdK: dimSpotThresholdK, background: bg.background, refine: 'centroid' })
       .spots.filter((s) => !detected(s)).map((s) => ({ x: s.x, y: s.y }));
     const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[m], ...dimSpotsByMarker[m]];
-    const nullZ = calibrateNullZ(c.raster, avoid, { sigmaPx, camera: cameraByMarker[m].camera });
+    const nullZ = calibrateNullZ(c.raster, avoid, {
+      sigmaPx, camera: cameraByMarker[m].camera, sourcesPx: [...fiducialsFl, ...spotsByMarker[m], ...dimSpotsByMarker[m]],
+    });
     nullByMarker[m] = nullZ;
     const nullCalibration = { medianZ: nullZ.medianZ, madZ: nullZ.madZ, nbPlaces: nullZ.nbPlaces, calibrated: nullZ.calibrated };
     const zCritical = positivityKByMarker[m] ?? DEFAULT_Z_CRITICAL;

@@ -44,7 +44,7 @@ describe('buildSampleResults', () => {
   it('phenotype shares are of the vesicles measured in every channel, commonest first', () => {
     expect(r.phenotyped).toBe(180);
     expect(r.phenotypes.map((p) => [p.label, p.count, p.total])).toEqual([
-      ['CD9− CD63−', 70, 180], ['CD9+ CD63−', 40, 180], ['CD9− CD63+', 35, 180], ['CD9+ CD63+', 35, 180],
+      ['CD9- CD63-', 70, 180], ['CD9+ CD63-', 40, 180], ['CD9- CD63+', 35, 180], ['CD9+ CD63+', 35, 180],
     ]);
   });
   it('histograms: below, bins and above; quartiles as read', () => {
