@@ -1,5 +1,5 @@
 import { useEffect, useState, type FormEvent } from 'react';
-import { roleName } from '../../lib/auth/roleNames';
+import { roleName } from '../../lib/pages/roleNames';
 
 interface Person { id: string; email: string; name: string; role: string; active: boolean; pendingInvitation: boolean }
 const ROLES = ['biologist', 'analyst', 'collaborator', 'admin'] as const;
