@@ -18,8 +18,8 @@ const BUNDLES = {
   worker: { entry: 'scripts/worker.ts', packagesExternal: true },
 };
 
-/** Files loaded by path at run time, copied beside the bundles (decodeInWorker starts a thread on this file). */
-const COPIED = ['src/lib/imaging/decodeWorker.mjs'];
+/** Entries started by path at run time, built beside every bundle (decodeInWorker starts its threads on decodeThread.mjs). */
+const THREAD_ENTRIES = ['src/lib/imaging/decodeThread.ts'];
 
 /** Build one bundle and its metafile (the list of inputs, for the staleness check). */
 export async function buildBundle(name) {
@@ -29,8 +29,9 @@ export async function buildBundle(name) {
   await mkdir(OUT_DIR, { recursive: true });
   const result = await build({
     absWorkingDir: root,
-    entryPoints: [spec.entry],
-    outfile: join(OUT_DIR, `${name}.mjs`),
+    entryPoints: { [name]: spec.entry, ...Object.fromEntries(THREAD_ENTRIES.map((e) => [e.split('/').pop().replace(/\.ts$/, ''), e])) },
+    outdir: OUT_DIR,
+    outExtension: { '.js': '.mjs' },
     bundle: true,
     platform: 'node',
     format: 'esm',
@@ -48,7 +49,6 @@ export async function buildBundle(name) {
     ...result.outputFiles.map((o) => ({ path: o.path, bytes: o.contents })),
     { path: join(OUT_DIR, `${name}.meta.json`), bytes: JSON.stringify(result.metafile) },
   ];
-  for (const file of COPIED) written.push({ path: join(OUT_DIR, file.split('/').pop()), bytes: await readFile(join(root, file)) });
   for (const { path, bytes } of written) {
     const temporary = `${path}.${process.pid}.tmp`;
     await writeFile(temporary, bytes);
@@ -66,7 +66,7 @@ export async function isStale(name) {
   } catch {
     return true;
   }
-  const sources = [...Object.keys(meta.inputs).filter((p) => !p.includes('node_modules/')), 'package-lock.json', ...COPIED];
+  const sources = [...Object.keys(meta.inputs).filter((p) => !p.includes('node_modules/')), 'package-lock.json'];
   const times = await Promise.all(sources.map((p) => stat(join(root, p)).then((s) => s.mtimeMs, () => Infinity)));
   return times.some((t) => t > built);
 }

@@ -14,7 +14,8 @@ import {
 import type { Raster } from '../../src/lib/analysis/types';
 import { writeCsv, RESEARCH_USE_COMMENT } from '../../src/lib/csv';
 // the decoder itself, not the imaging barrel: that one also loads sharp for the tile pyramids, which costs start-up
-import { decodeTiff, ImagingError } from '../../src/lib/imaging/decodeWorker.mjs';
+import { decodeTiff } from '../../src/lib/imaging/decodeTiff';
+import { ImagingError } from '../../src/lib/imaging/errors';
 import type { DecodedTiff } from '../../src/lib/imaging/types';
 
 /** A problem with the command line or the input files that the user can fix: exit code 2. */

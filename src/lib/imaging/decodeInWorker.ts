@@ -1,8 +1,16 @@
 import { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
-import {
-  ImagingError, type DecodedTiff, type ImagingErrorCode, type TiffLimits,
-} from './decodeWorker.mjs';
+import { createHash } from 'node:crypto';
+import { existsSync, mkdirSync, renameSync, writeFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { ImagingError } from './errors';
+import type { DecodedTiff, TiffLimits } from './tiffTypes';
+import type { DecodeReply } from './decodeThread';
+
+/** Must equal DECODE_THREAD_KIND of decodeThread.ts (not imported: that module is the thread's, not ours). */
+const DECODE_THREAD_KIND = 'heightlight-tiff-decode/2';
 
 export interface DecodeInWorkerOptions {
   /** Wall-clock budget for the whole decode (ms); the worker is terminated when it runs over. @default 5000 */
@@ -10,39 +18,39 @@ export interface DecodeInWorkerOptions {
   /** V8 old-generation heap of the worker (MiB); typed-array pixel buffers are limited by `limits` instead. @default 512 */
   maxHeapMb?: number;
   /**
-   * Location of decodeWorker.mjs. Pass it when a bundler moves the file.
-   * @default new URL('./decodeWorker.mjs', import.meta.url)
+   * The thread's entry, built JavaScript (decodeThread.ts compiled). Pass it when a bundler moves the file.
+   * @default decodeThread.mjs beside a bundle; built on first use when running from the TypeScript sources
    */
   workerUrl?: URL;
 }
 
-interface WorkerReply {
-  id: number;
-  ok: boolean;
-  result?: DecodedTiff;
-  code?: ImagingErrorCode;
-  message?: string;
-  details?: Record<string, unknown>;
+/**
+ * The thread's entry as JavaScript. Beside a bundle (scripts/build-cli.mjs) it is the decodeThread.mjs built with
+ * it. Running from the TypeScript sources (tsx, vitest), a worker thread has no TypeScript loader, so esbuild (a
+ * development dependency) builds decodeThread.ts once per process into node_modules/.cache, where its packages
+ * resolve as from the sources; the file name carries a hash of the build, so processes never overwrite each other's.
+ */
+let builtThreadUrl: URL | undefined;
+function defaultThreadUrl(): URL {
+  if (!import.meta.url.endsWith('.ts')) return new URL('./decodeThread.mjs', import.meta.url);
+  if (builtThreadUrl) return builtThreadUrl;
+  const require = createRequire(import.meta.url);
+  const esbuild = require('esbuild') as typeof import('esbuild');
+  const entry = fileURLToPath(new URL('./decodeThread.ts', import.meta.url));
+  const out = esbuild.buildSync({
+    entryPoints: [entry], bundle: true, platform: 'node', format: 'esm', target: 'node20', packages: 'external', write: false, logLevel: 'silent',
+  }).outputFiles[0].contents;
+  const dir = join(dirname(require.resolve('esbuild/package.json')), '..', '.cache', 'heightlight');
+  const file = join(dir, `decodeThread-${createHash('sha256').update(out).digest('hex').slice(0, 16)}.mjs`);
+  if (!existsSync(file)) {
+    mkdirSync(dir, { recursive: true });
+    const temporary = `${file}.${process.pid}.tmp`;
+    writeFileSync(temporary, out);
+    renameSync(temporary, file);
+  }
+  builtThreadUrl = pathToFileURL(file);
+  return builtThreadUrl;
 }
-
-// The worker's loop. decodeWorker.mjs answers one request per thread (its own entry point checks a
-// different workerData marker, so importing it here does nothing by itself); this loop answers any
-// number, one at a time, so that the ~0.2 s spent starting a thread and loading geotiff is paid once
-// per thread instead of once per file.
-const LOOP_SOURCE = `
-const { parentPort, workerData } = require('node:worker_threads');
-import(workerData.url).then(({ decodeTiff, ImagingError }) => {
-  parentPort.on('message', async ({ id, bytes, limits }) => {
-    try {
-      const result = await decodeTiff(bytes, limits);
-      parentPort.postMessage({ id, ok: true, result }, result.pages.map((p) => p.data.buffer));
-    } catch (err) {
-      const e = err instanceof ImagingError ? err : { code: 'corrupt', message: undefined, details: { cause: String(err) } };
-      parentPort.postMessage({ id, ok: false, code: e.code, message: e.message, details: e.details });
-    }
-  });
-});
-`;
 
 /** Idle threads kept per (worker file, heap limit); more run at once when callers overlap. */
 const MAX_IDLE_PER_KIND = Math.max(1, availableParallelism());
@@ -95,9 +103,8 @@ function settle(t: DecoderThread, fn: (p: Pending) => void): void {
 }
 
 function startThread(kind: string, workerUrl: URL, maxHeapMb: number): DecoderThread {
-  const worker = new Worker(LOOP_SOURCE, {
-    eval: true,
-    workerData: { url: workerUrl.href },
+  const worker = new Worker(workerUrl, {
+    workerData: { kind: DECODE_THREAD_KIND },
     resourceLimits: {
       maxOldGenerationSizeMb: maxHeapMb,
       maxYoungGenerationSizeMb: Math.min(64, Math.max(8, Math.floor(maxHeapMb / 8))),
@@ -107,7 +114,7 @@ function startThread(kind: string, workerUrl: URL, maxHeapMb: number): DecoderTh
   const t: DecoderThread = { kind, worker, pending: null, idleTimer: null, dead: false };
   started++;
   live.add(t);
-  worker.on('message', (reply: WorkerReply) => {
+  worker.on('message', (reply: DecodeReply) => {
     if (t.pending?.id !== reply.id) return; // a late answer to a request that already timed out
     settle(t, (p) => {
       if (reply.ok && reply.result) p.resolve(reply.result);
@@ -183,7 +190,7 @@ export function decodeInWorker(
   limits: TiffLimits = {},
   options: DecodeInWorkerOptions = {},
 ): Promise<DecodedTiff> {
-  const { timeoutMs = 5000, maxHeapMb = 512, workerUrl = new URL('./decodeWorker.mjs', import.meta.url) } = options;
+  const { timeoutMs = 5000, maxHeapMb = 512, workerUrl = defaultThreadUrl() } = options;
   const copy = bytes instanceof Uint8Array ? bytes.slice() : new Uint8Array(bytes.slice(0));
 
   return new Promise<DecodedTiff>((resolve, reject) => {

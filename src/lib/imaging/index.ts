@@ -1,5 +1,6 @@
 // Image-file layer: TIFF inspection/decoding (in process or sandboxed), a TIFF writer, colour mapping and Deep Zoom tiles.
-export { inspectTiff, decodeTiff, DEFAULT_LIMITS } from './decodeWorker.mjs';
+export { inspectTiff, DEFAULT_LIMITS } from './inspectTiff';
+export { decodeTiff } from './decodeTiff';
 export { ImagingError } from './errors';
 export { decodeInWorker } from './decodeInWorker';
 export { writeTiff } from './writeTiff';

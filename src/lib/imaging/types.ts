@@ -1,6 +1,6 @@
 export type {
   TiffLimits, TiffMetadata, TiffPageInfo, DecodedPage, DecodedTiff, SampleFormat,
-} from './decodeWorker.mjs';
+} from './tiffTypes';
 export type { TiffPageInput, WriteTiffOptions } from './writeTiff';
 export type { Raster, ColourMapOptions, ColourMapResult, ColourBarStop } from './colourMapHeight';
 export type { ContrastResult } from './contrastFromPercentiles';

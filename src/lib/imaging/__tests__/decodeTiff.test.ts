@@ -1,6 +1,7 @@
 import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
-import { decodeTiff, inspectTiff } from '../decodeWorker.mjs';
+import { decodeTiff } from '../decodeTiff';
+import { inspectTiff } from '../inspectTiff';
 import { lzwEncode, writeTiff, type WriteTiffOptions } from '../writeTiff';
 import { entry, setInline, view } from './tiffBytes';
 

@@ -5,7 +5,9 @@
 import { describe, expect, it } from 'vitest';
 import { decodeInWorker, decodeThreadStats } from '../decodeInWorker';
 import { JOB_DECODE_OPTIONS, jobDecodeLimits } from '../../jobs/decodeStoredFile';
-import { decodeTiff, ImagingError, inspectTiff } from '../decodeWorker.mjs';
+import { decodeTiff } from '../decodeTiff';
+import { ImagingError } from '../errors';
+import { inspectTiff } from '../inspectTiff';
 import { baseFiles, mutate, prng } from './fuzzCases';
 
 const NB_CASES = Number(process.env.FUZZ_CASES ?? 5000);

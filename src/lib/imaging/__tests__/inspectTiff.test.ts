@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { decodeTiff, ImagingError, inspectTiff } from '../decodeWorker.mjs';
+import { decodeTiff } from '../decodeTiff';
+import { ImagingError } from '../errors';
+import { inspectTiff } from '../inspectTiff';
 import { writeTiff } from '../writeTiff';
 import { entry, ifdOffsets, nextPointerAt, setInline, view } from './tiffBytes';
 
