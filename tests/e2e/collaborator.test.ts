@@ -76,6 +76,12 @@ describe('collaborator results in Chromium', () => {
     await page.getByLabel('Group A').selectOption('patient');
     await page.getByLabel('Group B').selectOption('healthy control');
     await page.getByTestId('comparison-table').getByText('CD9', { exact: true }).waitFor();
+    // the samples (donors) per group stand above the table; the method is stated; nothing tests vesicles
+    const perGroup = await page.getByTestId('samples-per-group').textContent();
+    expect(perGroup).toMatch(/patient: \d+ samples?/);
+    expect(perGroup).toMatch(/healthy control: \d+ samples?/);
+    expect(await page.getByTestId('method').textContent()).toContain('empirical logits');
+    expect(await page.getByTestId('pooled-table').textContent()).not.toMatch(/p\b|Fisher|chi-square/);
     // the dot-and-interval plot is an SVG drawn in the browser
     await page.getByRole('img', { name: /Marker-positive fraction per sample/ }).locator('svg').first().waitFor();
     expect(await page.getByTestId('checklist').textContent()).toContain('Separation (isolation) method');
@@ -84,7 +90,8 @@ describe('collaborator results in Chromium', () => {
     const [cmp] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download comparison CSV' }).click()]);
     const cmpText = readFileSync((await cmp.path())!, 'utf8');
     expect(cmpText.split('\r\n')[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
-    expect(cmpText).toContain('difference,patient - healthy control,,CD9,');
+    expect(cmpText).toMatch(/^comparison_marker,patient - healthy control,,CD9,\d+,\d+,/m);
+    expect(cmpText).toContain('# The sample (donor) is the unit');
 
     await page.goto(`${APP_URL}/results`);
     await page.getByRole('link', { name: 'HCP-001' }).click();

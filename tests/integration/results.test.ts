@@ -7,8 +7,12 @@ import { createDb, type Db } from '../../src/lib/db/client';
 import { AppClient, signedIn } from '../support/client';
 import { DEMO, DEMO_PASSWORD, ROLES, type DemoRole } from '../support/demo';
 import { summariseLinkRun, SIZE_BINS_PER_NM } from '../../src/lib/db/queries/linkRunSummaries';
-import { getSampleContext, getSampleResults, getCurrentLinkRunIds, getStudyComparison, MAX_RANK_SAMPLE } from '../../src/lib/db/queries/results';
-import { mannWhitneyU } from '../../src/lib/analysis/stats';
+import { getSampleContext, getCurrentLinkRunIds, getPanel } from '../../src/lib/db/queries/sampleSelection';
+import { getSampleResults } from '../../src/lib/db/queries/sampleResults';
+import { getComparisonRows } from '../../src/lib/db/queries/comparisonInput';
+import { buildStudyComparison } from '../../src/lib/reporting/buildStudyComparison';
+import { clusteredProportion, compareSampleMedians, welchTTest } from '../../src/lib/analysis/stats';
+import { vesicleCsvColumns } from '../../src/lib/analysis/pipeline';
 
 const clients = {} as Record<DemoRole, AppClient>;
 let db: Db;
@@ -145,7 +149,7 @@ describe('release', () => {
 });
 
 describe('released results', () => {
-  it('counts and Wilson intervals match values computed independently', async () => {
+  it('counts and intervals over fields match values computed independently', async () => {
     const res = await results(clients.collaborator, sampleIds.s1);
     expect(res.status).toBe(200);
     const r = await res.json();
@@ -155,17 +159,25 @@ describe('released results', () => {
     expect(r.fieldsAnalysed).toBe(2);
     const expected = [0, 1, 2].map((bit) => S1_ROWS.filter((v) => v.bits & (1 << bit)).length);
     expect(r.markers.map((m: { marker: string; count: number }) => [m.marker, m.count])).toEqual([['CD9', expected[0]], ['CD63', expected[1]], ['CD81', expected[2]]]);
-    // 81/263 → 0.2553–0.3662: Newcombe 1998a (Stat Med 17:857), Table I, method 3 (docs/references.md §7); 4 decimals as printed
     expect(expected[0]).toBe(81);
-    expect(r.markers[0].lower).toBeCloseTo(0.2553, 4);
-    expect(r.markers[0].upper).toBeCloseTo(0.3662, 4);
-    // the other markers against the formula written out in this test (tolerance: float rounding only)
-    for (const i of [1, 2]) {
-      const w = wilson(expected[i], 263);
+    // all 81 CD9+ lie in F1 (81 of 150) and none in F2 (0 of 113): the interval accounts for that spread between
+    // fields (Wilson on Kish's effective count), so it is much wider than the pooled Wilson interval 0.2553–0.3662
+    // (Newcombe 1998a, Table I; docs/references.md §7) that treats the 263 vesicles as independent
+    const perField = (bit: number) => [S1_ROWS.slice(0, 150), S1_ROWS.slice(150)].map((rows) => ({ positive: rows.filter((v) => v.bits & bit).length, total: rows.length }));
+    expect(r.fields.map((f: { positives: number[]; measured: number[] }) => [f.positives[0], f.measured[0]])).toEqual([[81, 150], [0, 113]]);
+    expect(r.markers[0].designEffect).toBeGreaterThan(10);
+    expect(r.markers[0].lower).toBeLessThan(0.2553 - 0.05);
+    expect(r.markers[0].upper).toBeGreaterThan(0.3662 + 0.05);
+    for (const i of [0, 1, 2]) {
+      const c = clusteredProportion(perField(1 << i));
       expect(r.markers[i].fraction).toBeCloseTo(expected[i] / 263, 12);
-      expect(r.markers[i].lower).toBeCloseTo(w.lower, 10);
-      expect(r.markers[i].upper).toBeCloseTo(w.upper, 10);
+      expect([r.markers[i].lower, r.markers[i].upper, r.markers[i].designEffect]).toEqual([c.lower, c.upper, c.designEffect]);
     }
+    // CD63 (every other vesicle) is spread evenly over the fields: no clustering, the plain Wilson interval
+    expect(r.markers[1].designEffect).toBe(1);
+    const w = wilson(expected[1], 263);
+    expect(r.markers[1].lower).toBeCloseTo(w.lower, 10);
+    expect(r.markers[1].upper).toBeCloseTo(w.upper, 10);
     // phenotype combinations
     const combos = new Map<number, number>();
     for (const v of S1_ROWS) combos.set(v.bits, (combos.get(v.bits) ?? 0) + 1);
@@ -192,15 +204,21 @@ describe('released results', () => {
     expect(lines[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
     const cd9 = lines.find((l) => l.includes(',marker_positive,CD9,'))!.split(',');
     expect(cd9.slice(0, 7)).toEqual([`RT1-${run}`, GROUP_A, '1', 'marker_positive', 'CD9', '263', '81']);
-    expect(Number(cd9[8])).toBeCloseTo(0.2553, 4); // Newcombe 1998a, Table I (as above)
-    expect(Number(cd9[9])).toBeCloseTo(0.3662, 4);
+    // the interval over fields, as the page shows it (see 'counts and intervals' above)
+    const c = clusteredProportion([{ positive: 81, total: 150 }, { positive: 0, total: 113 }]);
+    expect(Number(cd9[8])).toBeCloseTo(c.lower!, 12);
+    expect(Number(cd9[9])).toBeCloseTo(c.upper!, 12);
+    expect(Number(cd9[10])).toBeCloseTo(c.designEffect, 12);
     const ves = await clients.collaborator.fetch(`/api/samples/${sampleIds.s1}/vesicles.csv`);
     expect(ves.headers.get('content-type')).toContain('text/csv');
     const vl = (await ves.text()).trim().split('\r\n');
     expect(vl[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
-    expect(vl[1]).toBe('sample_code,field_id,link_run_id,vesicle_index,height_nm,diameter_nm,area_nm2,volume_nm3,CD9_intensity,CD63_intensity,CD81_intensity,CD9,CD63,CD81');
+    // the one per-vesicle column set (docs/vesicle-columns.md), then the sample, field and link run
+    const header = vl[1].split(',');
+    expect(header).toEqual(vesicleCsvColumns(['CD9', 'CD63', 'CD81'], ['sample_code', 'field_id', 'link_run_id']));
     expect(vl).toHaveLength(2 + 263);
-    expect(vl.slice(2).filter((l) => l.split(',')[11] === '1')).toHaveLength(81);
+    expect(vl.slice(2).filter((l) => l.split(',')[header.indexOf('CD9_call')] === 'positive')).toHaveLength(81);
+    expect(vl.slice(2).filter((l) => l.split(',')[header.indexOf('CD9_call')] === 'negative')).toHaveLength(263 - 81);
   });
 
   it("a collaborator cannot see another study's sample, even released", async () => {
@@ -237,8 +255,20 @@ describe('released results', () => {
   });
 });
 
+const elogit = (x: number, n: number) => Math.log((x + 0.5) / (n - x + 0.5)); // Cox 1970 §3.2
+const expit = (x: number) => 1 / (1 + Math.exp(-x));
+
+/** A released sample of one field per entry of `fields` ([n, CD81-positive]). */
+async function releasedSample(code: string, group: string, fields: [number, number][]) {
+  const id = await addSample(studyId, `${code}-${run}`, group);
+  sampleIds[code] = id;
+  for (const [k, [n, x]] of fields.entries()) await addField(id, `F${k + 1}`, 'approved', rowsWith(n, x, 4));
+  expect((await clients.analyst.fetch(`/api/samples/${id}/release`, { method: 'POST' })).status).toBe(201);
+  return id;
+}
+
 describe('group comparison', () => {
-  it('compares pooled fractions with Newcombe intervals and lists released samples only', async () => {
+  it('compares samples, not vesicles; lists released samples only; too few samples are not tested', async () => {
     for (const s of [sampleIds.s3, sampleIds.s4]) {
       expect((await clients.analyst.fetch(`/api/samples/${s}/release`, { method: 'POST' })).status).toBe(201);
     }
@@ -252,26 +282,54 @@ describe('group comparison', () => {
     const codes = c.samples.map((s: { code: string }) => s.code);
     expect(codes).toEqual(expect.arrayContaining([`RT1-${run}`, `RT3-${run}`, `RT4-${run}`]));
     expect(codes).not.toContain(`RT5-${run}`);
-    const cd81 = c.markerComparisons.find((m: { marker: string }) => m.marker === 'CD81');
+    expect([c.samplesPerGroup[GROUP_A], c.samplesPerGroup[GROUP_B]]).toEqual([2, 1]);
+    const cd81 = c.comparisons.find((m: { label: string; kind: string }) => m.kind === 'marker' && m.label === 'CD81');
     const f2Cd81 = S1_ROWS.slice(150).filter((v) => v.bits & 4).length;
-    expect([cd81.a.count, cd81.a.total, cd81.b.count, cd81.b.total]).toEqual([56 + f2Cd81, 70 + 153, 48, 80]);
-    expect(cd81.test).toBe('chi_square');
-    expect(cd81.pAdjusted).toBeGreaterThanOrEqual(cd81.pValue);
-    expect(c.sizeComparisons.map((s: { measure: string; nA: number; usedA: number }) => [s.measure, s.nA, s.usedA])).toEqual([['diameter_nm', 223, 223], ['height_nm', 223, 223]]);
+    expect([cd81.nSamplesA, cd81.nSamplesB, cd81.method, cd81.pValue, cd81.ci95, cd81.fewSamples]).toEqual([2, 1, 'not_tested', null, null, true]);
+    // the typical sample: back-transformed mean of the samples' empirical logits
+    expect(cd81.fractionA).toBeCloseTo(expit((elogit(56, 70) + elogit(f2Cd81, 153)) / 2), 12);
+    expect(cd81.fractionB).toBeCloseTo(expit(elogit(48, 80)), 12);
+    // pooled vesicles stay, to look at: counts only, no test, no interval
+    const pooled = c.pooled.find((p: { label: string }) => p.label === 'CD81');
+    expect([pooled.a.count, pooled.a.total, pooled.b.count, pooled.b.total, pooled.a.lower]).toEqual([56 + f2Cd81, 70 + 153, 48, 80, null]);
+    expect(JSON.stringify(c)).not.toMatch(/"test"|fisher|chi_square|mann/i);
   });
 
-  it('reproduces a published Newcombe difference interval for two single-sample groups', async () => {
-    // 56/70 − 48/80: 0.0524 to 0.3339, Newcombe 1998b (Stat Med 17:873), Table II (a), method 10 (docs/references.md §7)
+  it("with 3 samples a group: Welch on the samples' empirical logits, BH over markers and phenotypes, and the CSV says so", async () => {
     await q(`update samples set group_label = $2 where id = $1`, [sampleIds.s1, `rt-none-${run}`]);
+    // A = RT3 (56/70), RT8 (30/60), RT9 (20/50 + 25/50); B = RT4 (48/80), RT6 (40/90), RT7 (10/40): CD81 counts
+    await releasedSample('RT8', GROUP_A, [[60, 30]]);
+    await releasedSample('RT9', GROUP_A, [[50, 20], [50, 25]]);
+    await releasedSample('RT6', GROUP_B, [[90, 40]]);
+    await releasedSample('RT7', GROUP_B, [[40, 10]]);
     const c = await (await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?groupA=${GROUP_A}&groupB=${GROUP_B}`)).json();
-    const cd81 = c.markerComparisons.find((m: { marker: string }) => m.marker === 'CD81');
-    expect([cd81.a.count, cd81.a.total, cd81.b.count, cd81.b.total]).toEqual([56, 70, 48, 80]);
-    expect(cd81.difference).toBeCloseTo(0.2, 12);
-    expect(cd81.differenceLower).toBeCloseTo(0.0524, 4);
-    expect(cd81.differenceUpper).toBeCloseTo(0.3339, 4);
+    const cd81 = c.comparisons.find((m: { label: string; kind: string }) => m.kind === 'marker' && m.label === 'CD81');
+    const w = welchTTest([elogit(56, 70), elogit(30, 60), elogit(45, 100)], [elogit(48, 80), elogit(40, 90), elogit(10, 40)]);
+    expect([cd81.nSamplesA, cd81.nSamplesB, cd81.method, cd81.fewSamples]).toEqual([3, 3, 'welch_logit', false]);
+    expect(cd81.pValue).toBeCloseTo(w.pValue, 12);
+    expect(cd81.df).toBeCloseTo(w.df!, 12);
+    expect(cd81.difference).toBeCloseTo(expit(w.meanA) - expit(w.meanB), 12);
+    expect(cd81.ci95[0] > 0).toBe(cd81.pValue < 0.05);
+    // BH over every outcome tested: 3 markers and the phenotype combinations present
+    const tested = c.comparisons.filter((m: { pValue: number | null }) => m.pValue !== null);
+    expect(tested.length).toBeGreaterThan(3);
+    const rank = [...tested].sort((x: { pValue: number }, y: { pValue: number }) => x.pValue - y.pValue).findIndex((m: { key: string }) => m.key === cd81.key) + 1;
+    expect(cd81.pAdjusted).toBeGreaterThanOrEqual(cd81.pValue);
+    expect(cd81.pAdjusted).toBeLessThanOrEqual(Math.min(1, (tested.length * cd81.pValue) / rank) + 1e-12);
+    // RT9's interval over its two fields (20/50 and 25/50)
+    const rt9 = c.samples.find((s: { code: string }) => s.code === `RT9-${run}`).markers.find((m: { marker: string }) => m.marker === 'CD81');
+    const cl = clusteredProportion([{ positive: 20, total: 50 }, { positive: 25, total: 50 }]);
+    expect([rt9.count, rt9.total, rt9.fields, rt9.lower, rt9.upper]).toEqual([45, 100, 2, cl.lower, cl.upper]);
+
     const csv = await (await clients.collaborator.fetch(`/api/studies/${studyId}/comparison.csv?groupA=${GROUP_A}&groupB=${GROUP_B}`)).text();
-    expect(csv.split('\r\n')[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
-    expect(csv).toContain(`difference,${GROUP_A} - ${GROUP_B},,CD81,150,,0.2`);
+    const lines = csv.split('\r\n');
+    expect(lines[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');
+    expect(lines[1]).toContain(`${GROUP_A}: 3`);
+    expect(csv).toContain('# The sample (donor) is the unit');
+    const row = lines.find((l) => l.startsWith(`comparison_marker,${GROUP_A} - ${GROUP_B},,CD81,3,3,`))!.split(',');
+    expect(Number(row[14])).toBeCloseTo(w.pValue, 12);
+    expect(row[16]).toBe('welch_logit');
+    for (const l of lines.filter((x) => x.startsWith('pooled_descriptive,'))) expect(l.split(',')[14]).toBe('');
   });
 
   it('collaborators cannot ask for unreleased data; a bad query is a 400 with a message', async () => {
@@ -279,6 +337,15 @@ describe('group comparison', () => {
     const bad = await clients.collaborator.fetch(`/api/studies/${studyId}/comparison?groupA=${GROUP_A}`);
     expect(bad.status).toBe(400);
     expect((await bad.json()).message).toContain('groupB');
+  });
+
+  it('the compare page shows samples per group, the method and no vesicle-level test', async () => {
+    const html = await (await clients.collaborator.fetch(`/studies/${studyId}/compare?groupA=${GROUP_A}&groupB=${GROUP_B}`)).text();
+    expect(html).toContain('data-testid="samples-per-group"');
+    // React separates text pieces with empty comments in server-rendered HTML
+    expect(html.replaceAll('<!-- -->', '')).toContain(`${GROUP_A}: 3 samples`);
+    expect(html).toContain('empirical logits');
+    expect(html).not.toMatch(/Fisher|chi-square|Mann–Whitney|Newcombe/);
   });
 });
 
@@ -316,11 +383,11 @@ describe('link run summaries', () => {
     expect(r.fields.map((f) => [f.vesicles, f.positives[0]])).toEqual(fields.map((f) => [f.n, f.p0]));
   });
 
-  it('study comparison of large groups: counts match the vesicles, Mann-Whitney U is exact for the binned values and close to the raw ones', async () => {
-    // two groups of > MAX_RANK_SAMPLE vesicles with non-integer sizes, so the binned path is taken
+  it('study comparison: per-sample counts match the vesicles, per-sample medians come from the fine bins within half a bin', async () => {
+    // four samples of one field each, non-integer sizes, two channels; not released (the lab's preview)
     [{ id: bigStudyId }] = await q<{ id: string }>(`insert into studies (name) values ($1) returning id`, [`Results summaries ${run}`]);
     await q(`insert into marker_channels (study_id, channel_index, marker) values ($1, 0, 'CD9'), ($1, 1, 'CD63')`, [bigStudyId]);
-    const plan: [string, number, number][] = [['BIG-A1', 3100, 0], ['BIG-A2', 2900, 0.37], ['BIG-B1', 5400, 1.9]];
+    const plan: [string, number, number][] = [['BIG-A1', 3100, 0], ['BIG-A2', 2900, 0.37], ['BIG-B1', 2400, 1.9], ['BIG-B2', 3000, 2.3]];
     for (const [code, n, shiftNm] of plan) {
       const sid = await addSample(bigStudyId!, `${code}-${run}`, code.startsWith('BIG-A') ? 'big A' : 'big B');
       sampleIds[code] = sid;
@@ -329,43 +396,33 @@ describe('link run summaries', () => {
       await q(
         `insert into vesicles (link_run_id, field_id, sample_id, index, x_afm_px, y_afm_px, height_nm, mean_height_nm, area_nm2, diameter_nm, volume_nm3, circularity, marker_bits, markers)
          select $1, $2, $3, i, 1, 1, (4 + $5::float8 + ((i * 7.77) % 30))::real, 4, 1000, (50 + 3 * $5::float8 + ((i * 37.31) % 140))::real, 1000, 0.9,
-                (case when i % 3 = 0 then 1 else 0 end) | (case when i % 5 = 0 then 2 else 0 end), '[]'
+                (case when i % 3 = 0 then 1 else 0 end) | (case when i % 5 = 0 then 2 else 0 end), '[{"intensity":1},{"intensity":1}]'
            from generate_series(1, $4::int) i`,
         [lr.id, f.id, sid, n, shiftNm],
       );
       await summariseLinkRun(db, lr.id);
     }
-    const c = await getStudyComparison(db, { id: bigStudyId!, name: 'big' }, 'current', 'big A', 'big B');
-    const direct = await q<{ g: string; n: number; p0: number; p1: number }>(
-      `select s.group_label as g, count(*)::int as n, count(*) filter (where marker_bits & 1 <> 0)::int as p0, count(*) filter (where marker_bits & 2 <> 0)::int as p1
+    const study = { id: bigStudyId!, name: 'big' };
+    const c = buildStudyComparison({ study, source: 'current', panel: await getPanel(db, bigStudyId!), rows: await getComparisonRows(db, bigStudyId!, 'current'), groupA: 'big A', groupB: 'big B' });
+    const direct = await q<{ code: string; n: number; p0: number; p1: number; d: number; h: number }>(
+      `select s.code, count(*)::int as n, count(*) filter (where marker_bits & 1 <> 0)::int as p0, count(*) filter (where marker_bits & 2 <> 0)::int as p1,
+              percentile_cont(0.5) within group (order by diameter_nm) as d, percentile_cont(0.5) within group (order by height_nm) as h
          from vesicles v join samples s on s.id = v.sample_id where s.study_id = $1 group by 1 order by 1`, [bigStudyId]);
-    expect(direct.map((d) => d.n)).toEqual([6000, 5400]);
-    expect(c.markerComparisons.map((m) => [m.a.count, m.a.total, m.b.count, m.b.total]))
-      .toEqual([[direct[0].p0, 6000, direct[1].p0, 5400], [direct[0].p1, 6000, direct[1].p1, 5400]]);
-    expect(6000).toBeGreaterThan(MAX_RANK_SAMPLE);
-
-    for (const s of c.sizeComparisons) {
-      const perNm = SIZE_BINS_PER_NM[s.measure];
-      const vals = await q<{ g: string; v: number; bin: number }>(
-        `select s.group_label as g, v.${s.measure}::float8 as v, round(v.${s.measure}::float8 * ${perNm})::int as bin
-           from vesicles v join samples s on s.id = v.sample_id where s.study_id = $1`, [bigStudyId]);
-      const pick = (g: string, k: 'v' | 'bin') => vals.filter((x) => x.g === g).map((x) => (k === 'v' ? x.v : x.bin / perNm));
-      expect([s.nA, s.usedA, s.nB, s.usedB]).toEqual([6000, 6000, 5400, 5400]);
-      // the binned test equals the reference implementation run on the binned values (same formula, same ties)
-      const onBins = mannWhitneyU(pick('big A', 'bin'), pick('big B', 'bin'), { exact: false });
-      expect(s.uStatistic).toBe(onBins.uStatistic);
-      expect(s.pValue).toBeCloseTo(onBins.pValue, 12);
-      // against the raw values: binning only turns pairs inside one bin into ties (½). Tolerances: U within
-      // 0.1 % of nA·nB and p within 0.01, far below what changes a conclusion at these sample sizes.
-      const raw = mannWhitneyU(pick('big A', 'v'), pick('big B', 'v'), { exact: false });
-      expect(Math.abs(s.uStatistic! - raw.uStatistic) / (6000 * 5400)).toBeLessThan(1e-3);
-      expect(Math.abs(s.pValue! - raw.pValue)).toBeLessThan(0.01);
-      expect(raw.pValue).toBeLessThan(0.05); // the groups do differ: the check is not between two p ≈ 1
-      // medians: of the binned values, so within half a bin of the raw median
-      const sorted = pick('big A', 'v').sort((x, y) => x - y);
-      const rawMedian = (sorted[2999] + sorted[3000]) / 2;
-      expect(Math.abs(s.medianA! - rawMedian)).toBeLessThanOrEqual(0.5 / perNm + 1e-9);
+    expect(direct.map((d) => d.n)).toEqual([3100, 2900, 2400, 3000]);
+    const byCode = (code: string) => c.samples.find((s) => s.code === code)!;
+    for (const d of direct) {
+      const s = byCode(d.code);
+      expect([s.vesicles, s.markers[0].count, s.markers[0].total, s.markers[1].count]).toEqual([d.n, d.p0, d.n, d.p1]);
+      // medians of values rounded to 0.5 nm (diameter) and 0.1 nm (height): within half a bin of the raw median
+      expect(Math.abs(s.medianDiameterNm! - d.d)).toBeLessThanOrEqual(0.5 / SIZE_BINS_PER_NM.diameter_nm + 1e-6);
+      expect(Math.abs(s.medianHeightNm! - d.h)).toBeLessThanOrEqual(0.5 / SIZE_BINS_PER_NM.height_nm + 1e-6);
     }
+    // sizes: the groups' per-sample medians compared (never the 11,400 vesicles)
+    const dm = (g: string) => c.samples.filter((s) => s.groupLabel === g).map((s) => s.medianDiameterNm);
+    const size = c.sizeComparisons.find((x) => x.measure === 'diameter_nm')!;
+    expect([size.nSamplesA, size.nSamplesB]).toEqual([2, 2]);
+    expect(size.pValue).toBe(compareSampleMedians(dm('big A'), dm('big B')).pValue);
+    expect(c.comparisons.every((m) => m.fewSamples)).toBe(true);
   });
 });
 
