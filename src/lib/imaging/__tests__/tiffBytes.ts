@@ -1,5 +1,7 @@
 // Test helpers that edit classic TIFF files written by writeTiff (structure per TIFF 6.0 spec, section 2:
 // 8-byte header, IFD = 2-byte count, 12-byte entries {tag, type, count, value/offset}, 4-byte next offset).
+// The header and entries are read with the inspection's own layout code (../tiffStructure.ts).
+import { ifdLayout, readIfdEntry, readTiffHeader } from '../tiffStructure';
 
 export interface EntryRef {
   /** Byte position of the 12-byte entry. */
@@ -22,7 +24,7 @@ export function ifdOffsets(bytes: Uint8Array): number[] {
   const dv = view(bytes);
   const le = isLittleEndian(bytes);
   const out: number[] = [];
-  let off = dv.getUint32(4, le);
+  let off = readTiffHeader(dv)?.firstIfdOffset ?? 0;
   while (off !== 0 && out.length < 1000) {
     out.push(off);
     const n = dv.getUint16(off, le);
@@ -38,7 +40,8 @@ export function entries(bytes: Uint8Array, ifdIndex = 0): EntryRef[] {
   const n = dv.getUint16(off, le);
   return Array.from({ length: n }, (_, i) => {
     const at = off + 2 + i * 12;
-    return { at, tag: dv.getUint16(at, le), type: dv.getUint16(at + 2, le), count: dv.getUint32(at + 4, le) };
+    const { tag, type, count } = readIfdEntry(dv, at, le, ifdLayout(false));
+    return { at, tag, type, count };
   });
 }
 
