@@ -1,43 +1,51 @@
 /**
- * Positivity thresholds from a study's control samples, in the unit of the quantity that is called:
- * for each marker, mean + k·SD of the control vesicles' joint amplitudes (counts of PSF amplitude;
- * k = 3 by default, common practice). The unconstrained amplitude is used where stored, since the
- * non-negative one is clipped at 0 and would understate the SD; rows linked before it was stored
- * give their non-negative amplitude. Markers with fewer than 10 control values are left out, so the
- * pipeline falls back to amplitudes at empty places of the frame for them.
+ * Specificity thresholds from a study's control samples, in the unit of the quantity that is called (joint
+ * amplitude, counts of PSF amplitude): per marker and per control kind, the 0.99 quantile of the control vesicles'
+ * joint amplitudes (controlQuantileThreshold). Isotype and secondary-only controls set thresholds; buffer-only
+ * controls carry no antibody and never do. When both kinds have enough vesicles the stricter (higher) threshold is
+ * used and both are returned. Markers whose controls have fewer than 100 measured vesicles are left out, so the
+ * pipeline calls them on camera noise alone.
  */
-import { and, eq, ne } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { vesicles, samples, linkRuns } from '../db/schema';
-import { thresholdFromControls } from '../analysis/linking';
+import { controlQuantileThreshold, type ControlKindThreshold, type ThresholdControlKind } from '../analysis/linking';
+
+/** One marker's control threshold: the chosen kind's, with every kind's for display. */
+export interface ControlThreshold {
+  readonly kind: ThresholdControlKind;
+  /** The 0.99 quantile of the chosen kind's control amplitudes (counts). */
+  readonly thresholdCounts: number;
+  readonly nbControls: number;
+  readonly quantile: number;
+  readonly byKind: Partial<Record<ThresholdControlKind, ControlKindThreshold>>;
+}
 
 /**
+ * @param db - the database
+ * @param studyId - the study whose control samples are read
  * @param markers - every marker of the panel in channel order (values are read by channel index)
- * @param k - k of mean + k·SD, one number for every marker or one per marker (markers left out get 3)
- * @returns per marker with at least 10 control values: threshold, mean and SD (counts), number of values and k
+ * @param _k - ignored (kept while callers still pass the k of the older mean + k·SD rule; the threshold is a quantile)
+ * @returns per marker with enough control vesicles: the chosen kind's threshold and every kind's
  */
-export async function controlThresholds(db: Db, studyId: string, markers: string[], k: number | Readonly<Record<string, number>> = 3) {
+export async function controlThresholds(db: Db, studyId: string, markers: string[], _k?: unknown): Promise<Record<string, ControlThreshold>> {
   const rows = await db
-    .select({ markers: vesicles.markers })
+    .select({ markers: vesicles.markers, kind: samples.controlKind })
     .from(vesicles)
     .innerJoin(samples, eq(samples.id, vesicles.sampleId))
     .innerJoin(linkRuns, and(eq(linkRuns.id, vesicles.linkRunId), eq(linkRuns.current, true)))
-    .where(and(eq(samples.studyId, studyId), ne(samples.controlKind, 'none'), eq(vesicles.outOfFrame, false)))
-    .limit(200_000);
-  const out: Record<string, { thresholdCounts: number; meanCounts: number; sdCounts: number; nbControls: number; k: number }> = {};
+    .where(and(eq(samples.studyId, studyId), inArray(samples.controlKind, ['isotype', 'secondary_only'])))
+    .limit(400_000);
+  const out: Record<string, ControlThreshold> = {};
   markers.forEach((m, i) => {
-    const values = rows
-      .map((r) => {
-        const c = r.markers[i] as { amplitude?: number | null; amplitudeUnconstrained?: number | null } | undefined;
-        return c?.amplitudeUnconstrained ?? c?.amplitude;
-      })
-      .filter((v): v is number => Number.isFinite(v));
-    if (values.length < 10) return;
-    const km = typeof k === 'number' ? k : (k[m] ?? 3);
-    const t = thresholdFromControls(values, km);
-    out[m] = { thresholdCounts: t.thresholdCounts, meanCounts: t.meanCounts, sdCounts: t.sdCounts, nbControls: t.nbControls, k: km };
+    const valuesByKind: Record<ThresholdControlKind, number[]> = { isotype: [], secondary_only: [] };
+    for (const r of rows) {
+      // a vesicle outside this channel's frame has no amplitude there (null) and is not a control value
+      const v = (r.markers[i] as { amplitude?: number | null } | undefined)?.amplitude;
+      if (typeof v === 'number' && Number.isFinite(v) && (r.kind === 'isotype' || r.kind === 'secondary_only')) valuesByKind[r.kind].push(v);
+    }
+    const t = controlQuantileThreshold(valuesByKind);
+    if (t.chosen) out[m] = { ...t.chosen, byKind: t.byKind };
   });
   return out;
 }
-
-
