@@ -94,20 +94,27 @@ describe('linking a field', () => {
     const lines = (await res.text()).trim().split('\n');
     expect(lines[0]).toMatch(/^# Research use only/);
     const header = lines[1].split(',');
-    for (const c of ['x_afm_px', 'y_afm_px', 'height_nm', 'diameter_nm', 'volume_nm3', 'CD9_intensity', 'CD9_snr', 'CD9', 'CD63', 'CD81', 'field_id', 'sample_code', 'transform_version']) expect(header).toContain(c);
+    // the one per-vesicle column set (docs/vesicle-columns.md), then the identifiers
+    for (const c of ['x_afm_px', 'y_afm_px', 'height_nm', 'footprint_diameter_nm', 'cap_base_diameter_nm', 'cap_volume_nm3', 'cap_flag', 'split',
+      'CD9_amplitude_counts', 'CD9_amplitude_se_counts', 'CD9_z', 'CD9_q', 'CD9_call', 'CD63_call', 'CD81_call', 'field_id', 'sample_code', 'transform_version']) expect(header).toContain(c);
     const total = (await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}`)).json()).total;
     expect(lines.length - 2).toBe(total);
-    const first = lines[2].split(',');
-    expect(first[header.indexOf('field_id')]).toBe(fieldId);
-    expect(['0', '1', '']).toContain(first[header.indexOf('CD9')]);
-    // the SNR column carries the stored per-marker SNR (2 decimals), not the intensity
-    const snrs = lines.slice(2).map((l) => l.split(',')[header.indexOf('CD9_snr')]).filter((v) => v !== '').map((v) => Number(v) + 0);
-    expect(snrs.length).toBeGreaterThan(0);
-    expect(snrs.every(Number.isFinite)).toBe(true);
-    const page = (await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&pageSize=500`)).json()) as { rows: { markers: { snr: number | null }[] }[] };
-    const stored = page.rows.map((r) => r.markers[0]?.snr).filter((v): v is number => v != null).map((v) => Number(v.toFixed(2)) + 0);
-    expect(stored.length).toBeGreaterThan(0);
-    for (const v of stored) expect(snrs).toContain(v);
+    const cells = lines.slice(2).map((l) => l.split(','));
+    expect(cells[0][header.indexOf('field_id')]).toBe(fieldId);
+    for (const r of cells) expect(['positive', 'negative', 'not_measured']).toContain(r[header.indexOf('CD9_call')]);
+    // the z column carries the stored per-call z (2 decimals), and z = amplitude / SE
+    const page = (await (await analyst.fetch(`/api/vesicles?fieldId=${fieldId}&pageSize=500`)).json()) as { rows: { index: number; markers: { z?: number | null; amplitude: number | null; se?: number | null }[] }[] };
+    const byIndex = new Map(cells.map((r) => [Number(r[header.indexOf('vesicle')]), r]));
+    let compared = 0;
+    for (const row of page.rows) {
+      const m = row.markers[0];
+      if (m?.z == null || m.se == null || m.amplitude == null) continue;
+      const cell = byIndex.get(row.index)!;
+      expect(Number(cell[header.indexOf('CD9_z')])).toBeCloseTo(m.z, 2);
+      expect(m.z).toBeCloseTo(m.amplitude / m.se, 3);
+      compared++;
+    }
+    expect(compared).toBeGreaterThan(10);
   });
 
   it('links with the saved transform: a registration saved as a similarity is used as saved, not refitted as an affine', async () => {
@@ -129,7 +136,10 @@ describe('linking a field', () => {
     expect(run.registrationId).toBe(reg.id);
     expect(run.settings.registrationModel).toBe('similarity');
     expect(run.settings.positivityMeasure).toBe('joint_amplitude');
-    expect(String(run.settings.thresholdMethod)).toMatch(/^CD9: joint NNLS amplitude \(counts of PSF amplitude\) above mean \+ 3 SD of (the )?joint amplitudes/);
+    // without control samples in its study role, the sample's calls are made on camera noise, and the run says so in words
+    const rule = (run.settings.thresholdRule as Record<string, string>).CD9;
+    expect(['camera_noise', 'control']).toContain(rule);
+    expect(String((run.settings.ruleSentence as Record<string, string>).CD9)).toMatch(/noise/);
     const affine = fitAffine(pairs.map((p) => p.afm), pairs.map((p) => p.fl)).flFromAfm;
     const rows = await db.select().from(vesicles).where(eq(vesicles.linkRunId, run.id));
     expect(rows.length).toBeGreaterThan(10);

@@ -58,7 +58,10 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
               </Fragment>
             ))}
           </dl>
-          <p className="text-mica-600 text-xs">Joint amplitude above the threshold: positive. Thresholds are set per marker on the study page.</p>
+          <p className="text-mica-600 text-xs">
+            Under each marker: what &quot;positive&quot; means for it. The counts are the joint amplitude a vesicle needs on a typical
+            background (or the hand-set threshold). Rules, k and the camera noise model are set on the study page.
+          </p>
         </div>
       )}
       {summary && Object.keys(spotsWithoutVesicle).length > 0 && (

@@ -37,6 +37,12 @@ export function fieldHeightMap(field: FieldDetectionSource, height: Raster): { a
   return { afm, settingsUsed };
 }
 
+/** The vesicles and fiducial candidates of a detection as detection.json lists them for review (AFM px, nm). */
+export function detectionLists(afm: AnalyzeHeightMapResult): Pick<FieldDetection, 'vesicles' | 'fiducialCandidates'> {
+  const item = (v: AnalyzeHeightMapResult['vesicles'][number]) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.footprintDiameterNm });
+  return { vesicles: afm.vesicles.map(item), fiducialCandidates: afm.fiducialCandidates.map(item) };
+}
+
 /** Positions agree to this (AFM px): the stored JSON keeps doubles, so equal detections agree exactly; 1e-6 allows for nothing else. */
 const SAME_POSITION_PX = 1e-6;
 
@@ -53,15 +59,15 @@ export function reviewedDetectionMismatch(
   if (reviewed.settings && JSON.stringify(canonical(reviewed.settings)) !== JSON.stringify(canonical(settingsUsed))) {
     return 'the detection settings were changed after the vesicles shown for review were detected';
   }
-  const lists: [string, FieldDetection['vesicles'], AnalyzeHeightMapResult['vesicles']][] = [
-    ['vesicles', reviewed.vesicles, fresh.vesicles],
-    ['fiducial candidates', reviewed.fiducialCandidates, fresh.fiducialCandidates],
+  const lists: [string, string, FieldDetection['vesicles'], AnalyzeHeightMapResult['vesicles']][] = [
+    ['vesicles', 'vesicle', reviewed.vesicles, fresh.vesicles],
+    ['fiducial candidates', 'fiducial candidate', reviewed.fiducialCandidates, fresh.fiducialCandidates],
   ];
-  for (const [what, shown, found] of lists) {
+  for (const [what, one, shown, found] of lists) {
     if (shown.length !== found.length) return `${found.length} ${what} were found where ${shown.length} were shown for review`;
     for (let i = 0; i < shown.length; i++) {
       const d = Math.hypot(shown[i].x - found[i].centroidPx.x, shown[i].y - found[i].centroidPx.y);
-      if (!(d <= SAME_POSITION_PX)) return `${what} ${i + 1} lies ${d.toFixed(2)} px from where it was shown for review`;
+      if (!(d <= SAME_POSITION_PX)) return `${one} ${i + 1} lies ${d.toFixed(2)} px from where it was shown for review`;
     }
   }
   return null;

@@ -17,7 +17,7 @@ import { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from '../analysis/pip
 import { renderHeightLayer, renderChannelLayer, TILE_OVERLAP, TILE_SIZE } from './renderLayers';
 import { setFieldProgress, failField } from './progress';
 import type { FieldDetection } from './detectionTypes';
-import { fieldHeightMap } from './fieldHeightMap';
+import { detectionLists, fieldHeightMap } from './fieldHeightMap';
 
 export interface IngestDeps { db: Db; st: Storage; decodeLimits: DecodeLimits }
 
@@ -73,8 +73,7 @@ export async function ingestField(deps: IngestDeps, fieldId: string) {
       settings: settingsUsed,
       thresholdNm: afm.threshold.thresholdNm,
       backgroundSigmaNm: afm.levelling.backgroundSigmaNm,
-      vesicles: afm.vesicles.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.footprintDiameterNm })),
-      fiducialCandidates: afm.fiducialCandidates.map((v) => ({ x: v.centroidPx.x, y: v.centroidPx.y, heightNm: v.apexHeightNm, diameterNm: v.footprintDiameterNm })),
+      ...detectionLists(afm),
       spots,
     };
     await putBytes(st, detectionKey(fieldId), JSON.stringify(detection), 'application/json');

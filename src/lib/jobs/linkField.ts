@@ -10,7 +10,7 @@ import type { Db } from '../db/client';
 import { fields, fieldFiles, samples, studies, markerChannels, registrations, linkRuns, vesicles, releases, beads, type VesicleMarkerJson } from '../db/schema';
 import type { Storage } from '../storage/client';
 import { decodeStoredFile } from './decodeStoredFile';
-import { analyzeField, fieldStages, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type AnalyzeFieldResult, type FieldStage, type VesicleRecord } from '../analysis/pipeline';
+import { analyzeField, fieldStages, DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE, type AnalyzeFieldResult, type BeadReason, type FieldStage, type VesicleRecord } from '../analysis/pipeline';
 import type { Affine } from '../analysis/types';
 import { summariseLinkRun } from '../db/queries/linkRunSummaries';
 import { setFieldProgress } from './progress';
@@ -136,7 +136,10 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
     // any object under a fiducial pick is a bead, whatever its height: it leaves the vesicles for the bead list
     const picked = underPicks(result, topo.pages[0].width, reg.pairs);
     const released = result.records.filter((r) => !picked.has(r));
-    const beadRows = [...fieldBeads(result), ...[...picked].map((r) => ({
+    // each released vesicle keeps the number it had at review (the pipeline renumbers after taking the beads out)
+    const reviewedIndex = new Map(reviewed.vesicles.map((v, i) => [`${v.x},${v.y}`, i]));
+    const indexOf = (r: VesicleRecord) => reviewedIndex.get(`${r.xAfmPx},${r.yAfmPx}`) ?? r.index;
+    const beadRows = [...fieldBeads(result, markers), ...[...picked].map((r) => ({
       xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: fin(r.xFlPx), yFlPx: fin(r.yFlPx), heightNm: r.heightNm, footprintDiameterNm: r.footprintDiameterNm,
       reason: 'under a fiducial pick', underFiducialPick: true,
       markers: markers.map((m) => ({ amplitude: fin(r.markers[m]?.amplitudeCounts), se: fin(r.markers[m]?.amplitudeSeCounts), z: fin(r.markers[m]?.z) })) as unknown[],
@@ -153,7 +156,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       await tx.update(linkRuns).set({ current: false }).where(eq(linkRuns.fieldId, fieldId));
       const [run] = await tx.insert(linkRuns).values({
         fieldId, registrationId: reg.id, settings, summary: result.summary as unknown as Record<string, unknown>, current: true,
-        channelRegistration: channelRegistrationOf(result),
+        channelRegistration: channelRegistrationOf(result, markers),
       }).returning();
       const rows = released.map((r) => {
         let bits = 0;
@@ -173,7 +176,7 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
           };
         });
         return {
-          linkRunId: run.id, fieldId, sampleId: sample.id, index: r.index, xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: r.xFlPx, yFlPx: r.yFlPx,
+          linkRunId: run.id, fieldId, sampleId: sample.id, index: indexOf(r), xAfmPx: r.xAfmPx, yAfmPx: r.yAfmPx, xFlPx: r.xFlPx, yFlPx: r.yFlPx,
           heightNm: r.heightNm, meanHeightNm: r.meanHeightNm, areaNm2: r.areaNm2, diameterNm: r.footprintDiameterNm, volumeNm3: r.volumeNm3, circularity: r.circularity,
           capRadiusNm: fin(r.cap?.baseRadiusNm), capBaseDiameterNm: r.cap ? fin(2 * r.cap.baseRadiusNm) : null, capHeightNm: fin(r.cap?.heightNm),
           contactAngleDeg: fin(r.cap?.contactAngleDeg), capVolumeNm3: fin(r.cap?.volumeNm3), sphereDiameterNm: fin(r.cap?.volumeEquivalentDiameterNm),
@@ -197,29 +200,34 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
 
 
 
-/**
- * What linking stores of a bead. The pipeline's own bead list is read where it has one (`beads`); otherwise the
- * fiducial candidates (taller than the bead cut-off) are the beads. Beads never become vesicle rows.
- */
-interface BeadLike {
-  xAfmPx?: number; yAfmPx?: number; xFlPx?: number | null; yFlPx?: number | null; centroidPx?: { x: number; y: number };
-  heightNm?: number; apexHeightNm?: number; footprintDiameterNm?: number; reason?: string; underFiducialPick?: boolean;
-  markers?: Record<string, unknown> | unknown[];
+/** Words for why an object is a bead (BeadRecord.reasons), for the field page and the bead export. */
+const BEAD_REASON_WORDS: Record<BeadReason, string> = {
+  height: 'taller than any vesicle of the field',
+  multicolour: 'bright in every channel',
+  fiducial_pick: 'under a fiducial pick',
+};
+
+/** The pipeline's beads as bead rows (without the run id): never vesicles. */
+function fieldBeads(result: AnalyzeFieldResult, markers: readonly string[]) {
+  return result.beads.map((b) => ({
+    xAfmPx: b.xAfmPx, yAfmPx: b.yAfmPx,
+    // the first channel's position (each channel has its own transform; all are in `markers`)
+    xFlPx: fin(b.flPxByMarker[markers[0]]?.x), yFlPx: fin(b.flPxByMarker[markers[0]]?.y),
+    heightNm: b.heightNm, footprintDiameterNm: b.footprintDiameterNm,
+    reason: b.reasons.map((r) => BEAD_REASON_WORDS[r]).join('; '),
+    underFiducialPick: b.reasons.includes('fiducial_pick') || b.pickIndex != null,
+    markers: markers.map((m) => ({ integratedCounts: fin(b.integratedCountsByMarker[m]), xFlPx: fin(b.flPxByMarker[m]?.x), yFlPx: fin(b.flPxByMarker[m]?.y) })) as unknown[],
+  }));
 }
 
-function fieldBeads(result: AnalyzeFieldResult) {
-  const own = (result as unknown as { beads?: readonly BeadLike[] }).beads;
-  const list: BeadLike[] = own ? [...own] : result.fiducialCandidates.map((f, i) => ({
-    centroidPx: f.centroidPx, apexHeightNm: f.apexHeightNm, footprintDiameterNm: f.footprintDiameterNm,
-    xFlPx: result.fiducialsFl[i]?.x ?? null, yFlPx: result.fiducialsFl[i]?.y ?? null, reason: 'taller than the bead cut-off',
-  }));
-  return list.map((b) => ({
-    xAfmPx: b.xAfmPx ?? b.centroidPx?.x ?? NaN, yAfmPx: b.yAfmPx ?? b.centroidPx?.y ?? NaN,
-    xFlPx: fin(b.xFlPx), yFlPx: fin(b.yFlPx),
-    heightNm: b.heightNm ?? b.apexHeightNm ?? NaN, footprintDiameterNm: b.footprintDiameterNm ?? NaN,
-    reason: b.reason ?? 'bead', underFiducialPick: b.underFiducialPick ?? false,
-    markers: (Array.isArray(b.markers) ? b.markers : b.markers ? Object.values(b.markers) : []) as unknown[],
-  }));
+/** Per channel (panel order): offset from the shared transform and PSF width measured on the beads. */
+function channelRegistrationOf(result: AnalyzeFieldResult, markers: readonly string[]): unknown[] | null {
+  const channels = result.summary.registration?.channels;
+  if (!channels) return null;
+  return markers.map((m) => {
+    const c = channels[m];
+    return c ? { marker: m, offsetFlPx: c.offsetFlPx, flFromAfm: c.flFromAfm, psfSigmaPx: fin(c.psfSigmaPx), nbBeads: c.nbBeads, source: c.source, offsetScatterNm: fin(c.offsetScatterNm) } : { marker: m };
+  });
 }
 
 /** AFM px within which a pick names the object whose centroid is nearest when it falls between regions. */
@@ -251,11 +259,4 @@ function underPicks(result: AnalyzeFieldResult, width: number, pairs: readonly {
     if (record) out.add(record);
   }
   return out;
-}
-
-/** Per-channel registration (offsets and PSF widths from the beads) where the pipeline reports it; else null. */
-function channelRegistrationOf(result: AnalyzeFieldResult): unknown[] | null {
-  const r = result as unknown as { channelRegistration?: readonly unknown[]; registration?: { channels?: readonly unknown[] } };
-  const channels = r.channelRegistration ?? r.registration?.channels;
-  return channels ? JSON.parse(JSON.stringify(channels)) : null;
 }

@@ -26,7 +26,7 @@ export function vesicleRecordFromRow(v: StoredVesicle, markers: readonly string[
   markers.forEach((m, i) => {
     const c = v.markers[i];
     // runs linked before calls were stored: the measured bits and the positive bits say it
-    const measured = c?.call ? c.call !== 'not_measured' : (v.measuredBits & (1 << i)) !== 0 && c?.amplitude != null;
+    const measured = c?.call ? c.call !== 'not_measured' : (v.measuredBits & (1 << i)) !== 0;
     calls[m] = {
       intensityCounts: c?.intensity ?? null, intensitySnr: c?.snr ?? null, amplitudeCounts: c?.amplitude ?? null,
       unconstrainedAmplitudeCounts: c?.amplitudeUnconstrained ?? null, amplitudeSeCounts: c?.se ?? null, z: c?.z ?? null,

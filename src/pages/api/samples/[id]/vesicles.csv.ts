@@ -21,14 +21,14 @@ export const GET = handle(async (ctx) => {
   const stream = new ReadableStream<Uint8Array>({
     start(controller) {
       // header names (lab-chosen marker names) and cells go through the formula-escaping writer
-      controller.enqueue(encoder.encode(writeCsv({ comments: [RESEARCH_USE_COMMENT], header: vesicleCsvColumns(markers, ['sample_code', 'field_id', 'link_run_id']), lineEnding: '\n' })));
+      controller.enqueue(encoder.encode(writeCsv({ comments: [RESEARCH_USE_COMMENT], header: vesicleCsvColumns(markers, ['sample_code', 'field_id', 'link_run_id']) })));
     },
     async pull(controller) {
       try {
         const next = await pages.next();
         if (next.done) return controller.close();
         const rows = next.value.map((v) => vesicleCsvCells(vesicleRecordFromRow(v, markers), markers, [sel.sample.code, v.fieldId, v.linkRunId]));
-        controller.enqueue(encoder.encode(writeCsv({ rows, lineEnding: '\n' })));
+        controller.enqueue(encoder.encode(writeCsv({ rows })));
       } catch (err) {
         console.error('[vesicles.csv] stream failed:', err);
         controller.error(err);
