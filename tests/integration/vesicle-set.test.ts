@@ -23,6 +23,8 @@ import { detectionKey } from '../../src/lib/storage/keys';
 const env = process.env as Record<string, string>;
 const scene = correlativeScene(4242);
 const AFM_NM = scene.afmPixelNm;
+// as Astro escapes text in pages
+const escapeHtml = (t: string) => t.replaceAll('&', '&amp;').replaceAll('<', '&lt;').replaceAll('>', '&gt;').replaceAll('"', '&quot;').replaceAll("'", '&#39;');
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 let db: Db;
@@ -177,6 +179,36 @@ describe('one vesicle set from review to release', () => {
     expect(phenotypes.reduce((t, p) => t + p.n, 0)).toBe(rows.length - outside.length);
   });
 
+  it('the field page says what positive means per marker, beside chance, with beads apart; the exports carry the calls', async () => {
+    const run = await currentRun();
+    const rows = await db.select().from(vesicles).where(eq(vesicles.linkRunId, run.id));
+    const runBeads = await db.select().from(beads).where(eq(beads.linkRunId, run.id));
+    const counts = await db.select().from(linkRunMarkerCounts).where(eq(linkRunMarkerCounts.linkRunId, run.id)).orderBy(linkRunMarkerCounts.channelIndex);
+    const html = await (await analyst.fetch(`/fields/${fieldId}`)).text();
+    expect(html).toContain('Research use only');
+    const calls = html.slice(html.indexOf('data-testid="marker-calls"'), html.indexOf('data-testid="beads"'));
+    const sentences = run.settings.ruleSentence as Record<string, string>;
+    for (const [i, m] of ['CD9', 'CD63', 'CD81'].entries()) {
+      expect(calls).toContain(escapeHtml(sentences[m]));
+      expect(calls).toContain(`${counts[i].nPositive} / ${counts[i].nMeasured}`);
+    }
+    expect(calls).toMatch(/By chance/);
+    const beadSection = html.slice(html.indexOf('data-testid="beads"'));
+    expect(beadSection.match(/under a fiducial pick/g)?.length ?? 0).toBeGreaterThanOrEqual(scene.pickBeadIndices.length);
+
+    // beads export apart; the vesicle export has one row per released vesicle with amplitude, SE, z, q and the call
+    const beadCsv = (await (await analyst.fetch(`/api/fields/${fieldId}/beads.csv`)).text()).trim().split('\n');
+    expect(beadCsv[0]).toMatch(/^# Research use only/);
+    expect(beadCsv.length - 3).toBe(runBeads.length);
+    const ves = (await (await analyst.fetch(`/api/vesicles/export.csv?fieldId=${fieldId}`)).text()).trim().split('\n');
+    const header = ves[1].split(',');
+    for (const c of ['CD63_amplitude_counts', 'CD63_amplitude_se_counts', 'CD63_z', 'CD63_q', 'CD63_call', 'cap_base_diameter_nm', 'footprint_diameter_nm']) expect(header).toContain(c);
+    const body = ves.slice(2).map((l) => l.split(','));
+    expect(body).toHaveLength(rows.length);
+    expect(body.filter((r) => r[header.indexOf('CD63_call')] === 'positive')).toHaveLength(counts[1].nPositive);
+    expect(body.filter((r) => r[header.indexOf('CD63_call')] === 'not_measured')).toHaveLength(rows.length - counts[1].nMeasured);
+  });
+
   it('refuses to link a detection that is not the one reviewed, and says what to do', async () => {
     const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', forcePathStyle: true });
     const f = await row();
@@ -198,5 +230,29 @@ describe('one vesicle set from review to release', () => {
     const runs = await db.select().from(linkRuns).where(eq(linkRuns.fieldId, fieldId));
     expect(runs.map((r) => r.id)).toEqual([runBefore.id]);
     await putBytes(st, detectionKey(fieldId), original, 'application/json');
+  }, 660_000);
+
+  it("links with the study's camera model once an analyst sets it; bad values are refused and change nothing", async () => {
+    const [sample] = await db.select().from(samples).where(eq(samples.id, sampleId));
+    const url = `/api/studies/${sample.studyId}/camera`;
+    const before = await (await analyst.fetch(url)).json();
+    for (const camera of [{ offsetCounts: -5, gainCountsPerPhoton: 1.8, readNoiseCounts: 2 }, { offsetCounts: 100, gainCountsPerPhoton: 0, readNoiseCounts: 2 }, { offsetCounts: 100, gainCountsPerPhoton: 1.8 }]) {
+      const r = await analyst.json(url, 'PUT', { camera });
+      expect(r.status).toBe(400);
+      expect((await r.json()).message).toMatch(/^Check /);
+    }
+    expect((await biologist.json(url, 'PUT', { camera: null })).status).toBe(403);
+    expect(await (await analyst.fetch(url)).json()).toEqual(before);
+    // the scene's camera (makeCorrelativeScene defaults: offset 100 counts, gain 1.8 counts/photon, read noise 2 counts)
+    const put = await analyst.json(url, 'PUT', { camera: scene.camera });
+    expect(put.status, await put.clone().text()).toBe(200);
+    try {
+      expect(await link()).toBe('linked');
+      const run = await currentRun();
+      const used = (run.settings.camera as Record<string, { model: unknown; source: string }>).CD9;
+      expect(used).toEqual({ model: scene.camera, source: 'given', note: expect.anything() });
+    } finally {
+      await analyst.json(url, 'PUT', { camera: null });
+    }
   }, 660_000);
 });

@@ -1,4 +1,4 @@
-import { pgTable, pgEnum, uuid, text, timestamp, integer, real, date, primaryKey, index, unique } from 'drizzle-orm/pg-core';
+import { pgTable, pgEnum, uuid, text, timestamp, integer, real, doublePrecision, date, primaryKey, index, unique } from 'drizzle-orm/pg-core';
 import { users } from './users';
 
 export const memberRoleEnum = pgEnum('member_role', ['biologist', 'analyst', 'collaborator']);
@@ -15,9 +15,10 @@ export const studies = pgTable('studies', {
    * offset + gain·N ± read noise. Set by an analyst from the camera's data sheet or a photon-transfer
    * measurement; all three null = not set (linking then estimates what the frames allow).
    */
-  cameraOffsetCounts: real(),
-  cameraGainCountsPerPhoton: real(),
-  cameraReadNoiseCounts: real(),
+  // double precision: values typed by a person come back as typed (a 4-byte real turns 1.8 into 1.7999999523)
+  cameraOffsetCounts: doublePrecision(),
+  cameraGainCountsPerPhoton: doublePrecision(),
+  cameraReadNoiseCounts: doublePrecision(),
 });
 
 export const studyMembers = pgTable(
