@@ -10,6 +10,7 @@ import { loadSession, renewedSessionCookie } from './lib/auth/session';
 import { requestContext } from './lib/http/requestContext';
 import { installPeerAddressGuard, requestClientAddress } from './lib/http/peerAddress';
 import { isSameOriginRequest } from './lib/http/sameOrigin';
+import { contentSecurityPolicy, inlineScriptSources } from './lib/http/contentSecurityPolicy';
 import { config } from './lib/config';
 
 installPeerAddressGuard(config().TRUSTED_PROXIES);
@@ -17,6 +18,16 @@ installPeerAddressGuard(config().TRUSTED_PROXIES);
 const PUBLIC_PAGES = ['/signin', '/invite/', '/reset', '/favicon.svg', '/_astro/', '/api/auth/', '/api/invitations/', '/api/password-reset'];
 
 const isPublic = (path: string) => PUBLIC_PAGES.some((p) => path === p || path.startsWith(p));
+
+/** An HTML page's policy names the hashes of the inline scripts it carries (the page is read whole for that). */
+async function withPageScriptHashes(res: Response): Promise<Response> {
+  if (!(res.headers.get('content-type') ?? '').includes('text/html') || !res.body) return res;
+  const html = await res.text();
+  const out = new Response(html, { status: res.status, statusText: res.statusText, headers: res.headers });
+  out.headers.set('Content-Security-Policy', contentSecurityPolicy(config().S3_PUBLIC_ENDPOINT ?? config().S3_ENDPOINT, inlineScriptSources(html)));
+  out.headers.delete('content-length');
+  return out;
+}
 
 /** Replies that may be cached: the hashed build assets and the icon; everything else is private to its user. */
 const isCacheable = (path: string) => path.startsWith('/_astro/') || path === '/favicon.svg';
@@ -34,23 +45,7 @@ function securityHeaders(original: Response, path = '') {
   h.set('Referrer-Policy', 'same-origin');
   h.set('X-Frame-Options', 'DENY');
   if (!isCacheable(path) && !h.has('cache-control')) h.set('Cache-Control', 'private, no-store');
-  h.set(
-    'Content-Security-Policy',
-    [
-      "default-src 'self'",
-      // Astro's island loader is an inline script; no third-party script is ever loaded.
-      "script-src 'self' 'unsafe-inline'",
-      "style-src 'self' 'unsafe-inline'",
-      "img-src 'self' data: blob:",
-      "font-src 'self'",
-      // Presigned uploads go straight from the browser to the object store.
-      `connect-src 'self' ${config().S3_PUBLIC_ENDPOINT ?? config().S3_ENDPOINT}`,
-      "object-src 'none'",
-      "base-uri 'self'",
-      "form-action 'self'",
-      "frame-ancestors 'none'",
-    ].join('; '),
-  );
+  h.set('Content-Security-Policy', contentSecurityPolicy(config().S3_PUBLIC_ENDPOINT ?? config().S3_ENDPOINT));
   return res;
 }
 
@@ -90,7 +85,7 @@ export const onRequest = defineMiddleware(async (ctx, next) => {
     /* not available for prerendered routes */
   }
   const ip = requestClientAddress(ctx.request, astroAddress);
-  const res = securityHeaders(await requestContext.run({ ip }, () => next()), path);
+  const res = await withPageScriptHashes(securityHeaders(await requestContext.run({ ip }, () => next()), path));
   // Auth.js's own routes set or clear the session cookie themselves (sign-out must not be undone)
   if (expiresAtMs !== null && !path.startsWith('/api/auth/')) {
     const renewed = await renewedSessionCookie(ctx.request, expiresAtMs);

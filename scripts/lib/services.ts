@@ -9,7 +9,10 @@ import type { Embedded } from './env';
 
 export async function startServices(s: Embedded, log: (m: string) => void) {
   const pg = startPostgres({ dataDir: join(s.dataDir, 'postgres'), port: s.pgPort, user: 'heightlight', password: 'heightlight', database: 'heightlight', log });
-  const s3 = await startS3({ port: s.s3Port, directory: join(s.dataDir, 's3'), bucket: s.env.S3_BUCKET, appOrigin: s.env.PUBLIC_URL });
+  const s3 = await startS3({
+    port: s.s3Port, directory: join(s.dataDir, 's3'), bucket: s.env.S3_BUCKET, appOrigin: s.env.PUBLIC_URL,
+    credentials: { accessKeyId: s.env.S3_ACCESS_KEY_ID, secretAccessKey: s.env.S3_SECRET_ACCESS_KEY, region: s.env.S3_REGION ?? 'us-east-1' },
+  });
   const smtp = await startSmtpSink({ port: s.smtpPort, directory: s.env.MAIL_SINK_DIR });
   log(`PostgreSQL 127.0.0.1:${s.pgPort} · S3 fake ${s.env.S3_ENDPOINT} · SMTP sink 127.0.0.1:${s.smtpPort}`);
   const db = createDb(s.env.DATABASE_URL, 2);

@@ -56,6 +56,10 @@ describe('Content-Security-Policy in Chromium', () => {
       const res = await page.goto(`${APP_URL}${path}`, { waitUntil: 'networkidle' });
       expect(res?.status(), path).toBe(200);
       expect(res?.headers()['content-security-policy']).toContain("frame-ancestors 'none'");
+      // scripts: self and the hashes of the page's own inline scripts, never 'unsafe-inline' (docs/security.md)
+      const scriptSrc = res!.headers()['content-security-policy'].split(';').find((d) => d.trim().startsWith('script-src'))!;
+      expect(scriptSrc, path).not.toContain("'unsafe-inline'");
+      expect(scriptSrc, path).toMatch(/'sha256-[A-Za-z0-9+/]+=*'/);
     }
     // the viewer drew its tiles (canvas or images from the tile route)
     await page.goto(`${APP_URL}/fields/${fieldId}`, { waitUntil: 'networkidle' });

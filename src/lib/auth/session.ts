@@ -29,6 +29,11 @@ export function appAccessCache(db: Db): AccessCache | null {
   return g.__heightlightAccess;
 }
 
+/** Makes this web process forget what it remembers of a person (their row changed: role, active flag, session version). */
+export function forgetUserAccess(userId: string): void {
+  g.__heightlightAccess?.forget({ userId });
+}
+
 /** A session lasts this long after the last request that renewed it (s). */
 export const SESSION_MAX_AGE_S = 12 * 60 * 60;
 /** A session cookie is renewed once it is this old (ms), so an active user stays signed in. */

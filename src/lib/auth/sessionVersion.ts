@@ -6,6 +6,7 @@
 import { eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { users } from '../db/schema';
+import { forgetUserAccess } from './session';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
@@ -17,6 +18,8 @@ type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
  */
 export async function endAllSessions(db: Db | Tx, userId: string): Promise<void> {
   await db.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1` }).where(eq(users.id, userId));
+  // this process's next request must not use the remembered row (other processes hear the users trigger)
+  forgetUserAccess(userId);
 }
 
 /** The current session version of `userId` (0 for an unknown id). */

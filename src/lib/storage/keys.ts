@@ -15,6 +15,14 @@ export function stagingKey(userId: string, uploadId: string): string {
   return `staging/${userId}/${uploadId}.tif`;
 }
 
+/**
+ * The copy of a staged file made when it is first inspected: what was inspected is what a field gets. No
+ * presigned URL names this key (each is bound to its own key), so only the app writes it.
+ */
+export function inspectedKey(userId: string, uploadId: string): string {
+  return stagingKey(userId, uploadId).replace(/\.tif$/, '.inspected.tif');
+}
+
 /** Where a confirmed raw file of a field lives. */
 export function rawFileKey(fieldId: string, fileId: string): string {
   checkId(fieldId, 'fieldId');

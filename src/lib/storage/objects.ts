@@ -6,9 +6,19 @@ import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import type { Readable } from 'node:stream';
 import type { Storage } from './client';
 
-/** A presigned PUT the browser uses to send a file straight to the bucket (the server never holds it). */
-export function presignPut(st: Storage, key: string, sizeBytes: number, expiresInS = 3600) {
-  return getSignedUrl(st.s3, new PutObjectCommand({ Bucket: st.bucket, Key: key, ContentLength: sizeBytes, ContentType: 'image/tiff' }), { expiresIn: expiresInS });
+/** How long a presigned upload URL can be started (s): minutes, not an hour. */
+export const PRESIGNED_PUT_TTL_S = 10 * 60;
+
+/**
+ * A presigned PUT the browser uses to send a file straight to the bucket (the server never holds it). The
+ * signature covers the key, the exact size and the content type (the presigner leaves content-type unsigned
+ * unless asked), so the URL cannot send another size, type or key.
+ */
+export function presignPut(st: Storage, key: string, sizeBytes: number, expiresInS = PRESIGNED_PUT_TTL_S) {
+  return getSignedUrl(st.s3, new PutObjectCommand({ Bucket: st.bucket, Key: key, ContentLength: sizeBytes, ContentType: 'image/tiff' }), {
+    expiresIn: expiresInS,
+    signableHeaders: new Set(['content-length', 'content-type']),
+  });
 }
 
 /** Size of an object, or null when it does not exist. */

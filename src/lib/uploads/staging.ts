@@ -1,11 +1,12 @@
 /**
- * Staged uploads: the browser PUTs a file to a server-made key under staging/<user>/, the server
- * inspects it, and only a confirmed field moves it under fields/. A rejected file is deleted at once.
+ * Staged uploads: the browser PUTs a file to a server-made key under staging/<user>/ (a presigned URL bound to
+ * that key, size and type, valid minutes), the server copies it to a key only the app writes and inspects that
+ * copy, and only a confirmed field moves the copy under fields/. A rejected file is deleted at once.
  */
 import { randomUUID } from 'node:crypto';
 import type { Storage } from '../storage/client';
-import { stagingKey } from '../storage/keys';
-import { getRange, headSize, deleteObject, presignPut } from '../storage/objects';
+import { inspectedKey, stagingKey } from '../storage/keys';
+import { copyObject, getRange, headSize, deleteObject, presignPut } from '../storage/objects';
 import { sparseTiffBytes } from './sparseTiffBytes';
 import { inspectTiff, ImagingError, type TiffMetadata } from '../imaging';
 import { HttpError } from '../http/errors';
@@ -23,13 +24,28 @@ export async function createStagedUpload(st: Storage, userId: string, sizeBytes:
 }
 
 /**
- * Reads a staged file's TIFF structure (no pixel decoding, no pixel bytes fetched). A bad file is deleted and answered with
- * 422 and a message for the person who uploaded it; a missing one with 404.
+ * Reads a staged file's TIFF structure (no pixel decoding, no pixel bytes fetched). The first inspection copies the
+ * staged object to its inspected key and removes the staged one, so replacing the upload after it was inspected
+ * changes nothing; later inspections (the field confirmation) read that copy. A bad file is deleted and answered
+ * with 422 and a message for the person who uploaded it; a missing one with 404.
  */
 export async function inspectStagedUpload(st: Storage, userId: string, uploadId: string, limits: UploadLimits): Promise<{ reply: InspectReply; meta: TiffMetadata; key: string }> {
-  const key = stagingKey(userId, uploadId);
-  const size = await headSize(st, key);
-  if (size === null) throw new HttpError(404, 'upload_missing', 'That upload was not found: the transfer may not have finished. Upload the file again.');
+  const key = inspectedKey(userId, uploadId);
+  let size = await headSize(st, key);
+  // a staged object beside an inspected copy was sent again through a still-valid URL after the inspection: drop it
+  if (size !== null) await deleteObject(st, stagingKey(userId, uploadId));
+  if (size === null) {
+    const staged = stagingKey(userId, uploadId);
+    const stagedSize = await headSize(st, staged);
+    if (stagedSize === null) throw new HttpError(404, 'upload_missing', 'That upload was not found: the transfer may not have finished. Upload the file again.');
+    if (stagedSize > limits.maxUploadBytes) {
+      await deleteObject(st, staged);
+      throw new HttpError(413, 'too_large', 'The file is larger than the upload limit.');
+    }
+    await copyObject(st, staged, key);
+    await deleteObject(st, staged);
+    size = (await headSize(st, key)) ?? 0;
+  }
   if (size > limits.maxUploadBytes) {
     await deleteObject(st, key);
     throw new HttpError(413, 'too_large', 'The file is larger than the upload limit.');
