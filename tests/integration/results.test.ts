@@ -345,7 +345,10 @@ describe('group comparison', () => {
     // React separates text pieces with empty comments in server-rendered HTML
     expect(html.replaceAll('<!-- -->', '')).toContain(`${GROUP_A}: 3 samples`);
     expect(html).toContain('empirical logits');
-    expect(html).not.toMatch(/Fisher|chi-square|Mann–Whitney|Newcombe/);
+    // the comparison (not the reporting checklist below it, which cites its sources) names no vesicle-level test
+    const comparison = html.slice(html.indexOf('Compare two groups'), html.indexOf('data-testid="checklist"'));
+    expect(comparison).toContain('pooled-table');
+    expect(comparison).not.toMatch(/Fisher|chi-square|Mann–Whitney|Newcombe/);
   });
 });
 
