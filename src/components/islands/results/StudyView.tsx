@@ -74,7 +74,7 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
                 <thead>
                   <tr>
                     <th>Sample</th><th>Group</th><th>Release</th><th>Fields</th><th>Number of vesicles</th>
-                    {data.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ (positive / measured, %, 95% interval over fields; design effect)</th>)}
+                    {data.panel.map((c) => <th key={c.channelIndex}>{c.marker}+ / measured, % (95% interval; DE)</th>)}
                     <th>Median diameter</th><th>Median height</th>
                   </tr>
                 </thead>
@@ -132,7 +132,7 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
               <strong>{data.groupB || '(no group)'}: {nB} sample{nB === 1 ? '' : 's'}</strong>
               <span className="text-sm text-mica-600"> (each sample, not each vesicle, is one observation)</span>
             </p>
-            {few && <p className="notice notice-caution text-sm mt-2" role="status" data-testid="few-samples">Fewer than 3 samples in a group: {COMPARISON_METHOD.fewSamples} Add samples before drawing conclusions.</p>}
+            {few && <p className="notice notice-caution text-sm mt-2" role="status" data-testid="few-samples">{COMPARISON_METHOD.fewSamples} Add samples before drawing conclusions.</p>}
             <div className="overflow-x-auto">
               <table className="data-table mt-3 w-full text-sm" data-testid="comparison-table">{outcomeHead('Marker')}<tbody>{outcomeRows(markers)}</tbody></table>
             </div>
