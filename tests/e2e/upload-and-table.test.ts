@@ -88,22 +88,24 @@ describe('vesicle table in Chromium', () => {
     const heights = await page.locator('[data-testid="vesicle-table"] tbody tr td:nth-child(2)').allTextContents();
     expect(heights.length).toBeGreaterThan(0);
     for (const h of heights) expect(Number(h)).toBeGreaterThanOrEqual(20);
-    // each marker's SNR column follows its counts column; SNR is dimensionless, so its header carries no unit
+    // each marker's z column (amplitude / SE: dimensionless, so no unit) follows its amplitude column, then its q
     const headers = (await page.locator('[data-testid="vesicle-table"] thead th').allTextContents()).map((t) => t.replace(/ [▲▼]$/, ''));
-    const snrCol = headers.findIndex((t) => / SNR$/.test(t));
-    expect(snrCol).toBeGreaterThan(0);
-    expect(headers[snrCol - 1]).toBe(`${headers[snrCol].replace(/ SNR$/, '')} (counts)`);
-    const snrs = await page.locator(`[data-testid="vesicle-table"] tbody tr td:nth-child(${snrCol + 1})`).allTextContents();
-    expect(snrs).toHaveLength(heights.length);
-    expect(snrs.some((v) => Number.isFinite(Number(v)) && v !== '')).toBe(true);
-    for (const v of snrs) expect(v === '–' || /^-?\d+\.\d$/.test(v)).toBe(true);
+    const zCol = headers.findIndex((t) => / z$/.test(t));
+    expect(zCol).toBeGreaterThan(0);
+    const marker = headers[zCol].replace(/ z$/, '');
+    expect(headers[zCol - 1]).toBe(`${marker} amplitude (counts)`);
+    expect(headers[zCol + 1]).toBe(`${marker} q`);
+    const zs = await page.locator(`[data-testid="vesicle-table"] tbody tr td:nth-child(${zCol + 1})`).allTextContents();
+    expect(zs).toHaveLength(heights.length);
+    expect(zs.some((v) => Number.isFinite(Number(v)) && v !== '')).toBe(true);
+    for (const v of zs) expect(v === '–' || /^-?\d+\.\d$/.test(v)).toBe(true);
     await screenshot(page, 'vesicle-table-filtered');
 
     const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download CSV' }).click()]);
     const text = readFileSync((await download.path())!, 'utf8').trim().split('\n');
     expect(text[0]).toMatch(/^# Research use only/);
     expect(text[1]).toContain('height_nm');
-    expect(text[1].split(',')).toContain(`${headers[snrCol].replace(/ SNR$/, '')}_snr`);
+    expect(text[1].split(',')).toEqual(expect.arrayContaining([`${marker}_z`, `${marker}_q`, `${marker}_call`, `${marker}_amplitude_se_counts`]));
     const hi = text[1].split(',').indexOf('height_nm');
     expect(text.length - 2).toBe(heights.length > 0 ? Number((await count.textContent())!.match(/· ([\d,]+) vesicles/)![1].replace(/,/g, '')) : 0);
     for (const line of text.slice(2)) expect(Number(line.split(',')[hi])).toBeGreaterThanOrEqual(20);
