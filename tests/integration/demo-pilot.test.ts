@@ -140,4 +140,40 @@ describe('the seeded demo pilot', () => {
     expect(cd63.difference).toBeGreaterThan(0.1);
     expect(cd63.pValue).toBeLessThan(0.05);
   });
+
+  it('carries the research-use caution on every result reply, export and page a collaborator or analyst opens', async () => {
+    const analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+    const sample = sampleRows.find((s) => s.code === 'PDAC-01')!;
+    const field = fieldOf('PDAC-01', PILOT_FIELD_NAMES[0]);
+    const q = new URLSearchParams({ groupA: 'pancreatic cancer', groupB: 'healthy control' });
+    const json = [
+      [collaborator, `/api/samples/${sample.id}/results`], [collaborator, `/api/studies/${studyId}/comparison?${q}`],
+      [analyst, `/api/vesicles?sampleId=${sample.id}`], [analyst, `/api/vesicles?fieldId=${field.id}`],
+    ] as const;
+    for (const [who, path] of json) {
+      const r = await who.fetch(path);
+      expect(r.status, path).toBe(200);
+      expect((await r.json()).caution, path).toBe(RESEARCH_USE_NOTICE);
+    }
+    const csv = [
+      [collaborator, `/api/samples/${sample.id}/results.csv`], [collaborator, `/api/studies/${studyId}/comparison.csv?${q}`],
+      [analyst, `/api/samples/${sample.id}/vesicles.csv`], [analyst, `/api/vesicles/export.csv?sampleId=${sample.id}`],
+    ] as const;
+    for (const [who, path] of csv) {
+      const r = await who.fetch(path);
+      expect(r.status, path).toBe(200);
+      expect((await r.text()).split(/\r?\n/)[0], path).toMatch(/^#? ?Research use only\. Not for diagnosis or treatment decisions\./);
+    }
+    const pages = [
+      [collaborator, `/results/${sample.id}`], [collaborator, `/studies/${studyId}/compare`], [collaborator, '/results'],
+      [analyst, `/fields/${field.id}`], [analyst, `/studies/${studyId}`],
+    ] as const;
+    for (const [who, path] of pages) {
+      const r = await who.fetch(path);
+      expect(r.status, path).toBe(200);
+      const html = await r.text();
+      expect(html, path).toContain('data-testid="research-caution"');
+      expect(html, path).toContain('Not for diagnosis or treatment decisions.');
+    }
+  });
 });

@@ -4,15 +4,16 @@ import type { SessionUser } from '../../auth/permissions';
 import type { ResultSource } from '../../reporting/types';
 import { rows } from './rows';
 
-/** Group labels of the samples that have data in `source` (cheap: no vesicle rows read). */
+/** Group labels of the samples that have data in `source`, donors' groups before controls' (cheap: no vesicle rows read). */
 export async function listResultGroups(db: Db, studyId: string, source: ResultSource): Promise<string[]> {
   const r = await rows<{ g: string }>(
     db,
-    `select distinct s.group_label as g from samples s where s.study_id = $1 and exists (${
+    // donors' groups before controls' groups (then by name), so the first two are the ones worth comparing
+    `select s.group_label as g from samples s where s.study_id = $1 and exists (${
       source === 'released'
         ? 'select 1 from releases r where r.sample_id = s.id'
         : 'select 1 from fields f join link_runs lr on lr.field_id = f.id and lr.current where f.sample_id = s.id'
-    }) order by 1`,
+    }) group by s.group_label order by bool_or(s.control_kind <> 'none'), 1`,
     [studyId],
   );
   return r.map((x) => x.g);
