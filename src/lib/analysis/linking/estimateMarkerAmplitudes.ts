@@ -2,7 +2,7 @@ import KDBush from 'kdbush';
 import { Matrix, inverse } from 'ml-matrix';
 import type { Point, Raster } from '../types';
 import { gaussianPixelFraction } from '../fluorescence/gaussianPixelFraction';
-import { solveNnls } from './solveNnls';
+import { solveNnlsNormal } from './solveNnlsNormal';
 import type { CameraModel } from './types';
 
 /** Options of {@link estimateMarkerAmplitudes}. */
@@ -182,8 +182,17 @@ export function estimateMarkerAmplitudes(
         row++;
       }
     }
-    // solve: unweighted first; with a camera model, again with each pixel weighted by 1/variance of its fitted mean
-    let { x: solution, residualNorm } = solveNnls(a, b);
+    // solve on the normal equations (solveNnlsNormal): unweighted first; with a camera model, again with each
+    // pixel weighted by 1/variance of its fitted mean
+    const normal = () => {
+      const at = a.transpose();
+      const bVec = Matrix.columnVector(Array.from(b));
+      let bb = 0;
+      for (let i = 0; i < m; i++) bb += b[i] * b[i];
+      return { g: at.mmul(a), h: at.mmul(bVec).getColumn(0), bb };
+    };
+    let eq = normal();
+    let solution = solveNnlsNormal(eq.g, eq.h).x;
     if (camera) {
       const fitted = a.mmul(Matrix.columnVector(Array.from(solution)));
       const { offsetCounts, gainCountsPerPhoton: g, readNoiseCounts: r } = camera;
@@ -194,22 +203,28 @@ export function estimateMarkerAmplitudes(
         for (let c = 0; c < k + 2; c++) a.set(i, c, a.get(i, c) * w);
         b[i] *= w;
       }
-      ({ x: solution, residualNorm } = solveNnls(a, b));
+      eq = normal();
+      solution = solveNnlsNormal(eq.g, eq.h).x;
     }
     const background = solution[k] - solution[k + 1];
     groupBackgroundCounts.push(background);
 
     // uncertainty from the unconstrained model (PSF columns + one background column); with a camera model the
     // rows are already whitened, so (AᵀWA)⁻¹ is the covariance as it stands
-    const design = a.subMatrixColumn([...Array(k + 1).keys()]);
-    const dof = Math.max(1, m - (k + 1));
-    const sigma2 = camera ? 1 : (residualNorm * residualNorm) / dof;
+    const p = k + 1;
+    const dof = Math.max(1, m - p);
+    // ‖A·x − b‖² = bᵀb − 2·xᵀh + xᵀG·x
+    let rss = eq.bb;
+    for (let r = 0; r < k + 2; r++) {
+      rss -= 2 * solution[r] * eq.h[r];
+      for (let c = 0; c < k + 2; c++) rss += solution[r] * eq.g.get(r, c) * solution[c];
+    }
+    const sigma2 = camera ? 1 : Math.max(0, rss) / dof;
     let covariance: Matrix | undefined;
     let unconstrained: Matrix | undefined;
     try {
-      const designT = design.transpose();
-      const normalInverse = inverse(designT.mmul(design));
-      unconstrained = normalInverse.mmul(designT.mmul(Matrix.columnVector(Array.from(b))));
+      const normalInverse = inverse(eq.g.subMatrix(0, p - 1, 0, p - 1));
+      unconstrained = normalInverse.mmul(Matrix.columnVector(eq.h.slice(0, p)));
       covariance = normalInverse.mul(sigma2);
     } catch {
       covariance = undefined;

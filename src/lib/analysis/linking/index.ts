@@ -12,3 +12,4 @@ export * from './callMarkerAmplitudes';
 export * from './describeMarkerCallRule';
 export * from './controlQuantileThreshold';
 export * from './chanceColocalisation';
+export * from './solveNnlsNormal';

@@ -1,0 +1,90 @@
+import { Matrix, solve } from 'ml-matrix';
+
+/** Result of {@link solveNnlsNormal}. */
+export interface SolveNnlsNormalResult {
+  /** Solution x ≥ 0. */
+  readonly x: Float64Array;
+  /** Outer iterations used. */
+  readonly iterations: number;
+}
+
+/**
+ * Non-negative least squares from the normal equations: minimise ‖A·x − b‖₂ subject to x ≥ 0 given only G = AᵀA and
+ * h = Aᵀb, by the same Lawson–Hanson active-set steps as {@link solveNnls}. Each step solves an n × n system instead
+ * of an m × n QR, which makes the joint photometry of crowded windows (hundreds of pixels, tens of columns) tens of
+ * times faster; the price is the squared condition number, harmless for PSF columns at least a few nm apart.
+ *
+ * @param g - AᵀA, n × n, symmetric positive semi-definite (not modified)
+ * @param h - Aᵀb, length n (not modified)
+ * @param relativeTolerance - dual tolerance relative to max |h| (dimensionless)
+ * @returns the solution and the iterations used
+ * @throws RangeError when h's length differs from G's size
+ * @see Lawson CL, Hanson RJ. Solving Least Squares Problems. Prentice-Hall, 1974, chapter 23 (algorithm NNLS).
+ */
+export function solveNnlsNormal(g: Matrix, h: ArrayLike<number>, relativeTolerance = 1e-10): SolveNnlsNormalResult {
+  const n = g.rows;
+  if (h.length !== n || g.columns !== n) throw new RangeError(`G must be ${h.length} × ${h.length} like h, got ${g.rows} × ${g.columns}`);
+  const x = new Float64Array(n);
+  const passive = new Array<boolean>(n).fill(false);
+  let scale = 0;
+  for (let j = 0; j < n; j++) scale = Math.max(scale, Math.abs(h[j]));
+  const tol = relativeTolerance * Math.max(scale, 1e-300) * n;
+  const solvePassive = (): Float64Array => {
+    const cols = passive.flatMap((p, j) => (p ? [j] : []));
+    const z = new Float64Array(n);
+    if (cols.length === 0) return z;
+    const sub = new Matrix(cols.length, cols.length);
+    const rhs = new Matrix(cols.length, 1);
+    cols.forEach((r, i) => {
+      rhs.set(i, 0, h[r]);
+      cols.forEach((c, j) => sub.set(i, j, g.get(r, c)));
+    });
+    // LU first; SVD (least-norm) when two columns coincide and the passive block is singular
+    let sol: Matrix;
+    try {
+      sol = solve(sub, rhs);
+      if (!sol.to1DArray().every(Number.isFinite)) throw new RangeError('singular');
+    } catch {
+      sol = solve(sub, rhs, true);
+    }
+    cols.forEach((j, k) => (z[j] = sol.get(k, 0)));
+    return z;
+  };
+
+  let iterations = 0;
+  const maxIterations = 3 * n;
+  for (; iterations < maxIterations; iterations++) {
+    // dual w = h − G·x: the variable whose gradient most wants to grow joins the passive set
+    let best = -1;
+    let bestW = tol;
+    for (let j = 0; j < n; j++) {
+      if (passive[j]) continue;
+      let w = h[j];
+      for (let k = 0; k < n; k++) w -= g.get(j, k) * x[k];
+      if (w > bestW) {
+        bestW = w;
+        best = j;
+      }
+    }
+    if (best < 0) break;
+    passive[best] = true;
+    // inner loop: step back towards feasibility while the passive solution has non-positive entries
+    for (let inner = 0; inner < 3 * n; inner++) {
+      const z = solvePassive();
+      let alpha = Infinity;
+      for (let j = 0; j < n; j++) if (passive[j] && z[j] <= 0) alpha = Math.min(alpha, x[j] / (x[j] - z[j]));
+      if (alpha === Infinity) {
+        x.set(z);
+        break;
+      }
+      for (let j = 0; j < n; j++) {
+        x[j] += alpha * (z[j] - x[j]);
+        if (passive[j] && x[j] <= 1e-14 * Math.max(1, Math.abs(z[j]))) {
+          passive[j] = false;
+          x[j] = 0;
+        }
+      }
+    }
+  }
+  return { x, iterations };
+}
