@@ -50,7 +50,7 @@ export const PILOT_SAMPLES: PilotSample[] = [
   healthy(5, 0.25, ['ready', 'linked']),
 ];
 
-export const PILOT_FIELD_NAMES = ['field 1', 'field 2'] as const;
+export const PILOT_FIELD_NAMES = ['grid A1', 'grid B2'] as const;
 
 /** Generator seed of one pilot field (distinct from the small demo study's 11, 31, 51). */
 export const pilotSeed = (sampleIndex: number, fieldIndex: number) => 1000 + 10 * sampleIndex + fieldIndex;

@@ -1,3 +1,4 @@
+import { fieldStatusWord } from '../../../lib/pages/fieldStatusWords';
 import { useState } from 'react';
 import type { SampleResults } from '../../../lib/reporting/types';
 import { HistogramPlot } from './HistogramPlot';
@@ -72,7 +73,7 @@ export function SampleView({ r }: { r: SampleResults }) {
           <tbody>
             {r.fields.map((f) => (
               <tr key={f.fieldId}>
-                <td>{f.name}</td><td>{f.status}</td><td>{f.vesicles}</td>
+                <td>{f.name}</td><td>{fieldStatusWord(f.status)}</td><td>{f.vesicles}</td>
                 {f.positives.map((k, i) => <td key={i} className="tabular-nums">{k} / {f.measured[i]} ({pct(f.measured[i] ? k / f.measured[i] : null)})</td>)}
                 <td>{nm(f.freNm)}</td><td>{f.nbFiducials ?? '–'}</td><td>{f.afmPixelNm === null ? '–' : `${f.afmPixelNm.toFixed(2)} nm/px`}</td>
               </tr>
