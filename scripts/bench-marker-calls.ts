@@ -5,7 +5,7 @@
  * specificity and accuracy, the false-positive rate on unlabelled vesicles and the number of beads among vesicles,
  * per scene kind. A script, not a test: it prints figures (docs/marker-calls.md) and exits 1 when a target is missed.
  *
- *   npm run bench:calls [-- --seeds 1,2,3] [--registration picks|automatic]
+ *   npm run bench:calls [-- --seeds 1,2,3] [--registration picks|automatic] [--psf beads|optics]
  */
 import os from 'node:os';
 import { analyzeField } from '../src/lib/analysis/pipeline';
@@ -15,6 +15,7 @@ import { makeCorrelativeScene, type CorrelativeScene, type MakeCorrelativeSceneO
 interface Tally { tp: number; fn: number; tn: number; fp: number }
 const TARGET_ACCURACY: Record<string, number> = { sparse: 0.98, crowded: 0.95, chromatic: 0.95 };
 const TARGET_UNLABELLED_FP = 0.01;
+const DIM_PHOTONS = 450;
 
 const args = process.argv.slice(2);
 const argValue = (name: string) => {
@@ -64,6 +65,8 @@ for (const [kind, sceneOptions] of Object.entries(kinds)) {
   let missed = 0;
   let nbTruth = 0;
   let ms = 0;
+  // sensitivity by brightness: labels under DIM_PHOTONS sit near the camera-noise limit (z ≈ 3 at 300 photons)
+  const byBrightness = { dim: { tp: 0, n: 0 }, bright: { tp: 0, n: 0 } };
   for (const seed of seeds) {
     const scene = makeCorrelativeScene({ seed, ...sceneOptions });
     const t0 = performance.now();
@@ -84,7 +87,12 @@ for (const [kind, sceneOptions] of Object.entries(kinds)) {
         const call = record.markers[c.marker]?.positive;
         if (call === null || call === undefined || !v.inFrameByMarker[c.marker]) continue;
         const t = (tallies[c.marker] ??= { tp: 0, fn: 0, tn: 0, fp: 0 });
-        if (v.labels[c.marker]) call ? t.tp++ : t.fn++;
+        if (v.labels[c.marker]) {
+          call ? t.tp++ : t.fn++;
+          const b = byBrightness[v.photonsByMarker[c.marker] < DIM_PHOTONS ? 'dim' : 'bright'];
+          b.n++;
+          if (call) b.tp++;
+        }
         else call ? t.fp++ : t.tn++;
         if (unlabelled) {
           unlabelledCalls++;
@@ -112,6 +120,7 @@ for (const [kind, sceneOptions] of Object.entries(kinds)) {
   console.log(`worst-marker accuracy ${worst.toFixed(3)} (target ≥ ${TARGET_ACCURACY[kind]})`);
   console.log(`FP rate on unlabelled vesicles ${(100 * fpRate).toFixed(2)} % of ${unlabelledCalls} calls (target ≤ ${100 * TARGET_UNLABELLED_FP} %)`);
   console.log(`beads among vesicles ${beadsAmongVesicles} (target 0); beads listed ${beadsListed} of ${nbBeadsInField} in the AFM fields`);
+  console.log(`sensitivity for labels < ${DIM_PHOTONS} photons ${(byBrightness.dim.tp / Math.max(1, byBrightness.dim.n)).toFixed(3)} (n = ${byBrightness.dim.n}), ≥ ${DIM_PHOTONS} photons ${(byBrightness.bright.tp / Math.max(1, byBrightness.bright.n)).toFixed(3)} (n = ${byBrightness.bright.n})`);
   console.log(`vesicles detected ${nbTruth - missed} of ${nbTruth}; records matching nothing ${unmatched}`);
   if (worst < TARGET_ACCURACY[kind] || fpRate > TARGET_UNLABELLED_FP || beadsAmongVesicles > 0) failed = true;
 }

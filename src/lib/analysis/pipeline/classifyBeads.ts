@@ -38,6 +38,8 @@ export interface ClassifyBeadsResult {
   readonly heightFenceNm: number | null;
   /** Tukey's inner fence Q3 + 1.5·IQR (nm): candidates for the multicolour test must be taller; null with too few objects. */
   readonly innerFenceNm: number | null;
+  /** Upper quartile of the heights (nm); null with too few objects. */
+  readonly upperQuartileNm: number | null;
   /** Picks that found no object (their index). */
   readonly unmatchedPicks: readonly number[];
 }
@@ -66,11 +68,13 @@ export function classifyBeads(
   const heights = [...objects, ...tallObjects].map((o) => o.apexHeightNm).sort((a, b) => a - b);
   let heightFenceNm: number | null = null;
   let innerFenceNm: number | null = null;
+  let upperQuartileNm: number | null = null;
   if (heights.length >= minObjectsForFence) {
     const q1 = quantile(heights, 0.25);
     const q3 = quantile(heights, 0.75);
     heightFenceNm = Math.max(q3 + fenceIqr * (q3 - q1), minBeadHeightNm);
     innerFenceNm = q3 + 1.5 * (q3 - q1);
+    upperQuartileNm = q3;
   }
   const reasons = new Map<MeasureVesicleResult, BeadReason[]>();
   const pickOf = new Map<MeasureVesicleResult, number>();
@@ -112,6 +116,7 @@ export function classifyBeads(
     beads: all.filter((o) => reasons.has(o)).map((o) => ({ object: o, reasons: reasons.get(o)!, pickIndex: pickOf.get(o) ?? null })),
     heightFenceNm,
     innerFenceNm,
+    upperQuartileNm,
     unmatchedPicks,
   };
 }

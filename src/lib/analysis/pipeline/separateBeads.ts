@@ -28,7 +28,10 @@ export interface SeparateBeadsInput {
 export interface SeparateBeadsOptions {
   /** A pick on background takes the nearest object within this distance (nm). @default 300 */
   pickRadiusNm?: number;
-  /** Bright in every channel: at least this fraction of the known beads' median integrated counts in each. @default 0.25 */
+  /**
+   * Bright in every channel: at least this fraction of the known beads' median integrated counts in each; without
+   * known beads, above Q3 + 3·IQR of the vesicles' own integrated counts in each. @default 0.25
+   */
   multicolourFraction?: number;
   /** Multicolour candidates must be at least this round (4πA/P²). @default 0.7 */
   minCircularity?: number;
@@ -53,8 +56,9 @@ export interface SeparateBeadsResult {
 /**
  * Beads are never vesicles. After the common registration: classify beads by height and fiducial picks
  * ({@link classifyBeads}); refine the transform per channel and measure each channel's PSF on them
- * ({@link estimateChannelRegistration}); then test the remaining tall, round objects and every picked object for
- * light in every channel: an object as bright as the known beads in every channel is a multicolour bead. A pick on
+ * ({@link estimateChannelRegistration}); then test the remaining round objects taller than the upper quartile, and
+ * every picked object, for light in every channel: an object as bright as the known beads in every channel (or,
+ * with no known bead, brighter than the vesicles' far-out fence Q3 + 3·IQR in every channel) is a multicolour bead. A pick on
  * an object that is neither taller than the vesicles nor bright in every channel is still taken out of the vesicles,
  * with a note that it looks like a vesicle.
  *
@@ -73,33 +77,44 @@ export function separateBeads(input: SeparateBeadsInput, options: SeparateBeadsO
   let beads: ClassifiedBead[] = [...split.beads];
   let reg = register(beads);
 
-  // multicolour: as bright as the known (tall) beads in every channel, measured where each channel's transform puts it
+  // multicolour: as bright as the known (tall or picked) beads in every channel, measured where each channel's
+  // transform puts it; without known beads, above the far-out fence of the vesicles' own brightness in every channel
   const reference: Record<string, number | null> = {};
   for (const c of channels) {
     const counts = reg.fitsByMarker[c.marker]
-      .map((f, i) => (f && beads[i].reasons.includes('height') ? f.integratedCounts : null))
+      .map((f, i) => (f && (beads[i].reasons.includes('height') || beads[i].reasons.includes('fiducial_pick')) && f.peakSnr >= MIN_SUBTRACT_SNR ? f.integratedCounts : null))
       .filter((v): v is number => v !== null);
-    reference[c.marker] = counts.length ? median(counts) : null;
+    reference[c.marker] = counts.length >= 2 ? multicolourFraction * median(counts) : null;
   }
+  const brightness = (objects: readonly MeasureVesicleResult[], c: (typeof channels)[number]): number[] =>
+    fitBeadSpots(c.raster, objects.map((o) => applyAffine(reg.channels[c.marker].flFromAfm, o.centroidPx)), { sigmaPx: c.sigmaPx, maxShiftPx: 1.5 })
+      .map((f) => Math.max(0, f?.integratedCounts ?? 0));
+  for (const c of channels) {
+    if (reference[c.marker] !== null || split.vesicles.length < 8) continue;
+    const counts = brightness(split.vesicles, c).sort((p, q) => p - q);
+    const q1 = counts[Math.floor(0.25 * (counts.length - 1))];
+    const q3 = counts[Math.ceil(0.75 * (counts.length - 1))];
+    reference[c.marker] = q3 + 3 * (q3 - q1);
+  }
+  const tallEnough = split.upperQuartileNm;
   const candidates = [
-    ...split.vesicles.filter((o) => split.innerFenceNm !== null && o.apexHeightNm > split.innerFenceNm && o.circularity >= minCircularity),
+    ...split.vesicles.filter((o) => tallEnough !== null && o.apexHeightNm > tallEnough && o.circularity >= minCircularity),
     ...beads.filter((b) => b.pickIndex !== null && !b.reasons.includes('height')).map((b) => b.object),
   ];
   const countsOf = new Map<MeasureVesicleResult, Record<string, number | null>>();
   if (candidates.length && channels.every((c) => reference[c.marker] !== null)) {
     for (const c of channels) {
-      const t = reg.channels[c.marker].flFromAfm;
-      const fits = fitBeadSpots(c.raster, candidates.map((o) => applyAffine(t, o.centroidPx)), { sigmaPx: c.sigmaPx, maxShiftPx: 1.5 });
+      const counts = brightness(candidates, c);
       candidates.forEach((o, i) => {
         const rec = countsOf.get(o) ?? {};
-        rec[c.marker] = fits[i]?.integratedCounts ?? null;
+        rec[c.marker] = counts[i];
         countsOf.set(o, rec);
       });
     }
   }
   const isMulticolour = (o: MeasureVesicleResult): boolean => {
     const rec = countsOf.get(o);
-    return !!rec && channels.every((c) => (rec[c.marker] ?? 0) >= multicolourFraction * (reference[c.marker] ?? Infinity));
+    return !!rec && channels.every((c) => (rec[c.marker] ?? 0) >= (reference[c.marker] ?? Infinity));
   };
   const newBeads = candidates.filter((o) => !beads.some((b) => b.object === o) && isMulticolour(o));
   beads = beads.map((b) => (isMulticolour(b.object) && !b.reasons.includes('multicolour') ? { ...b, reasons: [...b.reasons, 'multicolour' as BeadReason] } : b));

@@ -92,6 +92,21 @@ describe('analyzeField on a correlative scene with 100–200 nm beads and a 70 n
   });
 });
 
+describe('beads among tall vesicles (EVs imaged in liquid, up to ~80 nm high)', () => {
+  it('still finds 100–120 nm beads, by height or by light in every channel, and keeps every vesicle', { timeout: 120_000 }, () => {
+    // EV heights in liquid ≈ 20–80 nm (docs/references.md §9): base radius 45–90 nm, contact angle 50–85° → 21–82 nm
+    const scene = makeCorrelativeScene({
+      seed: 31, baseRadiusRangeNm: [45, 90], contactAngleRangeDeg: [50, 85], beadDiameterRangeNm: [100, 120], nbVesicles: 50,
+    });
+    const r = analyzeField({ ...scene }, { tipRadiusNm: 8, cameraOffsetCounts: 100 });
+    expect(Math.max(...scene.vesicles.map((v) => v.heightNm))).toBeGreaterThan(70);
+    expect(r.beads.length).toBe(scene.beads.filter((b) => b.inAfmField).length);
+    for (const b of r.beads) expect(nearest(scene, b.xAfmPx, b.yAfmPx).kind).toBe('bead');
+    for (const rec of r.records) expect(nearest(scene, rec.xAfmPx, rec.yAfmPx).kind).toBe('vesicle');
+    expect(r.records.length).toBe(scene.vesicles.filter((v) => v.inAfmField).length);
+  });
+});
+
 describe('classifyBeads', () => {
   const object = (label: number, apexHeightNm: number, x = label * 10): MeasureVesicleResult =>
     ({ label, apexHeightNm, centroidPx: { x, y: 5 }, circularity: 0.9 }) as MeasureVesicleResult;
