@@ -30,8 +30,11 @@ import type {
 /**
  * Analyses one correlative field end to end: level the height map, detect and measure vesicles and fiducial
  * candidates, detect spots in every fluorescence channel, register AFM to fluorescence (a saved transform as is,
- * refined fiducial picks, or automatic pairing of AFM candidates with spots), map every vesicle into fluorescence
- * pixels, measure each marker (aperture photometry and SNR, reported; joint NNLS amplitude of each vesicle's PSF
+ * refined fiducial picks, or automatic pairing of AFM candidates with spots), take the beads out of the vesicles
+ * (taller than the field's vesicles, under a fiducial pick, or bright in every channel; {@link separateBeads}),
+ * refine the transform and PSF width of each channel on the beads, map every vesicle into each channel through its
+ * own transform, measure each marker in frames without the beads' light (aperture photometry and SNR, reported;
+ * joint NNLS amplitude of each vesicle's PSF
  * with its neighbours, beads and every spot away from the vesicles, weighted by the camera noise model; its SE, z,
  * p and q; nearest spot), call it under the marker's rule (a hand-set threshold; else a control threshold; else
  * calibrated z above z_crit, the null measured at empty places that avoid every spot, dim ones included), estimate
