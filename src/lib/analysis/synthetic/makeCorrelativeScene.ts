@@ -206,7 +206,7 @@ export function makeCorrelativeScene(options: MakeCorrelativeSceneOptions = {}):
 
   // emitters that are neither vesicles nor beads, per channel
   const emitters: CorrelativeEmitterTruth[] = [];
-  markers.forEach((m, c) => {
+  markers.forEach((m) => {
     const occupied = [...vesicles, ...beads].map((o) => o.flPxByMarker[m.marker]);
     const minPx = minEmitterDistanceNm / flPixelNm;
     const farEnough = (p: Point) => inFrame0(p) && occupied.every((q) => Math.hypot(p.x - q.x, p.y - q.y) >= minPx);
@@ -231,7 +231,6 @@ export function makeCorrelativeScene(options: MakeCorrelativeSceneOptions = {}):
         }
       }
     }
-    void c;
   });
 
   // the frames
