@@ -1,6 +1,6 @@
 /**
  * Simulated cohorts for the group comparison (not a test; prints figures for docs/statistics.md):
- *   npx tsx scripts/simulate-comparisons.ts [--studies 2000] [--seed 12] [--field-sd 0.2]
+ *   npx tsx scripts/simulate-comparisons.ts [--studies 2000] [--seed 12] [--field-sd 0.2] [--max-donors 6] [--uneven 1]
  * Each simulated study has 3–6 donors per group, 2–3 fields per donor and about 300 vesicles per field
  * (Poisson). A donor's marker-positive fraction is expit(μ + donor effect + field effect) with between-donor
  * SD 0.5 and between-field SD 0.2 (--field-sd) on the logit scale, μ = logit(0.30). Under "null" both groups share μ;
@@ -27,6 +27,9 @@ const BASE_LOGIT = Math.log(0.3 / 0.7);
 const DONOR_SD = 0.5;
 const FIELD_SD = arg('field-sd', 0.2);
 const VESICLES_PER_FIELD = 300;
+/** --uneven 1: each field's mean vesicle count drawn from 50–600 instead of 300 (unequal vesicle numbers). */
+const UNEVEN = arg('uneven', 0) === 1;
+const MAX_DONORS = arg('max-donors', 6);
 const ALPHA = 0.05;
 
 const rng = createRng(SEED);
@@ -59,7 +62,7 @@ function donor(meanLogit: number) {
   const donorLogit = meanLogit + DONOR_SD * rng.normal();
   const fields: { positive: number; total: number }[] = [];
   for (let f = int(2, 3); f > 0; f--) {
-    const n = rng.poisson(VESICLES_PER_FIELD);
+    const n = rng.poisson(UNEVEN ? int(50, 600) : VESICLES_PER_FIELD);
     fields.push({ positive: binomial(n, expit(donorLogit + FIELD_SD * rng.normal())), total: n });
   }
   const positive = fields.reduce((t, f) => t + f.positive, 0);
@@ -95,8 +98,8 @@ function scenario(name: string, shiftLogit: number) {
   const trueDifference = expit(BASE_LOGIT + shiftLogit) - expit(BASE_LOGIT);
   const t0 = performance.now();
   for (let s = 0; s < STUDIES; s++) {
-    const a = Array.from({ length: int(3, 6) }, () => donor(BASE_LOGIT + shiftLogit));
-    const b = Array.from({ length: int(3, 6) }, () => donor(BASE_LOGIT));
+    const a = Array.from({ length: int(3, MAX_DONORS) }, () => donor(BASE_LOGIT + shiftLogit));
+    const b = Array.from({ length: int(3, MAX_DONORS) }, () => donor(BASE_LOGIT));
     const product = compareGroups({
       groupA: 'A', groupB: 'B', outcomes: [{ key: 'M', label: 'M', kind: 'marker' }],
       samples: [...a.map((c, i) => ({ sample: `a${i}`, group: 'A', counts: [c] })), ...b.map((c, i) => ({ sample: `b${i}`, group: 'B', counts: [c] }))],
@@ -128,7 +131,7 @@ function scenario(name: string, shiftLogit: number) {
 }
 
 console.log(`simulate-comparisons: ${new Date().toISOString()}, ${os.cpus()[0]?.model ?? 'unknown CPU'} (${os.cpus().length} cores), Node ${process.version}, seed ${SEED}`);
-console.log(`cohorts: 3–6 donors per group, 2–3 fields per donor, Poisson(${VESICLES_PER_FIELD}) vesicles per field, fraction 0.30, between-donor SD ${DONOR_SD} and between-field SD ${FIELD_SD} (logit)`);
+console.log(`cohorts: 3–${MAX_DONORS} donors per group, 2–3 fields per donor, ${UNEVEN ? 'Poisson(50–600, drawn per field)' : `Poisson(${VESICLES_PER_FIELD})`} vesicles per field, fraction 0.30, between-donor SD ${DONOR_SD} and between-field SD ${FIELD_SD} (logit)`);
 scenario('null: no true difference (false-positive rate)', 0);
 scenario('difference: 0.30 vs 0.44 (power)', 0.6);
 scenario('difference: 0.30 vs 0.54 (power)', 1.0);
