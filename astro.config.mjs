@@ -10,13 +10,18 @@ import { fileURLToPath } from 'node:url';
 // start without its secrets, with the message, instead of failing at the first request. Astro loads the
 // middleware and pages lazily, so the check goes into the server entry itself.
 const configModule = fileURLToPath(new URL('./src/lib/config.ts', import.meta.url));
+// The client address comes from the socket (or a configured trusted proxy) from the very first request on:
+// src/lib/http/peerAddress.ts wraps the web server's request event, so it is installed here too.
+const peerAddressModule = fileURLToPath(new URL('./src/lib/http/peerAddress.ts', import.meta.url));
 const checkConfigAtStart = {
   name: 'heightlight:check-config-at-start',
   /** @param {string} code @param {string} id */
   transform(code, id) {
     if (id !== '\0@astrojs-ssr-virtual-entry') return null;
     const check = `import { config as checkedConfig } from ${JSON.stringify(configModule)};
+import { installPeerAddressGuard } from ${JSON.stringify(peerAddressModule)};
 try { checkedConfig(); } catch (e) { console.error(e instanceof Error ? e.message : e); process.exit(1); }
+installPeerAddressGuard(checkedConfig().TRUSTED_PROXIES);
 `;
     return { code: check + code, map: null };
   },

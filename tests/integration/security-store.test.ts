@@ -56,11 +56,16 @@ describe('embedded object store', () => {
       expect(r.status, `${what}: ${text}`).toBe(403);
       expect(text, what).toContain('<Code>AccessDenied</Code>');
     }
-    // a forged signature fails too
+    // a forged signature (right key id and scope, wrong secret) fails too
+    const amzDate = new Date().toISOString().replace(/[-:]|\.\d{3}/g, '');
     const forged = await fetch(`${S3}/${BUCKET}/${key}`, {
-      headers: { authorization: `AWS4-HMAC-SHA256 Credential=S3RVER/20260101/us-east-1/s3/aws4_request, SignedHeaders=host;x-amz-date, Signature=${'0'.repeat(64)}`, 'x-amz-date': new Date().toISOString().replace(/[-:]|\.\d{3}/g, ''), 'x-amz-content-sha256': 'UNSIGNED-PAYLOAD' },
+      headers: {
+        authorization: `AWS4-HMAC-SHA256 Credential=${process.env.S3_ACCESS_KEY_ID ?? 'S3RVER'}/${amzDate.slice(0, 8)}/us-east-1/s3/aws4_request, SignedHeaders=host;x-amz-content-sha256;x-amz-date, Signature=${'0'.repeat(64)}`,
+        'x-amz-date': amzDate, 'x-amz-content-sha256': 'UNSIGNED-PAYLOAD',
+      },
     });
     expect(forged.status).toBe(403);
+    expect(await forged.text()).toContain('<Code>SignatureDoesNotMatch</Code>');
     expect(new TextDecoder().decode(await getBytes(st, key))).toBe('{"secret":1}');
   });
 

@@ -42,10 +42,12 @@ describe('CSV exports', () => {
     const lines = (await res.text()).split('\n');
     expect(lines[0]).toMatch(/^# Research use only/);
     const header = lines[1].split(',');
-    expect(header).toContain("'+1-1_intensity");
-    expect(header).toContain("'+1-1");
-    expect(header).not.toContain('+1-1');
-    if (header.some((h) => h.includes('SUM'))) expect(header).toContain("'@SUM(A1:A9)");
+    // every column named after the marker carries the apostrophe; none starts like a formula
+    const markerColumns = header.filter((h) => h.includes('+1-1'));
+    expect(markerColumns.length).toBeGreaterThanOrEqual(2);
+    expect(header).toContain("'+1-1_amplitude_counts");
+    for (const c of markerColumns) expect(c.startsWith("'+1-1")).toBe(true);
+    if (header.some((h) => h.includes('SUM'))) expect(header).toContain("'@SUM(A1:A9)_amplitude_counts");
     for (const cell of header) expect(cell).not.toMatch(/^[=+\-@]/);
   });
 

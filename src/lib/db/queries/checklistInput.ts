@@ -35,8 +35,9 @@ export async function getChecklistInput(db: Db, studyId: string, source: 'releas
     rows<Record<string, unknown>>(
       db,
       `select count(*)::int as fields,
-              array_remove(array_agg(distinct f.imaging_medium::text), null) as media,
-              array_remove(array_agg(distinct nullif(f.scan_mode, '')), null) as "scanModes",
+              -- a study with samples but no fields aggregates no rows: empty lists, not null (the checklist reads .length)
+              coalesce(array_remove(array_agg(distinct f.imaging_medium::text), null), '{}') as media,
+              coalesce(array_remove(array_agg(distinct nullif(f.scan_mode, '')), null), '{}') as "scanModes",
               count(f.afm_pixel_nm)::int as "withAfmPixel", count(f.fl_pixel_nm)::int as "withFlPixel",
               count(f.tip_radius_nm)::int as "withTipRadius", count(f.objective_na)::int as "withNa",
               count(f.exposure_ms)::int as "withExposure", count(*) filter (where jsonb_array_length(f.channel_emission_nm) > 0)::int as "withEmission",
