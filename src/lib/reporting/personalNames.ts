@@ -9,5 +9,8 @@ import nlp from 'compromise';
  * @returns the person mentions found, as written
  */
 export function personalNames(text: string): string[] {
-  return nlp(text).match('#Person').out('array') as string[];
+  const doc = nlp(text);
+  // whole mentions ("Mrs Patel", "J Smith") where compromise groups them, else every word tagged as a person's
+  const people = doc.people().out('array') as string[];
+  return people.length ? people : (doc.match('#Person').out('array') as string[]);
 }
