@@ -6,11 +6,7 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { ImagingError } from './errors';
-import type { DecodedTiff, TiffLimits } from './tiffTypes';
-import type { DecodeReply } from './decodeThread';
-
-/** Must equal DECODE_THREAD_KIND of decodeThread.ts (not imported: that module is the thread's, not ours). */
-const DECODE_THREAD_KIND = 'heightlight-tiff-decode/2';
+import { DECODE_THREAD_KIND, type DecodedTiff, type DecodeReply, type TiffLimits } from './tiffTypes';
 
 export interface DecodeInWorkerOptions {
   /** Wall-clock budget for the whole decode (ms); the worker is terminated when it runs over. @default 5000 */

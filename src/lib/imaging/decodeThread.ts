@@ -6,21 +6,7 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { asImagingError, decodeTiff } from './decodeTiff';
-import type { DecodedTiff, ImagingErrorCode, TiffLimits } from './tiffTypes';
-
-/** workerData.kind of a thread started by decodeInWorker. */
-export const DECODE_THREAD_KIND = 'heightlight-tiff-decode/2';
-
-export interface DecodeRequest { id: number; bytes: Uint8Array; limits: TiffLimits }
-
-export interface DecodeReply {
-  id: number;
-  ok: boolean;
-  result?: DecodedTiff;
-  code?: ImagingErrorCode;
-  message?: string;
-  details?: Record<string, unknown>;
-}
+import { DECODE_THREAD_KIND, type DecodeReply, type DecodeRequest } from './tiffTypes';
 
 const port = parentPort;
 if (port && (workerData as { kind?: string } | null)?.kind === DECODE_THREAD_KIND) {

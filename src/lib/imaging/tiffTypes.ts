@@ -84,3 +84,19 @@ export interface DecodedTiff {
   pages: DecodedPage[];
   meta: TiffMetadata;
 }
+
+/** workerData.kind of a decoder thread (decodeInWorker.ts starts it, decodeThread.ts answers only then). */
+export const DECODE_THREAD_KIND = 'heightlight-tiff-decode/2';
+
+/** A request to a decoder thread. */
+export interface DecodeRequest { id: number; bytes: Uint8Array; limits: TiffLimits }
+
+/** A decoder thread's answer to request `id`. */
+export interface DecodeReply {
+  id: number;
+  ok: boolean;
+  result?: DecodedTiff;
+  code?: ImagingErrorCode;
+  message?: string;
+  details?: Record<string, unknown>;
+}
