@@ -39,12 +39,15 @@ export interface MarkerAmplitude {
    */
   readonly amplitudeCounts: number;
   /**
-   * The same amplitude from ordinary least squares without the non-negativity constraint (counts, may be < 0). On
-   * empty places it scatters symmetrically around 0, so mean + k·SD of it is a threshold in the unit of
-   * amplitudeCounts that is not biased by clipping at 0. NaN out of frame or when the neighbourhood is singular.
+   * The same amplitude from (weighted) least squares without its own non-negativity constraint, over the columns NNLS
+   * kept plus this one and the background (counts, may be < 0). On empty places it scatters symmetrically around 0,
+   * so its robust spread is not biased by clipping at 0. NaN out of frame or when the neighbourhood is singular.
    */
   readonly unconstrainedAmplitudeCounts: number;
-  /** Standard error of amplitudeCounts from the unconstrained (weighted) least-squares covariance (counts). */
+  /**
+   * Standard error of that amplitude (counts), from the (weighted) least-squares covariance over the same columns:
+   * conditional on the neighbours NNLS set to 0, so an unlabelled neighbour closer than the PSF does not inflate it.
+   */
   readonly stdErrCounts: number;
   /** amplitudeCounts / stdErrCounts. */
   readonly snr: number;
@@ -211,8 +214,7 @@ export function estimateMarkerAmplitudes(
 
     // uncertainty from the unconstrained model (PSF columns + one background column); with a camera model the
     // rows are already whitened, so (AᵀWA)⁻¹ is the covariance as it stands
-    const p = k + 1;
-    const dof = Math.max(1, m - p);
+    const dof = Math.max(1, m - (k + 1));
     // ‖A·x − b‖² = bᵀb − 2·xᵀh + xᵀG·x
     let rss = eq.bb;
     for (let r = 0; r < k + 2; r++) {
@@ -220,21 +222,29 @@ export function estimateMarkerAmplitudes(
       for (let c = 0; c < k + 2; c++) rss += solution[r] * eq.g.get(r, c) * solution[c];
     }
     const sigma2 = camera ? 1 : Math.max(0, rss) / dof;
-    let covariance: Matrix | undefined;
-    let unconstrained: Matrix | undefined;
-    try {
-      const normalInverse = inverse(eq.g.subMatrix(0, p - 1, 0, p - 1));
-      unconstrained = normalInverse.mmul(Matrix.columnVector(eq.h.slice(0, p)));
-      covariance = normalInverse.mul(sigma2);
-    } catch {
-      covariance = undefined;
-    }
+    // conditional on the active constraints: the PSF columns NNLS set to 0 leave the model, so a labelled vesicle next
+    // to an unlabelled one (clipped to 0) gets the SE of the model without that neighbour, not one inflated by two
+    // nearly equal columns; each member is tested with the passive columns, itself and the background
+    const passiveCols = [...Array(k).keys()].filter((c) => solution[c] > 0);
+    const fitOver = (cols: number[]) => {
+      try {
+        const inv = inverse(eq.g.selection(cols, cols));
+        const est = inv.mmul(Matrix.columnVector(cols.map((c) => eq.h[c])));
+        return { inv, est };
+      } catch {
+        return undefined;
+      }
+    };
+    const shared = fitOver([...passiveCols, k]);
     members.forEach((i, c) => {
       const amplitude = solution[c];
-      const se = covariance ? Math.sqrt(Math.max(0, covariance.get(c, c))) : Number.NaN;
+      const cols = solution[c] > 0 ? [...passiveCols, k] : [...passiveCols, c, k];
+      const fit = solution[c] > 0 ? shared : fitOver(cols);
+      const at = cols.indexOf(c);
+      const se = fit ? Math.sqrt(Math.max(0, sigma2 * fit.inv.get(at, at))) : Number.NaN;
       amplitudes[i] = {
         amplitudeCounts: amplitude,
-        unconstrainedAmplitudeCounts: unconstrained ? unconstrained.get(c, 0) : Number.NaN,
+        unconstrainedAmplitudeCounts: fit ? fit.est.get(at, 0) : Number.NaN,
         stdErrCounts: se,
         snr: se > 0 ? amplitude / se : Number.NaN,
         groupIndex,

