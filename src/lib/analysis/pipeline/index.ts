@@ -6,4 +6,6 @@ export { parseFiducialCsv } from './parseFiducialCsv';
 export { refineFiducialPairs, type RefineFiducialPairsOptions } from './refineFiducialPairs';
 export { vesicleCsvColumns, vesicleCsvCells, vesicleCsvTable, type VesicleCsvCell } from './vesicleCsv';
 export { vesicleColumns, type VesicleCell, type VesicleColumn } from './vesicleColumns';
+export { classifyBeads, type ClassifiedBead, type ClassifyBeadsOptions, type ClassifyBeadsResult } from './classifyBeads';
+export { separateBeads, type SeparateBeadsInput, type SeparateBeadsOptions, type SeparateBeadsResult } from './separateBeads';
 export type * from './types';
