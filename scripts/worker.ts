@@ -48,6 +48,7 @@ async function main() {
 }
 
 main().catch((e) => {
-  console.error('[worker] failed to start:', e);
+  // a configuration error (say, production without AUTH_SECRET) is a sentence to act on, not a stack trace
+  console.error('[worker] failed to start:', e instanceof Error ? e.message : e);
   process.exit(1);
 });
