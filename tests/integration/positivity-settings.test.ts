@@ -143,20 +143,23 @@ describe('positivity settings per marker', () => {
     expect(t5).toBeGreaterThan(t3);
     const rule = (run5.settings.thresholdRule as Record<string, string>).CD63;
     expect(rule).toBe((run3.settings.thresholdRule as Record<string, string>).CD63);
-    if (rule === 'background_mean_k_sd') {
-      // the same empty places of the same frame: the thresholds differ by (5 − 3)·SD
+    if (rule === 'camera_noise') {
+      // k is the calibrated z a vesicle must exceed; on the same empty places of the same frame the amplitude a lone
+      // vesicle needs is the null's mean + k·SD, so the thresholds differ by (5 − 3)·SD
       const ch = (run5.summary as { channels: Record<string, { backgroundMeanCounts: number; backgroundSdCounts: number }> }).channels.CD63;
       expect(t5).toBeCloseTo(ch.backgroundMeanCounts + 5 * ch.backgroundSdCounts, 6);
       expect(t5 - t3).toBeCloseTo(2 * ch.backgroundSdCounts, 6);
     } else {
       // control samples linked (e.g. after linking.test.ts): mean + 5 SD (n − 1) of their stored CD63 amplitudes
-      expect(rule).toBe('control_mean_k_sd');
+      expect(rule).toBe('control');
       const { n, mean, sd } = await controlAmplitudes(1);
       expect(n).toBeGreaterThanOrEqual(10);
       expect(t5).toBeCloseTo(mean + 5 * sd, 3);
       expect(t3).toBeCloseTo(mean + 3 * sd, 3);
     }
-    expect(String(run5.settings.thresholdMethod)).toMatch(/CD63: joint NNLS amplitude \(counts of PSF amplitude\) above mean \+ 5 SD of/);
+    // the run says in one sentence what positive meant, with k in it
+    const sentence = (run5.settings.ruleSentence as Record<string, string>).CD63;
+    expect(sentence).toMatch(rule === 'camera_noise' ? /above camera noise.*calibrated z > 5\.00/ : /control/);
     const after = await (await analyst.fetch(`/api/studies/${studyId}/positivity`)).json();
     expect(after.fieldsLinkedWithOtherSettings.map((f: { id: string }) => f.id)).not.toContain(fieldId);
   });
@@ -174,7 +177,7 @@ describe('positivity settings per marker', () => {
     expect(run.settings.thresholdRule).toMatchObject({ CD9: 'manual' });
     expect(run.settings.thresholds).toMatchObject({ CD9: manual });
     expect(run.settings.k).toMatchObject({ CD9: null, CD63: 5 });
-    expect(String(run.settings.thresholdMethod)).toMatch(/CD9: joint NNLS amplitude \(counts of PSF amplitude\) above a threshold set by hand/);
+    expect((run.settings.ruleSentence as Record<string, string>).CD9).toMatch(/threshold set by hand/);
 
     const cd9 = await callsOf(run.id, 0);
     expect(cd9.amplitudes.length).toBeGreaterThan(20);
@@ -219,10 +222,14 @@ describe('positivity settings per marker', () => {
     const run = await waitForNewRun(before.id);
     const { n, mean, sd } = await controlAmplitudes(1);
     expect(n).toBeGreaterThanOrEqual(10);
-    expect(run.settings.thresholdRule).toMatchObject({ CD9: 'manual', CD63: 'control_mean_k_sd', CD81: 'control_mean_k_sd' });
+    expect(run.settings.thresholdRule).toMatchObject({ CD9: 'manual', CD63: 'control', CD81: 'control' });
     expect(run.settings.k).toMatchObject({ CD9: null, CD63: 4.5, CD81: 3 });
-    expect((run.settings.thresholds as Record<string, number>).CD63).toBeCloseTo(mean + 4.5 * sd, 3);
+    // the controls' own threshold is mean + 4.5 SD; a vesicle must also be detected above camera noise, so the
+    // amplitude it needs is the larger of the two
+    const fromControls = (run.settings.controlThresholds as Record<string, number>).CD63;
+    expect(fromControls).toBeCloseTo(mean + 4.5 * sd, 3);
+    expect((run.settings.thresholds as Record<string, number>).CD63).toBeGreaterThanOrEqual(fromControls);
     expect(run.settings.nbThresholdValues).toMatchObject({ CD63: n });
-    expect(String(run.settings.thresholdMethod)).toContain(`CD63: joint NNLS amplitude (counts of PSF amplitude) above mean + 4.5 SD of the joint amplitudes of ${n} control-sample vesicles`);
+    expect((run.settings.ruleSentence as Record<string, string>).CD63).toContain(`from ${n} control vesicles`);
   });
 });

@@ -123,7 +123,10 @@ export async function linkField(deps: IngestDeps, fieldId: string) {
       thresholdRule: Object.fromEntries(markers.map((m) => [m, ruleOf(m)])),
       ruleSentence: Object.fromEntries(markers.map((m) => [m, ch(m)?.ruleSentence ?? null])),
       thresholdMethod: markers.map((m) => `${m}: ${ch(m)?.ruleSentence ?? ruleOf(m)}`).join('; '),
+      // the amplitude a lone vesicle needs under the rule (for the control rule the larger of the control's and the noise's)
       thresholds: Object.fromEntries(markers.map((m) => [m, ch(m)?.thresholdCounts ?? null])),
+      // the control samples' own threshold where the control rule applied (counts)
+      controlThresholds: Object.fromEntries(markers.map((m) => [m, ruleOf(m) === 'control' ? (controlThresholdByMarker[m]?.thresholdCounts ?? null) : null])),
       k: Object.fromEntries(markers.map((m) => [m, ruleOf(m) === 'manual' ? null : kOf(m)])),
       zCritical: Object.fromEntries(markers.map((m) => [m, ch(m)?.zCritical ?? null])),
       controlKind: Object.fromEntries(markers.map((m) => [m, ch(m)?.controlKind ?? null])),
