@@ -6,7 +6,7 @@ import { requireUser } from '../../../lib/auth/session';
 import { requireScopeAction } from '../../../lib/auth/scopeAccess';
 import { getDb } from '../../../lib/db/client';
 import { pageVesicles } from '../../../lib/db/queries/vesicles';
-import { getPanel } from '../../../lib/db/queries/results';
+import { getPanel } from '../../../lib/db/queries/sampleSelection';
 import { VesicleQuery } from '../../../lib/schemas/vesicles';
 
 /** One page of the vesicle table of a field or a sample (current linking), sorted and filtered on the server. */
