@@ -63,7 +63,7 @@ export const pilotSeed = (sampleIndex: number, fieldIndex: number) => 1000 + 10 
  */
 export const PILOT_SCENE = {
   afmSizePx: 512, afmPixelNm: 10, flSizePx: 160, flPixelNm: 65, nbVesicles: 55, nbVesiclesOutsideAfm: 30, nbBeads: 6, chromaticShiftNmPerChannel: 30,
-  afmCentreInFrame: { x: 0.72, y: 0.5 },
+  afmCentreInFrame: { x: 0.78, y: 0.5 },
 } as const;
 
 /** Beads of 100–200 nm stand well above any vesicle (under 50 nm here): the bead cut-off goes to 80 nm for these fields. */
