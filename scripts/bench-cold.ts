@@ -109,8 +109,8 @@ async function main() {
       cold.push(timed('npm', ['run', '--silent', 'analyze', '--', ...args, '--out', join(dir, `cold-${i}.csv`)], root));
       coldNode.push(timed(process.execPath, ['scripts/run-bundled.mjs', 'analyze', ...args, '--out', join(dir, `node-${i}.csv`)], root));
     }
-    const stages = [...cold[0].stderr.matchAll(/\[analyze\] (\w+)\s+(\d+) ms/g)].map((m) => `${m[1]} ${m[2]}`).join(', ');
-    const readMs = /\((\d+) ms\)\n/.exec(cold[0].stderr)?.[1];
+    const stagesOf = (stderr: string) => `read ${/\((\d+) ms\)\n/.exec(stderr)?.[1] ?? '?'}, ` +
+      [...stderr.matchAll(/\[analyze\] (\w+)\s+(\d+) ms/g)].map((m) => `${m[1]} ${m[2]}`).join(', ');
 
     // batch
     const batch = timed('npm', ['run', '--silent', 'analyze', '--', '--batch', join(dir, 'fields.csv'), '--out-dir', join(dir, 'batch'), ...FLAGS], root);
@@ -145,7 +145,8 @@ async function main() {
     console.log(`| cold without npm: \`node scripts/run-bundled.mjs analyze\` (${COLD_RUNS} runs) | ${med(coldNode.map((r) => r.ms)).toFixed(0)} ms | ${Math.min(...coldNode.map((r) => r.ms)).toFixed(0)} ms | ${Math.max(...coldNode.map((r) => r.rssMb)).toFixed(0)} MB |`);
     console.log(`| batch: ${BATCH_FIELDS} fields in one \`npm run analyze -- --batch\` | ${(batch.ms / BATCH_FIELDS).toFixed(0)} ms (total ${(batch.ms / 1000).toFixed(1)} s) | | ${batch.rssMb.toFixed(0)} MB |`);
     console.log(`| warm: in-process, after one call (5 runs) | ${med(warm).toFixed(0)} ms | ${Math.min(...warm).toFixed(0)} ms | ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB (this process) |`);
-    console.log(`\nfirst cold run: read ${readMs ?? '?'} ms; stages (ms) ${stages}`);
+    console.log('\nstages of each cold run (ms):');
+    for (const [i, r] of cold.entries()) console.log(`  run ${i + 1} (${(r.ms / 1000).toFixed(1)} s): ${stagesOf(r.stderr)}`);
     console.log(`same CSV bytes as the first cold run: ${differing.length === 0 ? 'every path' : `NO for ${differing.join(', ')}`}`);
     console.log(`load average at end (1, 5, 15 min): ${load()}`);
   } finally {
