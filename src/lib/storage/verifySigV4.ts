@@ -32,13 +32,16 @@ const MAX_EXPIRES_S = 7 * 24 * 3600;
 const MAX_SKEW_MS = 15 * 60 * 1000;
 
 // The signer wants a hash "constructor" with update/digest (HMAC when given a key).
+type SourceData = string | ArrayBuffer | ArrayBufferView;
+const bytes = (d: SourceData) =>
+  typeof d === 'string' ? d : ArrayBuffer.isView(d) ? Buffer.from(d.buffer, d.byteOffset, d.byteLength) : Buffer.from(d);
 class NodeSha256 {
   private readonly h;
-  constructor(secret?: string | Uint8Array) {
-    this.h = secret ? createHmac('sha256', secret) : createHash('sha256');
+  constructor(secret?: SourceData) {
+    this.h = secret ? createHmac('sha256', bytes(secret)) : createHash('sha256');
   }
-  update(data: string | Uint8Array) {
-    this.h.update(data);
+  update(data: SourceData) {
+    this.h.update(bytes(data));
   }
   async digest() {
     return new Uint8Array(this.h.digest());
