@@ -321,6 +321,12 @@ describe('group comparison', () => {
     const cl = clusteredProportion([{ positive: 20, total: 50 }, { positive: 25, total: 50 }]);
     expect([rt9.count, rt9.total, rt9.fields, rt9.lower, rt9.upper]).toEqual([45, 100, 2, cl.lower, cl.upper]);
 
+    // the sample view shows where RT8 stands among the 3 released samples of its group (between-sample QC)
+    const spread = (await (await results(clients.collaborator, sampleIds.RT8)).json()).groupSpread;
+    const cd81Spread = spread.markers.find((m: { marker: string }) => m.marker === 'CD81');
+    expect([spread.group, spread.samples, cd81Spread.sampleFraction, cd81Spread.lowestFraction, cd81Spread.highestFraction]).toEqual([GROUP_A, 3, 0.5, 0.45, 0.8]);
+    expect(cd81Spread.typicalFraction).toBeCloseTo(expit(w.meanA), 12);
+
     const csv = await (await clients.collaborator.fetch(`/api/studies/${studyId}/comparison.csv?groupA=${GROUP_A}&groupB=${GROUP_B}`)).text();
     const lines = csv.split('\r\n');
     expect(lines[0]).toBe('# Research use only. Not for diagnosis or treatment decisions.');

@@ -8,7 +8,10 @@ import { COMPARISON_METHOD } from './methodText';
  * Summary CSV of one sample: one row per marker (denominator: vesicles measured in that channel) and per
  * phenotype combination (denominator: vesicles measured in every channel), each with the count, the
  * fraction and its 95% interval over the fields (Wilson on Kish's effective count), the design effect,
- * the between-field ICC and SD; then one row per field with its counts (quality control).
+ * the between-field ICC and SD; then per marker the group's typical sample with the range over the group in the
+ * interval columns and the between-sample SD of logits in `sd_between` (group_typical_sample rows; on marker and
+ * phenotype rows `sd_between` is the SD of the field fractions),
+ * and one row per field with its counts (quality control).
  *
  * @param r - the sample's results
  * @returns the CSV text, starting with the research-use-only line
@@ -20,13 +23,16 @@ export function sampleSummaryCsv(r: SampleResults): string {
     `Sample ${r.sample.code} (${r.sample.groupLabel || 'no group'}), ${release}; ${r.fieldsAnalysed} field(s), ${r.vesicles} vesicles (${r.phenotyped} measured in every channel); median diameter ${r.diameter.medianNm?.toFixed(1) ?? '-'} nm, median height ${r.height.medianNm?.toFixed(1) ?? '-'} nm`,
     COMPARISON_METHOD.perSample,
   ]);
-  out += csvRow(['sample_code', 'group_label', 'release_version', 'row_kind', 'item', 'vesicles_count', 'count', 'fraction', 'ci95_lower', 'ci95_upper', 'design_effect', 'icc_between_fields', 'sd_between_fields', 'fields_count']);
+  out += csvRow(['sample_code', 'group_label', 'release_version', 'row_kind', 'item', 'vesicles_count', 'count', 'fraction', 'ci95_lower', 'ci95_upper', 'design_effect', 'icc_between_fields', 'sd_between', 'fields_count']);
   const version = r.release?.version ?? null;
   for (const m of r.markers) {
     out += csvRow([r.sample.code, r.sample.groupLabel, version, 'marker_positive', m.marker, m.total, m.count, m.fraction, m.lower, m.upper, m.designEffect, m.icc, m.betweenFieldSd, m.fields]);
   }
   for (const p of r.phenotypes) {
     out += csvRow([r.sample.code, r.sample.groupLabel, version, 'phenotype', p.label, p.total, p.count, p.fraction, p.lower, p.upper, p.designEffect, p.icc, p.betweenFieldSd, p.fields]);
+  }
+  for (const m of r.groupSpread?.markers ?? []) {
+    out += csvRow([r.sample.code, r.sample.groupLabel, version, 'group_typical_sample', m.marker, '', '', m.typicalFraction, m.lowestFraction, m.highestFraction, '', '', m.sdLogit, '']);
   }
   for (const f of r.fields) {
     r.panel.forEach((c, i) => {

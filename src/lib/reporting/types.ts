@@ -105,6 +105,26 @@ export interface SampleResults {
   readonly diameter: DistributionSummary & { histogram: Histogram; byPhenotype: Record<string, Histogram> };
   readonly height: DistributionSummary & { histogram: Histogram; byPhenotype: Record<string, Histogram> };
   readonly fields: FieldBreakdown[];
+  /** Where the sample stands in its group (between-sample quality control); absent where not computed. */
+  readonly groupSpread?: GroupSpread | null;
+}
+
+/** The samples of one group, per marker: typical fraction, range and between-sample SD (logit scale). */
+export interface GroupSpread {
+  readonly group: string;
+  /** Samples of the group with results in the same source (count). */
+  readonly samples: number;
+  readonly markers: {
+    readonly channelIndex: number;
+    readonly marker: string;
+    /** Samples with vesicles measured in this channel (count). */
+    readonly samples: number;
+    readonly sampleFraction: number | null;
+    readonly typicalFraction: number | null;
+    readonly lowestFraction: number | null;
+    readonly highestFraction: number | null;
+    readonly sdLogit: number | null;
+  }[];
 }
 
 export interface SampleMarkerRow {

@@ -64,6 +64,25 @@ export function SampleView({ r }: { r: SampleResults }) {
           {hHist && <HistogramPlot histogram={hHist} xLabel="height (nm)" label="Histogram of height (nm)" />}
         </div>
       </section>
+      {r.groupSpread && r.groupSpread.samples > 1 && (
+        <section className="card">
+          <h2>Samples of group {r.groupSpread.group || '(no group)'} (quality control)</h2>
+          <p className="text-sm text-mica-600 mt-1">
+            Where this sample stands among the {r.groupSpread.samples} samples of its group{r.source === 'released' ? ' with a release' : ''}: a sample far from the others is worth a second look before it enters a comparison.
+          </p>
+          <table className="data-table mt-3 w-full text-sm" data-testid="group-spread">
+            <thead><tr><th>Marker</th><th>This sample</th><th>Typical sample of the group</th><th>Range over the group</th><th>Between-sample SD (logit)</th></tr></thead>
+            <tbody>
+              {r.groupSpread.markers.map((m) => (
+                <tr key={m.channelIndex}>
+                  <td className="font-semibold">{m.marker}</td><td>{pct(m.sampleFraction)}</td><td>{pct(m.typicalFraction)}</td>
+                  <td>{pct(m.lowestFraction)} – {pct(m.highestFraction)}</td><td>{m.sdLogit === null ? '–' : m.sdLogit.toFixed(2)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </section>
+      )}
       <section className="card">
         <h2>Fields (quality control)</h2>
         <table className="data-table mt-3 w-full text-sm" data-testid="field-table">
