@@ -30,7 +30,8 @@ export interface SeparateBeadsOptions {
   pickRadiusNm?: number;
   /**
    * Bright in every channel: at least this fraction of the known beads' median integrated counts in each; without
-   * known beads, above Q3 + 3·IQR of the vesicles' own integrated counts in each. @default 0.25
+   * known beads, above Q3 + 3·IQR and 2.5× the 90th percentile of the vesicles' own integrated counts in each.
+   * @default 0.25
    */
   multicolourFraction?: number;
   /** Multicolour candidates must be at least this round (4πA/P²). @default 0.7 */
@@ -90,11 +91,15 @@ export function separateBeads(input: SeparateBeadsInput, options: SeparateBeadsO
     fitBeadSpots(c.raster, objects.map((o) => applyAffine(reg.channels[c.marker].flFromAfm, o.centroidPx)), { sigmaPx: c.sigmaPx, maxShiftPx: 1.5 })
       .map((f) => Math.max(0, f?.integratedCounts ?? 0));
   for (const c of channels) {
-    if (reference[c.marker] !== null || split.vesicles.length < 8) continue;
-    const counts = brightness(split.vesicles, c).sort((p, q) => p - q);
+    // the brightness of vesicles no taller than the upper quartile: tall candidates (beads among them) stay out of it
+    const shorter = split.upperQuartileNm === null ? [] : split.vesicles.filter((o) => o.apexHeightNm <= split.upperQuartileNm!);
+    if (reference[c.marker] !== null || shorter.length < 8) continue;
+    const counts = brightness(shorter, c).sort((p, q) => p - q);
     const q1 = counts[Math.floor(0.25 * (counts.length - 1))];
     const q3 = counts[Math.ceil(0.75 * (counts.length - 1))];
-    reference[c.marker] = q3 + 3 * (q3 - q1);
+    const p90 = counts[Math.ceil(0.9 * (counts.length - 1))];
+    // when most vesicles are dark the fence sits near noise: a bead must also outshine the bright vesicles 2.5-fold
+    reference[c.marker] = Math.max(q3 + 3 * (q3 - q1), UNKNOWN_BEAD_BRIGHTNESS_RATIO * p90);
   }
   const tallEnough = split.upperQuartileNm;
   const candidates = [
@@ -176,6 +181,13 @@ export function separateBeads(input: SeparateBeadsInput, options: SeparateBeadsO
     rastersWithoutBeads,
   };
 }
+
+/**
+ * Without known beads, a multicolour bead outshines the 90th percentile of the vesicles by this factor in every
+ * channel: multicolour beads carry several times the dye of a labelled EV (common practice; 6000–20 000 against
+ * 300–2000 photons in the test fields).
+ */
+const UNKNOWN_BEAD_BRIGHTNESS_RATIO = 2.5;
 
 /** Bead images fainter than this (peak over background SD) stay in the frame: too faint to measure or to matter. */
 const MIN_SUBTRACT_SNR = 10;

@@ -107,6 +107,21 @@ describe('beads among tall vesicles (EVs imaged in liquid, up to ~80 nm high)', 
   });
 });
 
+describe('no beads in the field', () => {
+  it('turns no vesicle into a bead, even tall triple-positive ones among mostly dark vesicles', { timeout: 120_000 }, () => {
+    // 80 % unlabelled, the rest carry every marker (300–2000 photons each); tall EVs (liquid); no bead anywhere
+    const scene = makeCorrelativeScene({
+      seed: 41, nbBeads: 0, nbBeadsOutsideAfm: 0, unlabelledFraction: 0.8, baseRadiusRangeNm: [45, 90], contactAngleRangeDeg: [50, 85],
+      markers: [{ marker: 'CD9', emissionNm: 520, positiveFraction: 1 }, { marker: 'CD63', emissionNm: 590, positiveFraction: 1 }, { marker: 'CD81', emissionNm: 670, positiveFraction: 1 }],
+    });
+    const r = analyzeField({ ...scene }, { tipRadiusNm: 8, cameraOffsetCounts: 100 });
+    expect(scene.vesicles.filter((v) => v.inAfmField && v.labels.CD9 && v.heightNm > 60).length).toBeGreaterThanOrEqual(2);
+    expect(r.beads).toEqual([]);
+    expect(r.records.length).toBe(scene.vesicles.filter((v) => v.inAfmField).length);
+    expect(r.summary.registration.warnings.filter((w) => w.code === 'channel_common_transform')).toHaveLength(3);
+  });
+});
+
 describe('classifyBeads', () => {
   const object = (label: number, apexHeightNm: number, x = label * 10): MeasureVesicleResult =>
     ({ label, apexHeightNm, centroidPx: { x, y: 5 }, circularity: 0.9 }) as MeasureVesicleResult;
