@@ -40,7 +40,9 @@ export type Db = NodePgDatabase<typeof schema> & { $client: Pool };
 
 /** Builds a database handle for `url` (tests and scripts call this directly). */
 export function createDb(url: string, max = 20): Db {
-  const pool = new Pool({ connectionString: url, max, connectionTimeoutMillis: 5000, idleTimeoutMillis: 30_000 });
+  // 30 s to connect: a worker's synchronous analysis can hold the event loop for seconds on a busy machine, and a
+  // connection attempt timed on the wall clock must not fail a job for it.
+  const pool = new Pool({ connectionString: url, max, connectionTimeoutMillis: 30_000, idleTimeoutMillis: 30_000 });
   // A dropped connection (e.g. PostgreSQL restarting) must not crash the process; the pool reconnects.
   pool.on('error', (err) => console.error('[db] idle client error:', err.message));
   prepareSelects(pool);

@@ -70,7 +70,7 @@ export async function registerHandlers(boss: PgBoss) {
       const r = await linkField({ db: await getDb(), st: await getStorage(), decodeLimits }, job.data.fieldId);
       console.log(`[worker] linked field ${job.data.fieldId} in ${Date.now() - started} ms`, r?.vesicles);
     } catch (e) {
-      console.error(`[worker] linking ${job.data.fieldId} failed:`, (e as Error).message);
+      console.error(`[worker] linking ${job.data.fieldId} failed:`, describeError(e));
       if (!isPermanent(e)) throw e;
     }
   });
@@ -81,7 +81,7 @@ export async function registerHandlers(boss: PgBoss) {
       const r = await ingestField({ db: await getDb(), st: await getStorage(), decodeLimits }, job.data.fieldId);
       console.log(`[worker] ingested field ${job.data.fieldId} in ${Date.now() - started} ms`, r);
     } catch (e) {
-      console.error(`[worker] field ${job.data.fieldId} failed:`, (e as Error).message);
+      console.error(`[worker] field ${job.data.fieldId} failed:`, describeError(e));
       // Mail the uploader once: when this failure is final, not on every try that a retry may still mend.
       if (isFinalFailure(e, job)) await notifyFieldReady(job.data.fieldId).catch((m) => console.error('[jobs] notice failed:', (m as Error).message));
       // A bad file will not get better on a retry: the field is marked failed and the job ends.
@@ -90,4 +90,11 @@ export async function registerHandlers(boss: PgBoss) {
     }
     await notifyFieldReady(job.data.fieldId);
   });
+}
+
+/** The message and, for a failed query, the driver's own reason (Drizzle wraps it in `cause`). */
+function describeError(e: unknown): string {
+  const err = e as Error & { cause?: unknown };
+  const cause = err.cause instanceof Error ? ` (${err.cause.message})` : '';
+  return `${err.message}${cause}`;
 }
