@@ -8,10 +8,11 @@
 import { spawnSync } from 'node:child_process';
 import { createReadStream, existsSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { CreateBucketCommand, HeadBucketCommand, ListObjectsV2Command, PutObjectCommand } from '@aws-sdk/client-s3';
+import { CreateBucketCommand, HeadBucketCommand, PutObjectCommand } from '@aws-sdk/client-s3';
 import pg from 'pg';
 import { hashFile, isMain, objectPath, pgTool, settingsFromEnv, MANIFEST_VERSION, type Manifest } from './backup';
 import type { Storage } from '../src/lib/storage/client';
+import { listPages } from '../src/lib/storage/objects';
 import { cliArgs } from './lib/cliArgs';
 
 /** Thrown when the target is not empty or the backup does not match its manifest; nothing was written. */
@@ -37,9 +38,9 @@ async function bucketState(st: Storage): Promise<'missing' | 'empty' | 'has obje
     if ((e as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404) return 'missing';
     throw e;
   }
-  // no MaxKeys: s3rver answers MaxKeys=1 with an internal error
-  const page = await st.s3.send(new ListObjectsV2Command({ Bucket: st.bucket }));
-  return (page.KeyCount ?? page.Contents?.length ?? 0) > 0 ? 'has objects' : 'empty';
+  // the first page of the shared lister (ListObjects v1: s3rver's V2 listing fails on buckets beyond 1,000 objects)
+  for await (const page of listPages(st)) return page.length > 0 ? 'has objects' : 'empty';
+  return 'empty';
 }
 
 /** Reads DIR/manifest.json and checks every file against it. */
