@@ -99,7 +99,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
     for (const result of [picked, automatic]) {
       const reg = result.summary.registration;
       expect(reg.mirrored).toBe(true);
-      // 0.3 fl px ≈ 20 nm, a tenth of the diffraction limit (REFERENCES §4, Abbe 186 nm at 520 nm, NA 1.4)
+      // 0.3 fl px ≈ 20 nm, a tenth of the diffraction limit (docs/references.md §4, Abbe 186 nm at 520 nm, NA 1.4)
       expect(transformErrorPx(scene, result)).toBeLessThan(0.3);
     }
     expect(picked.summary.registration.source).toBe('fiducials');
@@ -172,7 +172,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
       // chance colocalisation: shifted positions rarely land on a spot in this sparse scene
       expect(c.nbChancePositions).toBe(5 * c.nbMeasured!);
       expect(c.chancePositiveFraction!).toBeLessThan(0.5 * c.positiveFraction!);
-      // PSF σ = 0.21·λ/NA/pixel (REFERENCES §4, Zhang et al. 2007): 520 nm, NA 1.4, 65 nm/px → 1.2 px
+      // PSF σ = 0.21·λ/NA/pixel (docs/references.md §4, Zhang et al. 2007): 520 nm, NA 1.4, 65 nm/px → 1.2 px
       if (m === 'CD9') expect(c.psfSigmaPx).toBeCloseTo(1.2, 9);
       // the five beads shine in every channel and are not counted as vesicle-free spots
       expect(c.nbSpotsOnFiducials).toBe(5);
