@@ -1,4 +1,4 @@
-// ESLint runs one kind of rule here: the imports that keep the layers apart (docs/architecture.md).
+// ESLint runs two kinds of rule here: the imports that keep the layers apart (docs/architecture.md), and no raw fetch in islands.
 // Types are the type checker's job; style is not checked. `npm test` runs `npx eslint` before the tests.
 import { defineConfig } from 'eslint/config';
 import tseslint from 'typescript-eslint';
@@ -9,6 +9,9 @@ const SERVER_LAYERS = 'db|jobs|storage|auth|mail|config';
 const ISLAND_MESSAGE =
   'Islands run in the browser: they may not import the server layers (lib/db, lib/jobs, lib/storage, lib/auth, lib/mail, lib/config) '
   + 'or server packages. Put a shared contract in src/lib/schemas and call the server through src/lib/api-client.';
+const FETCH_MESSAGE =
+  'Islands call the server through a function of src/lib/api-client (one per route), which parses the reply with its schema, '
+  + 'takes an AbortSignal and throws ApiError with the server\'s message.';
 const CORE_MESSAGE =
   'The analysis core (src/lib/analysis) is pure: no file system, network, database, object store, Astro or clock. '
   + 'Take the data as arguments and let the caller (job, script, route) do the I/O.';
@@ -32,6 +35,17 @@ export default defineConfig(
           { regex: '^(node:|pg$|pg-boss$|drizzle-orm|@aws-sdk/|nodemailer$|sharp$|astro:)', message: ISLAND_MESSAGE },
         ],
       }],
+    },
+  },
+  {
+    // one typed path per request: islands call the server through src/lib/api-client (schemas, AbortSignal, ApiError)
+    files: ['src/components/**/*.{ts,tsx}'],
+    ignores: ['src/components/**/__tests__/**'],
+    rules: {
+      'no-restricted-globals': ['error', { name: 'fetch', message: FETCH_MESSAGE }, { name: 'XMLHttpRequest', message: FETCH_MESSAGE }],
+      'no-restricted-properties': ['error',
+        { object: 'window', property: 'fetch', message: FETCH_MESSAGE },
+        { object: 'globalThis', property: 'fetch', message: FETCH_MESSAGE }],
     },
   },
   {

@@ -1,5 +1,7 @@
 import { useState } from 'react';
 import type { CameraModelSetting } from '../../lib/schemas/cameraModel';
+import { saveCamera } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Props { studyId: string; canEdit: boolean; camera: CameraModelSetting | null }
 
@@ -24,10 +26,14 @@ export default function CameraSettings({ studyId, canEdit, camera }: Props) {
     const empty = FIELDS.every((f) => text[f.key].trim() === '');
     const body = { camera: clear || empty ? null : Object.fromEntries(FIELDS.map((f) => [f.key, text[f.key].trim() === '' ? null : Number(text[f.key])])) };
     setBusy(true);
-    const res = await fetch(`/api/studies/${studyId}/camera`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
-    const data = await res.json();
-    setBusy(false);
-    if (!res.ok) return setMsg({ ok: false, text: data.message });
+    let data;
+    try {
+      data = await saveCamera(studyId, body.camera);
+    } catch (e) {
+      return setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
     setSaved(data.camera);
     if (!data.camera) setText(Object.fromEntries(FIELDS.map((f) => [f.key, ''])));
     setMsg({ ok: true, text: data.camera ? 'Camera model saved. Fields already linked keep their results until they are linked again.' : 'Camera model cleared: linking estimates it from each frame.' });

@@ -1,5 +1,7 @@
 import { useState } from 'react';
 import { DetectionSettings, type DetectionSettings as Settings } from '../../lib/schemas/detectionSettings';
+import { saveDetectionSettings } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 /** What the last detection used, as stored beside its results (see FieldDetection). */
 export interface SettingsUsed extends Settings { minAreaPx: number; source: 'defaults' | 'analyst' }
@@ -48,15 +50,11 @@ export default function DetectionSettingsForm(p: Props) {
     setSending(true);
     setMsg(null);
     try {
-      const r = await fetch(`/api/fields/${p.fieldId}/detection-settings`, {
-        method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ settings, expectedVersion: p.version }),
-      });
-      const body = await r.json().catch(() => ({ message: `The server answered ${r.status}.` }));
-      if (!r.ok) return setMsg({ ok: false, text: body.message });
+      await saveDetectionSettings(p.fieldId, { settings, expectedVersion: p.version });
       setMsg({ ok: true, text: 'Detection queued. The page reloads to show its progress…' });
       setTimeout(() => window.location.reload(), 600);
-    } catch {
-      setMsg({ ok: false, text: 'The server could not be reached; nothing was changed. Try again.' });
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e) });
     } finally {
       setSending(false);
     }

@@ -1,5 +1,7 @@
 import { useEffect, useState } from 'react';
 import { FIELD_STATUS_WORDS } from '../../lib/pages/fieldStatusWords';
+import { getFieldStatus, retryField } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Status { status: string; failureReason: string | null; progress: { stage: string; fraction: number } | null }
 
@@ -12,21 +14,27 @@ export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: s
   const working = s.status === 'ingesting' || s.status === 'uploading' || (s.progress != null && s.progress.fraction < 1);
   useEffect(() => {
     if (!working) return;
+    const stop = new AbortController();
     const t = setInterval(async () => {
-      const r = await fetch(`/api/fields/${fieldId}`);
-      if (!r.ok) return;
-      const next = (await r.json()).field as Status;
+      let next: Status;
+      try {
+        next = (await getFieldStatus(fieldId, stop.signal)).field;
+      } catch {
+        return; // a missed poll is retried 1.5 s later
+      }
       setS(next);
       if (next.status !== initial.status || (next.progress?.fraction ?? 1) >= 1) window.location.reload();
     }, 1500);
-    return () => clearInterval(t);
+    return () => { clearInterval(t); stop.abort(); };
   }, [working, fieldId]);
 
   async function retry() {
-    const r = await fetch(`/api/fields/${fieldId}/retry`, { method: 'POST' });
-    const body = await r.json();
-    if (r.ok) setS({ status: 'ingesting', failureReason: null, progress: { stage: 'queued', fraction: 0 } });
-    else setMsg(body.message);
+    try {
+      await retryField(fieldId);
+      setS({ status: 'ingesting', failureReason: null, progress: { stage: 'queued', fraction: 0 } });
+    } catch (e) {
+      setMsg(errorText(e));
+    }
   }
 
   return (

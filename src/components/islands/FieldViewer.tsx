@@ -1,6 +1,7 @@
 import { useEffect, useId, useRef, useState, type InputHTMLAttributes } from 'react';
 import OpenSeadragon from 'openseadragon';
 import ChannelFilter from './viewer/ChannelFilter';
+import { getLayerValues } from '../../lib/api-client/routes';
 import {
   DEFAULT_HEIGHT_DISPLAY, channelRange, channelTransfer, defaultChannelDisplay, formatCounts, heightFilterCss,
   isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, toHex, fromHex, type ChannelDisplay, type HeightDisplay,
@@ -55,12 +56,13 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
 
   // values for the cursor read-out (downsampled floats, fetched once per layer)
   useEffect(() => {
+    const stop = new AbortController();
     for (const l of layers) {
       if (values.current[l.layer]) continue;
-      fetch(`/api/fields/${fieldId}/tiles/${l.layer}.f32`).then(async (r) => {
-        if (r.ok) values.current[l.layer] = new Float32Array(await r.arrayBuffer());
-      });
+      // the read-out is optional: without values it shows no number under the pointer
+      getLayerValues(fieldId, l.layer, null, stop.signal).then((v) => { values.current[l.layer] = v; }, () => undefined);
     }
+    return () => stop.abort();
   }, [fieldId, layers]);
 
   useEffect(() => {

@@ -1,4 +1,6 @@
 import { useState, type FormEvent } from 'react';
+import { createStudy } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 /** Admin: create a study, then open it to add members and the marker panel. */
 export default function NewStudy() {
@@ -6,10 +8,12 @@ export default function NewStudy() {
   async function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const f = new FormData(e.currentTarget);
-    const res = await fetch('/api/studies', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ name: f.get('name'), description: f.get('description') }) });
-    const body = await res.json();
-    if (res.ok) window.location.href = `/studies/${body.id}`;
-    else setMsg(body.message);
+    try {
+      const body = await createStudy({ name: String(f.get('name') ?? ''), description: String(f.get('description') ?? '') });
+      window.location.href = `/studies/${body.id}`;
+    } catch (e) {
+      setMsg(errorText(e));
+    }
   }
   return (
     <form method="post" onSubmit={submit} className="card grid gap-3 md:grid-cols-[1fr_2fr_auto] items-end" aria-label="New study">

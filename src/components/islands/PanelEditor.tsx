@@ -1,4 +1,6 @@
 import { useState } from 'react';
+import { savePanel } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Channel { marker: string; antibodyClone: string; fluorophore: string; excitationNm: number | null; emissionNm: number | null }
 
@@ -9,9 +11,12 @@ export default function PanelEditor({ studyId, initial }: { studyId: string; ini
   const set = (i: number, k: keyof Channel, v: string) =>
     setRows(rows.map((r, j) => (j !== i ? r : { ...r, [k]: k.endsWith('Nm') ? (v === '' ? null : Number(v)) : v })));
   async function save() {
-    const res = await fetch(`/api/studies/${studyId}/panel`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ channels: rows }) });
-    const body = await res.json();
-    setMsg(res.ok ? { ok: true, text: 'Panel saved.' } : { ok: false, text: body.message });
+    try {
+      await savePanel(studyId, rows);
+      setMsg({ ok: true, text: 'Panel saved.' });
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e) });
+    }
   }
   return (
     <div className="space-y-2 text-sm">

@@ -1,5 +1,7 @@
 import { useEffect, useState, type FormEvent } from 'react';
 import { roleName } from '../../lib/pages/roleNames';
+import { changeUserRole, invitePerson, listUsers } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Person { id: string; email: string; name: string; role: string; active: boolean; pendingInvitation: boolean }
 const ROLES = ['biologist', 'analyst', 'collaborator', 'admin'] as const;
@@ -10,27 +12,35 @@ export default function PeopleAdmin() {
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
 
   async function load() {
-    const res = await fetch('/api/admin/users');
-    if (res.ok) setPeople((await res.json()).users);
+    try {
+      setPeople((await listUsers()).users);
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e, 'The list of people could not be loaded; reload the page.') });
+    }
   }
   useEffect(() => { void load(); }, []);
 
   async function invite(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const f = new FormData(e.currentTarget);
-    const res = await fetch('/api/admin/invitations', {
-      method: 'POST', headers: { 'Content-Type': 'application/json' },
-      body: JSON.stringify({ email: f.get('email'), name: f.get('name'), role: f.get('role') }),
-    });
-    const data = await res.json();
-    setMsg(res.ok ? { ok: true, text: `Invitation sent to ${data.email}.` } : { ok: false, text: data.message });
-    if (res.ok) { e.currentTarget?.reset?.(); void load(); }
+    const form = e.currentTarget;
+    try {
+      const data = await invitePerson({ email: String(f.get('email') ?? ''), name: String(f.get('name') ?? ''), role: String(f.get('role') ?? '') });
+      setMsg({ ok: true, text: `Invitation sent to ${data.email}.` });
+      form?.reset?.();
+      void load();
+    } catch (err) {
+      setMsg({ ok: false, text: errorText(err) });
+    }
   }
 
   async function changeRole(id: string, role: string) {
-    const res = await fetch(`/api/admin/users/${id}`, { method: 'PATCH', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ role }) });
-    const data = await res.json();
-    setMsg(res.ok ? { ok: true, text: 'Role changed.' } : { ok: false, text: data.message });
+    try {
+      await changeUserRole(id, role);
+      setMsg({ ok: true, text: 'Role changed.' });
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e) });
+    }
     void load();
   }
 

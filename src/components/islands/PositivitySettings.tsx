@@ -1,6 +1,8 @@
 import { useState } from 'react';
 import { describeRule, type MarkerPositivitySetting, type MarkerPositivityUsed } from '../../lib/schemas/positivitySettings';
 import { POSITIVITY_K_MAX, POSITIVITY_K_MIN } from '../../lib/schemas/positivity';
+import { relinkFields, savePositivity } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Row extends MarkerPositivitySetting { channelIndex: number }
 interface OtherField { id: string; name: string; sampleCode: string; status: 'linked' | 'approved'; markers: { marker: string; used: MarkerPositivityUsed | null }[] }
@@ -23,22 +25,28 @@ export default function PositivitySettings({ studyId, canEdit, markers, fieldsLi
   async function save() {
     setBusy(true);
     const body = { markers: rows.map((r) => ({ marker: r.marker, positivityK: r.kText.trim() === '' ? null : Number(r.kText), manualThresholdCounts: r.manualText.trim() === '' ? null : Number(r.manualText) })) };
-    const res = await fetch(`/api/studies/${studyId}/positivity`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
-    const data = await res.json();
-    setBusy(false);
-    if (!res.ok) return setMsg({ ok: false, text: data.message });
-    setOthers(data.fieldsLinkedWithOtherSettings);
-    setMsg({ ok: true, text: 'Thresholds saved. Fields already linked keep their results until they are linked again.' });
+    try {
+      const data = await savePositivity(studyId, body);
+      setOthers(data.fieldsLinkedWithOtherSettings);
+      setMsg({ ok: true, text: 'Thresholds saved. Fields already linked keep their results until they are linked again.' });
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
   }
   async function relink() {
     setBusy(true);
     const ids = others.filter((f) => f.status === 'linked').map((f) => f.id);
-    const res = await fetch(`/api/studies/${studyId}/relink`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ fieldIds: ids }) });
-    const data = await res.json();
-    setBusy(false);
-    if (!res.ok) return setMsg({ ok: false, text: data.message });
-    setOthers(others.filter((f) => !data.queued.includes(f.id)));
-    setMsg({ ok: true, text: `${data.queued.length} field(s) queued for linking; their pages show the progress.` });
+    try {
+      const data = await relinkFields(studyId, ids);
+      setOthers(others.filter((f) => !data.queued.includes(f.id)));
+      setMsg({ ok: true, text: `${data.queued.length} field(s) queued for linking; their pages show the progress.` });
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
   }
   const linked = others.filter((f) => f.status === 'linked');
   const approved = others.filter((f) => f.status === 'approved');

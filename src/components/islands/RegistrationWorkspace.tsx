@@ -5,6 +5,8 @@ import type { Affine, Point } from '../../lib/analysis/types';
 import type { FieldDetection } from '../../lib/schemas/detectionTypes';
 import type { SavedRegistration } from '../../lib/schemas/registration';
 import AlignmentCheck, { type CheckLayer } from './registration/AlignmentCheck';
+import { getFieldDetection, proposePairs, saveRegistration } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Pair { afm: Point; fl: Point }
 /** A partner proposed through the current transform for a point the analyst clicked; not a pair until accepted. */
@@ -84,7 +86,9 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
   const [busy, setBusy] = useState(false);
 
   useEffect(() => {
-    fetch(`/api/fields/${fieldId}/detection`).then(async (r) => (r.ok ? setDet(await r.json()) : setMsg({ ok: false, text: 'Detections could not be loaded; clicks will not snap.' })));
+    const stop = new AbortController();
+    getFieldDetection(fieldId, stop.signal).then(setDet, () => { if (!stop.signal.aborted) setMsg({ ok: false, text: 'Detections could not be loaded; clicks will not snap.' }); });
+    return () => stop.abort();
   }, [fieldId]);
 
   const afmCandidates = useMemo(() => (det ? [...det.fiducialCandidates, ...det.vesicles].map(({ x, y }) => ({ x, y })) : []), [det]);
@@ -214,10 +218,14 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
   async function findPairs() {
     setBusy(true);
     setMsg(null);
-    const r = await fetch(`/api/fields/${fieldId}/registration/auto`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ model }) });
-    const body = await r.json();
-    setBusy(false);
-    if (!r.ok) return setMsg({ ok: false, text: body.message });
+    let body;
+    try {
+      body = await proposePairs(fieldId, model);
+    } catch (e) {
+      return setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
     setProposals(body.pairs);
     setMsg({ ok: true, text: `${body.pairs.length} pairs proposed with the ${body.model} model (RMS ${fmt(body.rmsResidualPx * flPixelNm)} nm). Review them: accept or drop each.` });
   }
@@ -225,10 +233,14 @@ export default function RegistrationWorkspace({ fieldId, afmPixelNm, flPixelNm, 
   async function save() {
     if (!canSave) return;
     setBusy(true);
-    const r = await fetch(`/api/fields/${fieldId}/registration`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ basedOnVersion: baseVersion, model, pairs }) });
-    const body = await r.json();
-    setBusy(false);
-    if (!r.ok) return setMsg({ ok: false, text: body.message });
+    let body;
+    try {
+      body = await saveRegistration(fieldId, { basedOnVersion: baseVersion, model, pairs });
+    } catch (e) {
+      return setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
     setBaseVersion(body.version);
     setMsg({ ok: true, text: `Saved as version ${body.version}: FRE ${fmt(body.freNm)} nm.` });
   }

@@ -1,4 +1,6 @@
 import { useState } from 'react';
+import { releaseSample } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 /** Releases a sample's approved results to the study's collaborators as a new version. */
 export default function ReleaseButton({ sampleId, code, latestVersion }: { sampleId: string; code: string; latestVersion: number }) {
@@ -7,11 +9,15 @@ export default function ReleaseButton({ sampleId, code, latestVersion }: { sampl
   async function release() {
     if (!window.confirm(`Release the current results of ${code} to the study's collaborators as version ${latestVersion + 1}?`)) return;
     setBusy(true);
-    const r = await fetch(`/api/samples/${sampleId}/release`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ expectedVersion: latestVersion }) });
-    const body = await r.json();
-    setBusy(false);
-    setMsg(r.ok ? { ok: true, text: `Released as version ${body.version}.` } : { ok: false, text: body.message });
-    if (r.ok) setTimeout(() => window.location.reload(), 800);
+    try {
+      const body = await releaseSample(sampleId, latestVersion);
+      setMsg({ ok: true, text: `Released as version ${body.version}.` });
+      setTimeout(() => window.location.reload(), 800);
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
   }
   return (
     <span className="inline-flex flex-col gap-1">

@@ -1,4 +1,6 @@
 import { useState } from 'react';
+import { removeField } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 /**
  * Removes a field that is neither approved nor released (for instance a failed upload that would block its
@@ -14,13 +16,11 @@ export default function RemoveFieldButton({ fieldId, name, sampleCode, version, 
     if (!window.confirm(question)) return;
     setBusy(true);
     try {
-      const r = await fetch(`/api/fields/${fieldId}`, { method: 'DELETE', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ expectedVersion: version }) });
-      const body = await r.json().catch(() => ({ message: `The server answered ${r.status}.` }));
-      if (!r.ok) return setMsg({ ok: false, text: body.message });
+      await removeField(fieldId, version);
       setMsg({ ok: true, text: `Field ${name} was removed. Returning to the study…` });
       setTimeout(() => window.location.assign(`/studies/${studyId}`), 800);
-    } catch {
-      setMsg({ ok: false, text: 'The server could not be reached; nothing was removed. Try again.' });
+    } catch (e) {
+      setMsg({ ok: false, text: errorText(e, 'The server could not be reached; nothing was removed. Try again.') });
     } finally {
       setBusy(false);
     }

@@ -1,6 +1,6 @@
 import { useEffect, useState } from 'react';
 import type { ResultSource, SampleResults, StudyComparison } from '../../lib/reporting/types';
-import { api } from '../../lib/api-client/http';
+import { getSampleResults } from '../../lib/api-client/routes';
 import { SampleView } from './results/SampleView';
 import { StudyView } from './results/StudyView';
 
@@ -25,8 +25,8 @@ function SampleDashboard({ initial, canPreview }: { initial: SampleResults; canP
   useEffect(() => {
     if (source === initial.source && data === initial) return;
     const ctrl = new AbortController();
-    api<never>(`/api/samples/${initial.sample.id}/results?source=${source}`, null, { signal: ctrl.signal })
-      .then((d) => { setData(d as unknown as SampleResults); setError(null); })
+    getSampleResults(initial.sample.id, source, ctrl.signal)
+      .then((d) => { setData(d); setError(null); })
       .catch((e: Error) => { if (e.name !== 'AbortError') { setData(null); setError(e.message); } });
     return () => ctrl.abort();
   }, [source]);

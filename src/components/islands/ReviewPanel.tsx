@@ -1,5 +1,7 @@
 import { Fragment, useState } from 'react';
 import { describeRule, positivityUsed } from '../../lib/schemas/positivitySettings';
+import { linkField, reviewField } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Review { decision: string; comment: string; reviewedAt: string; reviewer: string | null }
 interface Props {
@@ -14,12 +16,15 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const [busy, setBusy] = useState(false);
 
-  async function post(path: string, body?: unknown) {
+  async function post(call: () => Promise<unknown>) {
     setBusy(true);
-    const r = await fetch(path, { method: 'POST', headers: { 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
-    const data = await r.json();
-    setBusy(false);
-    if (!r.ok) return setMsg({ ok: false, text: data.message });
+    try {
+      await call();
+    } catch (e) {
+      return setMsg({ ok: false, text: errorText(e) });
+    } finally {
+      setBusy(false);
+    }
     window.location.reload();
   }
   const positive = (summary?.positiveByMarker ?? {}) as Record<string, number>;
@@ -83,15 +88,15 @@ export default function ReviewPanel({ fieldId, status, version, canAnalyse, revi
         </div>
       )}
       {canAnalyse && ['registered', 'linked'].includes(status) && (
-        <button type="button" className="btn w-full justify-center" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/link`)}>{status === 'linked' ? 'Link again' : 'Link vesicles to markers'}</button>
+        <button type="button" className="btn w-full justify-center" disabled={busy} onClick={() => post(() => linkField(fieldId))}>{status === 'linked' ? 'Link again' : 'Link vesicles to markers'}</button>
       )}
       {canAnalyse && ['linked', 'approved'].includes(status) && (
         <div className="space-y-2">
           <label className="field-label" htmlFor="review-comment">Comment {status === 'approved' ? '(required to send back)' : ''}</label>
           <textarea id="review-comment" className="input" rows={2} value={comment} onChange={(e) => setComment(e.target.value)} />
           <div className="flex gap-2">
-            {status === 'linked' && <button type="button" className="btn" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/review`, { decision: 'approved', comment, expectedVersion: version })}>Approve field</button>}
-            <button type="button" className="btn btn-quiet" disabled={busy} onClick={() => post(`/api/fields/${fieldId}/review`, { decision: 'sent_back', comment, expectedVersion: version })}>Send back</button>
+            {status === 'linked' && <button type="button" className="btn" disabled={busy} onClick={() => post(() => reviewField(fieldId, { decision: 'approved', comment, expectedVersion: version }))}>Approve field</button>}
+            <button type="button" className="btn btn-quiet" disabled={busy} onClick={() => post(() => reviewField(fieldId, { decision: 'sent_back', comment, expectedVersion: version }))}>Send back</button>
           </div>
         </div>
       )}

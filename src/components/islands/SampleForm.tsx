@@ -4,6 +4,8 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
 import { SampleCreateRequest } from '../../lib/schemas/fields';
 import { looksIdentifying } from '../../lib/reporting/looksIdentifying';
+import { createSample } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 type Values = z.input<typeof SampleCreateRequest>;
 
@@ -19,9 +21,11 @@ export default function SampleForm({ studyId }: { studyId: string }) {
 
   async function onSubmit(v: Values) {
     if (check.identifying && !confirmed) return setMsg({ ok: false, text: 'Confirm that the code is not a personal identifier, or change it.' });
-    const r = await fetch(`/api/studies/${studyId}/samples`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(v) });
-    const body = await r.json();
-    if (!r.ok) return setMsg({ ok: false, text: body.message });
+    try {
+      await createSample(studyId, v);
+    } catch (e) {
+      return setMsg({ ok: false, text: errorText(e) });
+    }
     setMsg({ ok: true, text: `Sample ${v.code} recorded.` });
     reset();
     setConfirmed(false);

@@ -1,5 +1,7 @@
 import { useState, type FormEvent } from 'react';
 import { MIN_PASSWORD_LENGTH_CLIENT } from '../../lib/schemas/limits';
+import { acceptInvitation } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 /** Sets a password from an invitation or reset link. */
 export default function SetPasswordForm({ token }: { token: string }) {
@@ -13,10 +15,11 @@ export default function SetPasswordForm({ token }: { token: string }) {
     if (password !== String(form.get('confirm'))) return setError('The two passwords differ.');
     if (password.length < MIN_PASSWORD_LENGTH_CLIENT) return setError(`Use at least ${MIN_PASSWORD_LENGTH_CLIENT} characters.`);
     setError(null);
-    const res = await fetch('/api/invitations/accept', { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ token, password }) });
-    const data = await res.json();
-    if (!res.ok) return setError(data.message ?? 'That did not work.');
-    setDone(data.email);
+    try {
+      setDone((await acceptInvitation(token, password)).email);
+    } catch (e) {
+      setError(errorText(e));
+    }
   }
 
   if (done) {

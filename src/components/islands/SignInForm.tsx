@@ -1,4 +1,6 @@
 import { useState, type FormEvent } from 'react';
+import { signInWithPassword } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 const MESSAGES: Record<string, string> = {
   too_many_attempts: 'Too many failed sign-ins for this e-mail or network. Wait 15 minutes, or reset your password.',
@@ -16,14 +18,7 @@ export default function SignInForm({ next }: { next: string }) {
     setError(null);
     const form = new FormData(e.currentTarget);
     try {
-      const { csrfToken } = await (await fetch('/api/auth/csrf')).json();
-      const res = await fetch('/api/auth/callback/credentials', {
-        method: 'POST',
-        headers: { 'Content-Type': 'application/x-www-form-urlencoded', 'X-Auth-Return-Redirect': '1' },
-        body: new URLSearchParams({ email: String(form.get('email')), password: String(form.get('password')), csrfToken, callbackUrl: next }),
-      });
-      const data = await res.json();
-      const url = new URL(data.url, window.location.origin);
+      const url = new URL(await signInWithPassword(String(form.get('email')), String(form.get('password')), next), window.location.origin);
       const err = url.searchParams.get('error');
       if (err) {
         setError(MESSAGES[url.searchParams.get('code') ?? ''] ?? MESSAGES.credentials);
@@ -31,8 +26,8 @@ export default function SignInForm({ next }: { next: string }) {
         return;
       }
       window.location.href = next;
-    } catch {
-      setError('The server could not be reached. Check your connection and try again.');
+    } catch (e) {
+      setError(errorText(e, 'The server could not be reached. Check your connection and try again.'));
       setBusy(false);
     }
   }

@@ -1,4 +1,6 @@
 import { useEffect, useState } from 'react';
+import { listUsers, setStudyMember } from '../../lib/api-client/routes';
+import { errorText } from '../../lib/api-client/http';
 
 interface Member { userId: string; name: string; email: string; role: string }
 interface Person { id: string; name: string; email: string; role: string; active: boolean }
@@ -9,12 +11,19 @@ export default function StudyMembers({ studyId, members }: { studyId: string; me
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const [who, setWho] = useState('');
   const [role, setRole] = useState('biologist');
-  useEffect(() => { fetch('/api/admin/users').then(async (r) => r.ok && setPeople((await r.json()).users)); }, []);
+  useEffect(() => {
+    const stop = new AbortController();
+    listUsers(stop.signal).then((r) => setPeople(r.users), (e) => { if (!stop.signal.aborted) setMsg({ ok: false, text: errorText(e, 'The list of people could not be loaded; reload the page.') }); });
+    return () => stop.abort();
+  }, []);
 
   async function put(userId: string, r: string | null) {
-    const res = await fetch(`/api/studies/${studyId}/members`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ userId, role: r }) });
-    if (res.ok) return window.location.reload();
-    setMsg({ ok: false, text: (await res.json()).message });
+    try {
+      await setStudyMember(studyId, userId, r);
+    } catch (e) {
+      return setMsg({ ok: false, text: errorText(e) });
+    }
+    window.location.reload();
   }
   const outside = people.filter((p) => p.active && p.role !== 'admin' && !members.some((m) => m.userId === p.id));
 

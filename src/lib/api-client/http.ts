@@ -1,13 +1,24 @@
 /** Typed fetch for islands: parses replies with the shared schemas and turns error bodies into ApiError. */
 import type { z } from 'zod';
+import { ErrorReply } from '../schemas/replies';
 
 export class ApiError extends Error {
   constructor(readonly status: number, readonly code: string, message: string) {
     super(message);
+    this.name = 'ApiError';
   }
 }
 
-export async function api<S extends z.ZodType>(path: string, schema: S | null, init: RequestInit & { json?: unknown } = {}): Promise<z.infer<S>> {
+/** What an island shows for a failed call: the server's message, or a plain one when the server was not reached. */
+export function errorText(e: unknown, unreachable = 'The server could not be reached; nothing was changed. Try again.'): string {
+  if (e instanceof ApiError) return e.message;
+  return unreachable;
+}
+
+export type ApiInit = Omit<RequestInit, 'body'> & { json?: unknown; body?: BodyInit };
+
+/** One call: the reply must parse with `schema` (a route whose body is not read passes `AnyReply`). */
+export async function api<S extends z.ZodType>(path: string, schema: S, init: ApiInit = {}): Promise<z.infer<S>> {
   const { json, ...rest } = init;
   const res = await fetch(path, {
     ...rest,
@@ -22,10 +33,28 @@ export async function api<S extends z.ZodType>(path: string, schema: S | null, i
     /* not JSON */
   }
   if (!res.ok) {
-    const body = (data ?? {}) as { error?: string; message?: string };
+    const parsed = ErrorReply.safeParse(data);
+    const body = parsed.success ? parsed.data : {};
     throw new ApiError(res.status, body.error ?? 'http_error', body.message ?? `The server answered ${res.status}.`);
   }
-  return schema ? schema.parse(data) : (data as z.infer<S>);
+  const parsed = schema.safeParse(data);
+  if (!parsed.success) {
+    throw new ApiError(res.status, 'bad_reply', `The server's reply to ${path.split('?')[0]} was not in the expected form; reload the page.`);
+  }
+  return parsed.data;
+}
+
+/** A binary reply: checks the status and the content type before handing over the bytes. */
+export async function apiBytes(path: string, contentType: string, init: Omit<RequestInit, 'body'> = {}): Promise<ArrayBuffer> {
+  const res = await fetch(path, init);
+  if (!res.ok) {
+    const parsed = ErrorReply.safeParse(await res.json().catch(() => null));
+    const body = parsed.success ? parsed.data : {};
+    throw new ApiError(res.status, body.error ?? 'http_error', body.message ?? `The server answered ${res.status}.`);
+  }
+  const got = (res.headers.get('content-type') ?? '').split(';')[0].trim().toLowerCase();
+  if (got !== contentType) throw new ApiError(res.status, 'bad_reply', `The server sent ${got || 'an unnamed type'} where ${contentType} was expected; reload the page.`);
+  return res.arrayBuffer();
 }
 
 /** PUTs a file to a presigned URL with progress (fetch has no upload progress, so XMLHttpRequest). */

@@ -3,6 +3,8 @@ import { composeAffine, invertAffine } from '../../../lib/analysis/geometry';
 import { downsampledFromFull, resampleThroughAffine } from '../../../lib/analysis/geometry/resampleThroughAffine';
 import { VIRIDIS_RGB } from '../../../lib/imaging/colourMapHeight';
 import type { Affine } from '../../../lib/analysis/types';
+import { getLayerValues } from '../../../lib/api-client/routes';
+import { ApiError } from '../../../lib/api-client/http';
 
 /** One layer's stored value read-out (`<layer>.f32`, block-averaged) and how to colour it. */
 export interface CheckLayer {
@@ -110,14 +112,11 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
     for (const l of [height, ch]) {
       if (!l || requested.current.has(l.layer)) continue;
       requested.current.add(l.layer);
-      fetch(`/api/fields/${fieldId}/tiles/${l.layer}.f32`).then(async (r) => {
-        if (!r.ok) return setError(`The values of the ${l.label.toLowerCase()} could not be loaded (${r.status}); reload the page.`);
-        const buf = await r.arrayBuffer();
-        if (buf.byteLength !== l.valuesWidth * l.valuesHeight * 4) {
-          return setError(`The stored values of the ${l.label.toLowerCase()} do not match their size; re-run the field's processing.`);
-        }
-        setValues((v) => ({ ...v, [l.layer]: new Float32Array(buf) }));
-      }, () => setError('The image values could not be loaded; check the connection and reload the page.'));
+      getLayerValues(fieldId, l.layer, l.valuesWidth * l.valuesHeight).then((arr) => setValues((v) => ({ ...v, [l.layer]: arr })), (e) => {
+        if (e instanceof RangeError) return setError(`The stored values of the ${l.label.toLowerCase()} do not match their size; re-run the field's processing.`);
+        if (e instanceof ApiError) return setError(`The values of the ${l.label.toLowerCase()} could not be loaded (${e.status}); reload the page.`);
+        setError('The image values could not be loaded; check the connection and reload the page.');
+      });
     }
   }, [fieldId, height, ch]);
 

@@ -1,7 +1,7 @@
 import { useEffect, useState } from 'react';
 import type { StudyComparison } from '../../../lib/reporting/types';
 import { COMPARISON_METHOD } from '../../../lib/reporting/methodText';
-import { api } from '../../../lib/api-client/http';
+import { getStudyComparison } from '../../../lib/api-client/routes';
 import { FractionsPlot } from './FractionsPlot';
 import { ci, nm, pct, pValue } from './format';
 
@@ -26,8 +26,8 @@ export function StudyView({ initial }: { initial: StudyComparison }) {
     if (groupA === data.groupA && groupB === data.groupB) return;
     const ctrl = new AbortController();
     setBusy(true);
-    api<never>(`/api/studies/${initial.study.id}/comparison?${query}`, null, { signal: ctrl.signal })
-      .then((d) => { setData(d as unknown as StudyComparison); setError(null); })
+    getStudyComparison(initial.study.id, query, ctrl.signal)
+      .then((d) => { setData(d); setError(null); })
       .catch((e: Error) => { if (e.name !== 'AbortError') setError(e.message); })
       .finally(() => setBusy(false));
     return () => ctrl.abort();
