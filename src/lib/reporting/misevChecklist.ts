@@ -163,7 +163,7 @@ export function misevChecklist(input: ChecklistInput): ChecklistItem[] {
   items.push({
     id: 'counts', title: 'Numbers of vesicles per sample (all and positive) with 95% CI', source: 'Newcombe 1998, Stat Med 17:857–872 (a field this product proposes)',
     status: input.releasedSamples === 0 ? 'missing' : input.releasedSamples === nS ? 'recorded' : 'partial',
-    detail: `Released for ${input.releasedSamples} of ${nS} sample(s), each with Wilson 95% intervals.`,
+    detail: `Released for ${input.releasedSamples} of ${nS} sample(s), each with a 95% interval that allows for the spread between its fields (Wilson on Kish's effective number of vesicles).`,
   });
   return items;
 }
