@@ -54,12 +54,13 @@ export default function PositivitySettings({ studyId, canEdit, markers, fieldsLi
   return (
     <div className="space-y-3 text-sm" data-testid="positivity-settings">
       <p className="text-mica-600">
-        A vesicle is called positive for a marker when its joint amplitude (counts) is above the threshold: set by hand, or
-        else mean + k SD of the amplitudes of the study&apos;s control-sample vesicles, or of empty places of the same frame
-        when there are no controls. k = 3 is common practice.
+        A vesicle is called positive for a marker when its joint amplitude stands above camera noise: its z (amplitude over
+        its standard error), calibrated at empty places of the same frame, exceeds k. With an isotype or secondary-only
+        control linked, the amplitude must also exceed the control vesicles&apos; 0.99 quantile. A threshold set by hand
+        (counts) replaces both.
       </p>
       <table className="data-table w-full">
-        <thead><tr><th>Marker</th><th>k (mean + k SD)</th><th>Threshold set by hand (counts)</th></tr></thead>
+        <thead><tr><th>Marker</th><th>k (calibrated z above)</th><th>Threshold set by hand (counts)</th></tr></thead>
         <tbody>
           {rows.map((r, i) => (
             <tr key={r.marker}>
