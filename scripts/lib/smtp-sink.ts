@@ -3,7 +3,7 @@
  * so invitations and resets can be read on the admin page and by tests.
  */
 import { SMTPServer } from 'smtp-server';
-import { mkdirSync, createWriteStream } from 'node:fs';
+import { mkdirSync, createWriteStream, renameSync } from 'node:fs';
 import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
 
@@ -15,9 +15,18 @@ export async function startSmtpSink(opts: { port: number; directory: string }) {
     size: 25 * 1024 * 1024,
     onData(stream, _session, callback) {
       const name = `${new Date().toISOString().replace(/[:.]/g, '-')}-${randomUUID().slice(0, 8)}.eml`;
-      const out = createWriteStream(join(opts.directory, name));
+      // Written under a .part name and renamed when whole, so a reader never parses half a message.
+      const partial = join(opts.directory, `${name}.part`);
+      const out = createWriteStream(partial);
       stream.pipe(out);
-      out.on('finish', () => callback());
+      out.on('finish', () => {
+        try {
+          renameSync(partial, join(opts.directory, name));
+          callback();
+        } catch (e) {
+          callback(e as Error);
+        }
+      });
       out.on('error', (e) => callback(e));
     },
   });
