@@ -16,6 +16,9 @@ export default defineConfig({
           environment: 'node',
           include: ['src/**/__tests__/**/*.test.ts', 'tests/unit/**/*.test.ts'],
           testTimeout: 60_000,
+          // Knobs read here, handed to tests with inject() (tests/support/provided.d.ts): src/ reads no environment
+          // outside src/lib/config.ts. FUZZ_CASES=50000 for a long fuzz run (src/lib/imaging/__tests__/fuzz.test.ts).
+          provide: { fuzzCases: Number(process.env.FUZZ_CASES ?? 5000) },
         },
       },
       {

@@ -1,8 +1,9 @@
 // Mutation fuzzing of the TIFF reader. Every mutated file must either decode or be rejected with an
 // ImagingError: any other error type fails the test with its seed. Times are printed, not asserted: a case
 // that hangs runs into the worker's own time limit (a 'timeout' failure) or the test's time-out.
-// FUZZ_CASES=50000 (50,000 in process, 25,000 through the worker) npx vitest run --project unit src/lib/imaging/__tests__/fuzz.test.ts  for a long run.
-import { describe, expect, it } from 'vitest';
+// FUZZ_CASES=50000 (50,000 in process, 25,000 through the worker) npx vitest run --project unit src/lib/imaging/__tests__/fuzz.test.ts  for a long run
+// (vitest.config.ts reads FUZZ_CASES and provides it as `fuzzCases`: src/ reads no environment outside src/lib/config.ts).
+import { describe, expect, inject, it } from 'vitest';
 import { decodeInWorker, decodeThreadStats } from '../decodeInWorker';
 import { JOB_DECODE_OPTIONS, jobDecodeLimits } from '../../jobs/decodeStoredFile';
 import { decodeTiff } from '../decodeTiff';
@@ -10,7 +11,7 @@ import { ImagingError } from '../errors';
 import { inspectTiff } from '../inspectTiff';
 import { baseFiles, mutate, prng } from './fuzzCases';
 
-const NB_CASES = Number(process.env.FUZZ_CASES ?? 5000);
+const NB_CASES = inject('fuzzCases');
 // the long mode scales both counts; the normal run keeps at least 2,000 through the job's worker path
 const NB_WORKER_CASES = Math.max(2000, Math.round(NB_CASES / 2));
 // the long mode runs past vitest's 60 s default: allow ~10 ms a case (measured: ~1 ms in process, ~2 ms through the worker)
