@@ -1,13 +1,10 @@
 import type { APIRoute } from 'astro';
 import { handle } from '../../lib/http/respond';
 import { parseJson } from '../../lib/http/parse';
-import { HttpError } from '../../lib/http/errors';
-import { getDb } from '../../lib/db/client';
-import { config } from '../../lib/config';
 import { ResetRequest } from '../../lib/schemas/people';
 import { clientAddress } from '../../lib/http/context';
-import { resetRequestVerdict } from '../../lib/auth/rateLimit';
-import { enqueuePasswordResetMail } from '../../lib/auth/passwordResetMail';
+import { appDb } from '../../lib/services/appDb';
+import { requestPasswordReset } from '../../lib/services/people/requestPasswordReset';
 
 /**
  * Public: asks for a reset link. Answers the same, in the same time, whether or not the address has an account:
@@ -15,11 +12,6 @@ import { enqueuePasswordResetMail } from '../../lib/auth/passwordResetMail';
  */
 export const POST = handle(async (ctx) => {
   const { email } = await parseJson(ctx.request, ResetRequest);
-  const ip = clientAddress(ctx);
-  const verdict = await resetRequestVerdict(await getDb(), email, ip);
-  if (!verdict.address.allowed) {
-    throw new HttpError(429, 'too_many_requests', `Too many reset requests from this network. Wait ${Math.ceil(verdict.address.retryAfterS / 60)} minute(s) and try again.`);
-  }
-  if (verdict.mail) await enqueuePasswordResetMail(config().DATABASE_URL, { email, ip });
+  await requestPasswordReset(await appDb(), email, clientAddress(ctx));
   return Response.json({ message: 'If that address has an account, a reset link is on its way.' }, { status: 202 });
 }) satisfies APIRoute;
