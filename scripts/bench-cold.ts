@@ -90,6 +90,11 @@ const load = () => os.loadavg().map((l) => l.toFixed(2)).join(' ');
 
 async function main() {
   const root = process.cwd();
+  // BENCH_FIELD_DIR=<folder>: only write the field there (for profiling a single run by hand), then stop.
+  if (process.env.BENCH_FIELD_DIR) {
+    console.log(`${await writeField(process.env.BENCH_FIELD_DIR)} vesicles written to ${process.env.BENCH_FIELD_DIR}`);
+    return;
+  }
   const dir = await mkdtemp(join(os.tmpdir(), 'hl-bench-cold-'));
   try {
     console.log('Heightlight cold-path benchmark (npm run bench:cold)');

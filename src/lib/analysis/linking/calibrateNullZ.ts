@@ -74,7 +74,7 @@ export function calibrateNullZ(raster: Raster, avoidPx: readonly Point[], option
   for (const p of positions) index.add(p.x, p.y);
   index.finish();
   const near = sourcesPx.filter((s) => index.within(s.x, s.y, 8 * sigmaPx).length > 0);
-  const fits = estimateMarkerAmplitudes(raster, [...positions, ...near], { sigmaPx, camera }).amplitudes.slice(0, positions.length);
+  const fits = estimateMarkerAmplitudes(raster, [...positions, ...near], { sigmaPx, camera, nbQueried: positions.length }).amplitudes.slice(0, positions.length);
   const z = fits.map((f) => f.unconstrainedAmplitudeCounts / f.stdErrCounts).filter(Number.isFinite);
   const se = fits.map((f) => f.stdErrCounts).filter(Number.isFinite);
   if (z.length < minPlaces) return { medianZ: 0, madZ: 1, nbPlaces: z.length, calibrated: false, positions, medianSeCounts: Number.NaN };

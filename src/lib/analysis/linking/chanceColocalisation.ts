@@ -79,7 +79,7 @@ export function chanceColocalisation(
     // sources further than 6σ from every moved position fall in other neighbourhoods of the fit and change nothing here
     const near = (p: Point) => index.within(p.x, p.y, 6 * sigmaPx).length > 0;
     const sources = [...fixedSourcesPx, ...spotsPx.filter((sp) => index.within(sp.x, sp.y, ownColumnMinDistancePx).length === 0)].filter(near);
-    const fitted = estimateMarkerAmplitudes(raster, [...moved, ...sources], { sigmaPx, camera }).amplitudes.slice(0, moved.length);
+    const fitted = estimateMarkerAmplitudes(raster, [...moved, ...sources], { sigmaPx, camera, nbQueried: moved.length }).amplitudes.slice(0, moved.length);
     for (const call of callMarkerAmplitudes(fitted, rule)) {
       if (call.positive === null) continue;
       nbPositions++;

@@ -1,7 +1,7 @@
 import KDBush from 'kdbush';
-import { Matrix, inverse } from 'ml-matrix';
+import { errorFunction } from 'simple-statistics';
 import type { Point, Raster } from '../types';
-import { gaussianPixelFraction } from '../fluorescence/gaussianPixelFraction';
+import { choleskySolve } from './choleskySolve';
 import { solveNnlsNormal } from './solveNnlsNormal';
 import type { CameraModel } from './types';
 
@@ -28,6 +28,13 @@ export interface EstimateMarkerAmplitudesOptions {
    * @default none
    */
   camera?: CameraModel;
+  /**
+   * Only the first nbQueried positions' amplitudes are wanted; the others are sources of light only. Neighbourhoods
+   * without a wanted position are not solved (their entries stay NaN, as out of frame, and they are not counted in
+   * nbGroups); the wanted ones come out exactly as when every neighbourhood is solved.
+   * @default every position
+   */
+  nbQueried?: number;
 }
 
 /** Amplitude of one vesicle in one channel. */
@@ -94,6 +101,7 @@ export function estimateMarkerAmplitudes(
   options: EstimateMarkerAmplitudesOptions,
 ): EstimateMarkerAmplitudesResult {
   const { sigmaPx, neighbourDistanceSigma = 3, windowMarginSigma = 4, camera } = options;
+  const queried = Math.min(positionsPx.length, options.nbQueried ?? positionsPx.length);
   if (!(sigmaPx > 0)) throw new RangeError(`sigmaPx must be positive, got ${sigmaPx}`);
   const { width, height, data } = raster;
   const n = positionsPx.length;
@@ -142,7 +150,9 @@ export function estimateMarkerAmplitudes(
   let largestGroup = 0;
   let groupIndex = 0;
   const margin = windowMarginSigma * sigmaPx;
+  const pixelK = 1 / (Math.SQRT2 * sigmaPx);
   for (const members of groups.values()) {
+    if (queried < n && !members.some((i) => i < queried)) continue;
     largestGroup = Math.max(largestGroup, members.length);
     // window
     let xMin = Infinity;
@@ -159,7 +169,9 @@ export function estimateMarkerAmplitudes(
     const x1 = Math.min(width - 1, Math.ceil(xMax + margin));
     const y0 = Math.max(0, Math.floor(yMin - margin));
     const y1 = Math.min(height - 1, Math.ceil(yMax + margin));
-    const m = (x1 - x0 + 1) * (y1 - y0 + 1);
+    const w = x1 - x0 + 1;
+    const h = y1 - y0 + 1;
+    const m = w * h;
     // other positions whose light reaches the window (within 3σ of it) get helper columns, fitted here and reported
     // in their own neighbourhood: otherwise a bright neighbour just outside the window raises the background column
     // and lowers the members' amplitudes
@@ -169,82 +181,66 @@ export function estimateMarkerAmplitudes(
     const cols = [...members, ...helpers];
     const k = cols.length;
 
-    // design matrix: PSF columns, then +1 and −1 background columns
-    const a = new Matrix(m, k + 2);
-    const b = new Float64Array(m);
-    let row = 0;
-    for (let y = y0; y <= y1; y++) {
-      for (let x = x0; x <= x1; x++) {
-        for (let c = 0; c < k; c++) {
-          const p = positionsPx[cols[c]];
-          a.set(row, c, gaussianPixelFraction(x - p.x, y - p.y, sigmaPx));
-        }
-        a.set(row, k, 1);
-        a.set(row, k + 1, -1);
-        b[row] = data[y * width + x];
-        row++;
-      }
+    // PSF columns: the pixel-integrated Gaussian is a product of a row and a column factor (gaussianPixelFraction),
+    // so each column is built from w + h error functions instead of w·h; stored column-major, one column per PSF
+    const fx = new Float64Array(w);
+    const fy = new Float64Array(h);
+    const a = new Float64Array(m * k);
+    for (let c = 0; c < k; c++) {
+      const p = positionsPx[cols[c]];
+      for (let ix = 0; ix < w; ix++) fx[ix] = pixelFraction1d(x0 + ix - p.x, pixelK);
+      for (let iy = 0; iy < h; iy++) fy[iy] = pixelFraction1d(y0 + iy - p.y, pixelK);
+      let at = c * m;
+      for (let iy = 0; iy < h; iy++) for (let ix = 0; ix < w; ix++) a[at++] = fx[ix] * fy[iy];
     }
-    // solve on the normal equations (solveNnlsNormal): unweighted first; with a camera model, again with each
-    // pixel weighted by 1/variance of its fitted mean
-    const normal = () => {
-      const at = a.transpose();
-      const bVec = Matrix.columnVector(Array.from(b));
-      let bb = 0;
-      for (let i = 0; i < m; i++) bb += b[i] * b[i];
-      return { g: at.mmul(a), h: at.mmul(bVec).getColumn(0), bb };
-    };
-    let eq = normal();
+    const b = new Float64Array(m);
+    for (let iy = 0, row = 0; iy < h; iy++) for (let ix = 0; ix < w; ix++) b[row++] = data[(y0 + iy) * width + x0 + ix];
+
+    // normal equations on the PSF columns, then +1 and −1 background columns (NNLS keeps each ≥ 0, so their difference
+    // may take either sign): unweighted first; with a camera model, again with each pixel weighted by 1/variance of
+    // its fitted mean
+    let eq = weightedNormalEquations(a, b, m, k, null);
     let solution = solveNnlsNormal(eq.g, eq.h).x;
     if (camera) {
-      const fitted = a.mmul(Matrix.columnVector(Array.from(solution)));
       const { offsetCounts, gainCountsPerPhoton: g, readNoiseCounts: r } = camera;
-      for (let i = 0; i < m; i++) {
-        // at least one photon's variance, so a pixel at or below the offset never gets an infinite weight
-        const variance = Math.max(g * (fitted.get(i, 0) - offsetCounts) + r * r, g + r * r);
-        const w = 1 / Math.sqrt(variance);
-        for (let c = 0; c < k + 2; c++) a.set(i, c, a.get(i, c) * w);
-        b[i] *= w;
+      const weights = new Float64Array(m).fill(solution[k] - solution[k + 1]);
+      for (let c = 0; c < k; c++) {
+        const x = solution[c];
+        if (x === 0) continue;
+        for (let i = 0, at = c * m; i < m; i++, at++) weights[i] += a[at] * x;
       }
-      eq = normal();
+      // at least one photon's variance, so a pixel at or below the offset never gets an infinite weight
+      for (let i = 0; i < m; i++) weights[i] = 1 / Math.max(g * (weights[i] - offsetCounts) + r * r, g + r * r);
+      eq = weightedNormalEquations(a, b, m, k, weights);
       solution = solveNnlsNormal(eq.g, eq.h).x;
     }
     const background = solution[k] - solution[k + 1];
     groupBackgroundCounts.push(background);
 
     // uncertainty from the unconstrained model (PSF columns + one background column); with a camera model the
-    // rows are already whitened, so (AᵀWA)⁻¹ is the covariance as it stands
+    // pixels are already weighted, so (AᵀWA)⁻¹ is the covariance as it stands
+    const n2 = k + 2;
     const dof = Math.max(1, m - (k + 1));
     // ‖A·x − b‖² = bᵀb − 2·xᵀh + xᵀG·x
     let rss = eq.bb;
-    for (let r = 0; r < k + 2; r++) {
+    for (let r = 0; r < n2; r++) {
       rss -= 2 * solution[r] * eq.h[r];
-      for (let c = 0; c < k + 2; c++) rss += solution[r] * eq.g.get(r, c) * solution[c];
+      for (let c = 0; c < n2; c++) rss += solution[r] * eq.g[r * n2 + c] * solution[c];
     }
     const sigma2 = camera ? 1 : Math.max(0, rss) / dof;
     // conditional on the active constraints: the PSF columns NNLS set to 0 leave the model, so a labelled vesicle next
     // to an unlabelled one (clipped to 0) gets the SE of the model without that neighbour, not one inflated by two
     // nearly equal columns; each member is tested with the passive columns, itself and the background
-    const passiveCols = [...Array(k).keys()].filter((c) => solution[c] > 0);
-    const fitOver = (cols: number[]) => {
-      try {
-        const inv = inverse(eq.g.selection(cols, cols));
-        const est = inv.mmul(Matrix.columnVector(cols.map((c) => eq.h[c])));
-        return { inv, est };
-      } catch {
-        return undefined;
-      }
-    };
-    const shared = fitOver([...passiveCols, k]);
+    const shared = [...Array(k).keys()].filter((c) => solution[c] > 0);
+    shared.push(k);
+    const sharedFit = solveSubset(eq.g, eq.h, n2, shared);
     members.forEach((i, c) => {
       const amplitude = solution[c];
-      const cols = solution[c] > 0 ? [...passiveCols, k] : [...passiveCols, c, k];
-      const fit = solution[c] > 0 ? shared : fitOver(cols);
-      const at = cols.indexOf(c);
-      const se = fit ? Math.sqrt(Math.max(0, sigma2 * fit.inv.get(at, at))) : Number.NaN;
+      const own = amplitude > 0 ? sharedOwn(sharedFit, shared.indexOf(c)) : borderedOwn(sharedFit, eq.g, eq.h, n2, shared, c);
+      const se = own ? Math.sqrt(Math.max(0, sigma2 * own.variance)) : Number.NaN;
       amplitudes[i] = {
         amplitudeCounts: amplitude,
-        unconstrainedAmplitudeCounts: fit ? fit.est.get(at, 0) : Number.NaN,
+        unconstrainedAmplitudeCounts: own ? own.estimate : Number.NaN,
         stdErrCounts: se,
         snr: se > 0 ? amplitude / se : Number.NaN,
         groupIndex,
@@ -253,5 +249,122 @@ export function estimateMarkerAmplitudes(
     });
     groupIndex++;
   }
-  return { amplitudes, nbGroups: groups.size, largestGroup, groupBackgroundCounts };
+  return { amplitudes, nbGroups: groupIndex, largestGroup, groupBackgroundCounts };
+}
+
+/** 1-D factor of gaussianPixelFraction: ½·[erf((d + ½)·k) − erf((d − ½)·k)] with k = 1/(√2·σ), the same expression. */
+function pixelFraction1d(dPx: number, k: number): number {
+  return 0.5 * (errorFunction((dPx + 0.5) * k) - errorFunction((dPx - 0.5) * k));
+}
+
+/**
+ * G = AᵀWA and h = AᵀWb (row-major, (k + 2)²) of the PSF columns `a` (column-major, m × k) plus a +1 and a −1
+ * background column, and bᵀWb; W = diag(weights) or the identity. Hand loops over typed arrays: the dense ml-matrix
+ * products (with their transposed copies) took most of the linking time.
+ */
+function weightedNormalEquations(a: Float64Array, b: Float64Array, m: number, k: number, weights: Float64Array | null) {
+  const n2 = k + 2;
+  const g = new Float64Array(n2 * n2);
+  const h = new Float64Array(n2);
+  const wa = weights ? new Float64Array(m) : a;
+  let sumW = 0;
+  let sumWb = 0;
+  let bb = 0;
+  for (let i = 0; i < m; i++) {
+    const wi = weights ? weights[i] : 1;
+    sumW += wi;
+    sumWb += wi * b[i];
+    bb += wi * b[i] * b[i];
+  }
+  for (let c = 0; c < k; c++) {
+    const ac = c * m;
+    let col: Float64Array;
+    let off: number;
+    if (weights) {
+      for (let i = 0; i < m; i++) wa[i] = weights[i] * a[ac + i];
+      col = wa;
+      off = 0;
+    } else {
+      col = a;
+      off = ac;
+    }
+    let hc = 0;
+    let sc = 0;
+    for (let i = 0; i < m; i++) {
+      hc += col[off + i] * b[i];
+      sc += col[off + i];
+    }
+    for (let d = 0; d <= c; d++) {
+      const ad = d * m;
+      let s = 0;
+      for (let i = 0; i < m; i++) s += col[off + i] * a[ad + i];
+      g[c * n2 + d] = s;
+      g[d * n2 + c] = s;
+    }
+    h[c] = hc;
+    g[c * n2 + k] = sc;
+    g[k * n2 + c] = sc;
+    g[c * n2 + k + 1] = -sc;
+    g[(k + 1) * n2 + c] = -sc;
+  }
+  g[k * n2 + k] = sumW;
+  g[(k + 1) * n2 + k + 1] = sumW;
+  g[k * n2 + k + 1] = -sumW;
+  g[(k + 1) * n2 + k] = -sumW;
+  h[k] = sumWb;
+  h[k + 1] = -sumWb;
+  return { g, h, bb };
+}
+
+interface SubsetFit {
+  /** (G_SS)⁻¹ over the subset S, row-major. */
+  readonly inv: Float64Array;
+  /** (G_SS)⁻¹·h_S. */
+  readonly est: Float64Array;
+}
+
+/** Least squares over the columns `subset` of the normal equations (G row-major n2 × n2, h); undefined when singular. */
+function solveSubset(g: Float64Array, h: Float64Array, n2: number, subset: readonly number[]): SubsetFit | undefined {
+  const p = subset.length;
+  const sub = new Float64Array(p * p);
+  const identity = new Float64Array(p * p);
+  for (let r = 0; r < p; r++) {
+    identity[r * p + r] = 1;
+    for (let c = 0; c < p; c++) sub[r * p + c] = g[subset[r] * n2 + subset[c]];
+  }
+  const inv = choleskySolve(sub, p, identity, p);
+  if (!inv) return undefined;
+  const est = new Float64Array(p);
+  for (let r = 0; r < p; r++) {
+    let s = 0;
+    for (let c = 0; c < p; c++) s += inv[r * p + c] * h[subset[c]];
+    est[r] = s;
+  }
+  return est.every(Number.isFinite) ? { inv, est } : undefined;
+}
+
+/** Estimate and variance factor of the subset's own column at position `at`. */
+function sharedOwn(fit: SubsetFit | undefined, at: number) {
+  return fit ? { estimate: fit.est[at], variance: fit.inv[at * fit.est.length + at] } : undefined;
+}
+
+/**
+ * Estimate and variance factor of column c added to the subset S, from S's inverse by the bordered (Schur complement)
+ * form instead of a new inverse: with u = G_S⁻¹·g_Sc and s = g_cc − g_Scᵀ·u, var factor = 1/s and
+ * estimate = (h_c − uᵀ·h_S)/s. Undefined when c is (numerically) a combination of S's columns.
+ * @see Golub GH, Van Loan CF. Matrix Computations, 4th ed., 2013, §3.2 (block elimination, Schur complement).
+ */
+function borderedOwn(fit: SubsetFit | undefined, g: Float64Array, h: Float64Array, n2: number, subset: readonly number[], c: number) {
+  if (!fit) return undefined;
+  const p = subset.length;
+  let s = g[c * n2 + c];
+  let num = h[c];
+  for (let r = 0; r < p; r++) {
+    let u = 0;
+    for (let q = 0; q < p; q++) u += fit.inv[r * p + q] * g[subset[q] * n2 + c];
+    s -= g[subset[r] * n2 + c] * u;
+    num -= u * h[subset[r]];
+  }
+  if (!(s > 1e-12 * g[c * n2 + c])) return undefined;
+  return { estimate: num / s, variance: 1 / s };
 }

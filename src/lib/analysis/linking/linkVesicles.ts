@@ -172,7 +172,7 @@ export function linkVesicles(
       .map((s) => ({ x: s.x, y: s.y }));
     nbOtherSpotSourcesByMarker[marker] = spotSources.length;
     const sources = [...otherSourcesPx, ...spotSources];
-    const fitted = estimateMarkerAmplitudes(raster, sources.length ? [...vesiclesFl, ...sources] : vesiclesFl, { sigmaPx, camera: cameraByMarker[marker] ?? camera }).amplitudes;
+    const fitted = estimateMarkerAmplitudes(raster, sources.length ? [...vesiclesFl, ...sources] : vesiclesFl, { sigmaPx, camera: cameraByMarker[marker] ?? camera, nbQueried: n }).amplitudes;
     const joint = fitted.slice(0, n);
     const tests = callMarkerAmplitudes(joint, rule);
 

@@ -1,4 +1,5 @@
 import { Matrix, solve } from 'ml-matrix';
+import { choleskySolve } from './choleskySolve';
 
 /** Result of {@link solveNnlsNormal}. */
 export interface SolveNnlsNormalResult {
@@ -14,16 +15,19 @@ export interface SolveNnlsNormalResult {
  * of an m × n QR, which makes the joint photometry of crowded windows (hundreds of pixels, tens of columns) tens of
  * times faster; the price is the squared condition number, harmless for PSF columns at least a few nm apart.
  *
- * @param g - AᵀA, n × n, symmetric positive semi-definite (not modified)
+ * @param g - AᵀA, n × n, symmetric positive semi-definite: a Matrix or row-major values (not modified)
  * @param h - Aᵀb, length n (not modified)
  * @param relativeTolerance - dual tolerance relative to max |h| (dimensionless)
  * @returns the solution and the iterations used
  * @throws RangeError when h's length differs from G's size
  * @see Lawson CL, Hanson RJ. Solving Least Squares Problems. Prentice-Hall, 1974, chapter 23 (algorithm NNLS).
  */
-export function solveNnlsNormal(g: Matrix, h: ArrayLike<number>, relativeTolerance = 1e-10): SolveNnlsNormalResult {
-  const n = g.rows;
-  if (h.length !== n || g.columns !== n) throw new RangeError(`G must be ${h.length} × ${h.length} like h, got ${g.rows} × ${g.columns}`);
+export function solveNnlsNormal(g: Matrix | Float64Array, h: ArrayLike<number>, relativeTolerance = 1e-10): SolveNnlsNormalResult {
+  const n = h.length;
+  const rows = g instanceof Matrix ? g.rows : Math.sqrt(g.length);
+  const columns = g instanceof Matrix ? g.columns : rows;
+  if (rows !== n || columns !== n) throw new RangeError(`G must be ${n} × ${n} like h, got ${rows} × ${columns}`);
+  const gv = g instanceof Matrix ? Float64Array.from(g.to1DArray()) : g;
   const x = new Float64Array(n);
   const passive = new Array<boolean>(n).fill(false);
   let scale = 0;
@@ -33,21 +37,22 @@ export function solveNnlsNormal(g: Matrix, h: ArrayLike<number>, relativeToleran
     const cols = passive.flatMap((p, j) => (p ? [j] : []));
     const z = new Float64Array(n);
     if (cols.length === 0) return z;
-    const sub = new Matrix(cols.length, cols.length);
-    const rhs = new Matrix(cols.length, 1);
-    cols.forEach((r, i) => {
-      rhs.set(i, 0, h[r]);
-      cols.forEach((c, j) => sub.set(i, j, g.get(r, c)));
-    });
-    // LU first; SVD (least-norm) when two columns coincide and the passive block is singular
-    let sol: Matrix;
-    try {
-      sol = solve(sub, rhs);
-      if (!sol.to1DArray().every(Number.isFinite)) throw new RangeError('singular');
-    } catch {
-      sol = solve(sub, rhs, true);
+    const p = cols.length;
+    const sub = new Float64Array(p * p);
+    const rhs = new Float64Array(p);
+    for (let i = 0; i < p; i++) {
+      rhs[i] = h[cols[i]];
+      for (let j = 0; j < p; j++) sub[i * p + j] = gv[cols[i] * n + cols[j]];
     }
-    cols.forEach((j, k) => (z[j] = sol.get(k, 0)));
+    // Cholesky first (the passive block of AᵀA is positive definite unless two columns coincide); SVD (least-norm)
+    // when it is singular
+    const sol = choleskySolve(sub, p, rhs);
+    if (sol && sol.every(Number.isFinite)) {
+      for (let k = 0; k < p; k++) z[cols[k]] = sol[k];
+      return z;
+    }
+    const svd = solve(Matrix.from1DArray(p, p, sub), Matrix.columnVector(Array.from(rhs)), true);
+    for (let k = 0; k < p; k++) z[cols[k]] = svd.get(k, 0);
     return z;
   };
 
@@ -60,7 +65,7 @@ export function solveNnlsNormal(g: Matrix, h: ArrayLike<number>, relativeToleran
     for (let j = 0; j < n; j++) {
       if (passive[j]) continue;
       let w = h[j];
-      for (let k = 0; k < n; k++) w -= g.get(j, k) * x[k];
+      for (let k = 0; k < n; k++) w -= gv[j * n + k] * x[k];
       if (w > bestW) {
         bestW = w;
         best = j;
