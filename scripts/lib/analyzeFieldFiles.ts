@@ -183,7 +183,8 @@ export async function analyzeFieldFiles(files: FieldFiles, settings: FieldSettin
     `fluorescence ${pages[0].width}×${pages[0].height} px at ${flPixelNm!.toPrecision(4)} nm/px (${(performance.now() - t).toFixed(0)} ms)`);
 
   // analyse, timing each stage
-  const started = new Map<FieldStage, number>();
+  // wall and CPU time per stage: on a shared machine the wall time also counts waiting for a core
+  const started = new Map<FieldStage, { wallMs: number; cpu: NodeJS.CpuUsage }>();
   const result = analyzeField(
     {
       heightNm: topography.pages[0],
@@ -198,8 +199,12 @@ export async function analyzeFieldFiles(files: FieldFiles, settings: FieldSettin
       thresholdNm,
       tipRadiusNm: tipRadiusNm ?? 0,
       onProgress: (stage, fraction) => {
-        if (fraction === 0) started.set(stage, performance.now());
-        if (fraction === 1) log(`${stage.padEnd(9)} ${(performance.now() - (started.get(stage) ?? 0)).toFixed(0).padStart(6)} ms`);
+        if (fraction === 0) started.set(stage, { wallMs: performance.now(), cpu: process.cpuUsage() });
+        const start = started.get(stage);
+        if (fraction === 1 && start) {
+          const cpu = process.cpuUsage(start.cpu);
+          log(`${stage.padEnd(9)} ${(performance.now() - start.wallMs).toFixed(0).padStart(6)} ms (CPU ${((cpu.user + cpu.system) / 1000).toFixed(0)} ms)`);
+        }
       },
     },
   );

@@ -151,6 +151,7 @@ export function estimateMarkerAmplitudes(
   let groupIndex = 0;
   const margin = windowMarginSigma * sigmaPx;
   const pixelK = 1 / (Math.SQRT2 * sigmaPx);
+  const scratch = scratchBuffers();
   for (const members of groups.values()) {
     if (queried < n && !members.some((i) => i < queried)) continue;
     largestGroup = Math.max(largestGroup, members.length);
@@ -182,28 +183,33 @@ export function estimateMarkerAmplitudes(
     const k = cols.length;
 
     // PSF columns: the pixel-integrated Gaussian is a product of a row and a column factor (gaussianPixelFraction),
-    // so each column is built from w + h error functions instead of w·h; stored column-major, one column per PSF
-    const fx = new Float64Array(w);
-    const fy = new Float64Array(h);
-    const a = new Float64Array(m * k);
+    // so each column is kept as its w + h factors (row-major per column) instead of w·h values
+    const fx = scratch.take('fx', w * k);
+    const fy = scratch.take('fy', h * k);
     for (let c = 0; c < k; c++) {
       const p = positionsPx[cols[c]];
-      for (let ix = 0; ix < w; ix++) fx[ix] = pixelFraction1d(x0 + ix - p.x, pixelK);
-      for (let iy = 0; iy < h; iy++) fy[iy] = pixelFraction1d(y0 + iy - p.y, pixelK);
-      let at = c * m;
-      for (let iy = 0; iy < h; iy++) for (let ix = 0; ix < w; ix++) a[at++] = fx[ix] * fy[iy];
+      for (let ix = 0; ix < w; ix++) fx[c * w + ix] = pixelFraction1d(x0 + ix - p.x, pixelK);
+      for (let iy = 0; iy < h; iy++) fy[c * h + iy] = pixelFraction1d(y0 + iy - p.y, pixelK);
     }
-    const b = new Float64Array(m);
+    const b = scratch.take('b', m);
     for (let iy = 0, row = 0; iy < h; iy++) for (let ix = 0; ix < w; ix++) b[row++] = data[(y0 + iy) * width + x0 + ix];
 
     // normal equations on the PSF columns, then +1 and −1 background columns (NNLS keeps each ≥ 0, so their difference
-    // may take either sign): unweighted first; with a camera model, again with each pixel weighted by 1/variance of
-    // its fitted mean
-    let eq = weightedNormalEquations(a, b, m, k, null);
+    // may take either sign): unweighted first, from the separable factors; with a camera model, again with each pixel
+    // weighted by 1/variance of its fitted mean
+    let eq = separableNormalEquations(fx, fy, w, h, k, b);
     let solution = solveNnlsNormal(eq.g, eq.h).x;
     if (camera) {
+      const a = scratch.take('a', m * k);
+      for (let c = 0; c < k; c++) {
+        let at = c * m;
+        for (let iy = 0; iy < h; iy++) {
+          const fyc = fy[c * h + iy];
+          for (let ix = 0; ix < w; ix++) a[at++] = fx[c * w + ix] * fyc;
+        }
+      }
       const { offsetCounts, gainCountsPerPhoton: g, readNoiseCounts: r } = camera;
-      const weights = new Float64Array(m).fill(solution[k] - solution[k + 1]);
+      const weights = scratch.take('weights', m).fill(solution[k] - solution[k + 1]);
       for (let c = 0; c < k; c++) {
         const x = solution[c];
         if (x === 0) continue;
@@ -211,7 +217,7 @@ export function estimateMarkerAmplitudes(
       }
       // at least one photon's variance, so a pixel at or below the offset never gets an infinite weight
       for (let i = 0; i < m; i++) weights[i] = 1 / Math.max(g * (weights[i] - offsetCounts) + r * r, g + r * r);
-      eq = weightedNormalEquations(a, b, m, k, weights);
+      eq = weightedNormalEquations(a, b, m, k, weights, scratch.take('wa', m));
       solution = solveNnlsNormal(eq.g, eq.h).x;
     }
     const background = solution[k] - solution[k + 1];
@@ -258,62 +264,118 @@ function pixelFraction1d(dPx: number, k: number): number {
 }
 
 /**
- * G = AᵀWA and h = AᵀWb (row-major, (k + 2)²) of the PSF columns `a` (column-major, m × k) plus a +1 and a −1
- * background column, and bᵀWb; W = diag(weights) or the identity. Hand loops over typed arrays: the dense ml-matrix
- * products (with their transposed copies) took most of the linking time.
+ * G = AᵀA and h = Aᵀb (row-major, (k + 2)²) of k separable PSF columns, A_c(x, y) = fx_c(x)·fy_c(y), plus a +1 and
+ * a −1 background column, and bᵀb: G_cd = (Σₓ fx_c·fx_d)·(Σ_y fy_c·fy_d), so the cost is k²·(w + h) + k·w·h.
  */
-function weightedNormalEquations(a: Float64Array, b: Float64Array, m: number, k: number, weights: Float64Array | null) {
+function separableNormalEquations(fx: Float64Array, fy: Float64Array, w: number, h: number, k: number, b: Float64Array) {
+  const n2 = k + 2;
+  const g = new Float64Array(n2 * n2);
+  const rhs = new Float64Array(n2);
+  let sumB = 0;
+  let bb = 0;
+  for (let i = 0, m = w * h; i < m; i++) {
+    sumB += b[i];
+    bb += b[i] * b[i];
+  }
+  for (let c = 0; c < k; c++) {
+    for (let d = 0; d <= c; d++) {
+      let sx = 0;
+      let sy = 0;
+      for (let ix = 0; ix < w; ix++) sx += fx[c * w + ix] * fx[d * w + ix];
+      for (let iy = 0; iy < h; iy++) sy += fy[c * h + iy] * fy[d * h + iy];
+      g[c * n2 + d] = sx * sy;
+      g[d * n2 + c] = sx * sy;
+    }
+    let sx = 0;
+    let sy = 0;
+    for (let ix = 0; ix < w; ix++) sx += fx[c * w + ix];
+    let hc = 0;
+    for (let iy = 0; iy < h; iy++) {
+      const fyc = fy[c * h + iy];
+      sy += fyc;
+      let row = 0;
+      for (let ix = 0, at = iy * w; ix < w; ix++, at++) row += fx[c * w + ix] * b[at];
+      hc += fyc * row;
+    }
+    rhs[c] = hc;
+    setBackground(g, n2, k, c, sx * sy);
+  }
+  finishBackground(g, rhs, n2, k, w * h, sumB);
+  return { g, h: rhs, bb };
+}
+
+/**
+ * G = AᵀWA and h = AᵀWb (row-major, (k + 2)²) of the PSF columns `a` (column-major, m × k) plus a +1 and a −1
+ * background column, and bᵀWb, W = diag(weights); `wa` is scratch of length m. Hand loops over typed arrays: the
+ * dense ml-matrix products (with their transposed copies) took most of the linking time.
+ */
+function weightedNormalEquations(a: Float64Array, b: Float64Array, m: number, k: number, weights: Float64Array, wa: Float64Array) {
   const n2 = k + 2;
   const g = new Float64Array(n2 * n2);
   const h = new Float64Array(n2);
-  const wa = weights ? new Float64Array(m) : a;
   let sumW = 0;
   let sumWb = 0;
   let bb = 0;
   for (let i = 0; i < m; i++) {
-    const wi = weights ? weights[i] : 1;
-    sumW += wi;
-    sumWb += wi * b[i];
-    bb += wi * b[i] * b[i];
+    sumW += weights[i];
+    sumWb += weights[i] * b[i];
+    bb += weights[i] * b[i] * b[i];
   }
   for (let c = 0; c < k; c++) {
     const ac = c * m;
-    let col: Float64Array;
-    let off: number;
-    if (weights) {
-      for (let i = 0; i < m; i++) wa[i] = weights[i] * a[ac + i];
-      col = wa;
-      off = 0;
-    } else {
-      col = a;
-      off = ac;
-    }
     let hc = 0;
     let sc = 0;
     for (let i = 0; i < m; i++) {
-      hc += col[off + i] * b[i];
-      sc += col[off + i];
+      const v = weights[i] * a[ac + i];
+      wa[i] = v;
+      hc += v * b[i];
+      sc += v;
     }
     for (let d = 0; d <= c; d++) {
       const ad = d * m;
       let s = 0;
-      for (let i = 0; i < m; i++) s += col[off + i] * a[ad + i];
+      for (let i = 0; i < m; i++) s += wa[i] * a[ad + i];
       g[c * n2 + d] = s;
       g[d * n2 + c] = s;
     }
     h[c] = hc;
-    g[c * n2 + k] = sc;
-    g[k * n2 + c] = sc;
-    g[c * n2 + k + 1] = -sc;
-    g[(k + 1) * n2 + c] = -sc;
+    setBackground(g, n2, k, c, sc);
   }
+  finishBackground(g, h, n2, k, sumW, sumWb);
+  return { g, h, bb };
+}
+
+/** The background columns' products with PSF column c: +s with the +1 column, −s with the −1 column. */
+function setBackground(g: Float64Array, n2: number, k: number, c: number, s: number) {
+  g[c * n2 + k] = s;
+  g[k * n2 + c] = s;
+  g[c * n2 + k + 1] = -s;
+  g[(k + 1) * n2 + c] = -s;
+}
+
+/** The background block [[W, −W], [−W, W]] with W = Σ weights, and h = (+Σ w·b, −Σ w·b). */
+function finishBackground(g: Float64Array, h: Float64Array, n2: number, k: number, sumW: number, sumWb: number) {
   g[k * n2 + k] = sumW;
   g[(k + 1) * n2 + k + 1] = sumW;
   g[k * n2 + k + 1] = -sumW;
   g[(k + 1) * n2 + k] = -sumW;
   h[k] = sumWb;
   h[k + 1] = -sumWb;
-  return { g, h, bb };
+}
+
+/** Grow-only work arrays for one call, so the tens of thousands of neighbourhoods do not each allocate their own. */
+function scratchBuffers() {
+  const buffers = new Map<string, Float64Array>();
+  return {
+    take(name: string, length: number): Float64Array {
+      let buffer = buffers.get(name);
+      if (!buffer || buffer.length < length) {
+        buffer = new Float64Array(Math.max(length, 2 * (buffer?.length ?? 0)));
+        buffers.set(name, buffer);
+      }
+      return buffer.subarray(0, length);
+    },
+  };
 }
 
 interface SubsetFit {
