@@ -11,6 +11,7 @@ import { embeddedSettings } from './lib/env';
 import { startServices } from './lib/services';
 import { seedAll } from './lib/seedAll';
 import { runPilot } from './lib/runPilot';
+import { createTemplateDatabase } from './lib/testDatabases';
 
 const log = (m: string) => console.log(`[test] ${m}`);
 
@@ -68,6 +69,8 @@ async function main() {
   try {
     ensureChromium();
     services = await startServices(s, log);
+    // the template that integration files copy into a database of their own (tests/support/fixtures.ts, ownDb)
+    log(`template database ${await createTemplateDatabase(s.env.DATABASE_URL)} migrated and seeded`);
     // the worker starts before the seed, the type check and the build, so the demo fields are ingested meanwhile
     const worker = spawn(process.execPath, ['scripts/run-bundled.mjs', 'worker'], { stdio: ['ignore', 'ignore', 'inherit'], env: process.env });
     children.push(worker);

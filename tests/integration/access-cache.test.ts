@@ -3,14 +3,16 @@
  * web processes; a change made through a third connection (as psql or another process would) must make both
  * forget the row, through the triggers of migration 0004 and LISTEN/NOTIFY.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { randomUUID } from 'node:crypto';
 import { eq, sql } from 'drizzle-orm';
 import { AccessCache, type CachedUser } from '../../src/lib/auth/accessCache';
 import { createDb, type Db } from '../../src/lib/db/client';
 import { markerChannels, studies, studyMembers, users } from '../../src/lib/db/schema';
+import { test, it } from '../support/fixtures';
 
-const url = process.env.DATABASE_URL!;
+// a database of this file's own (nothing here goes through the app server): its triggers and NOTIFYs are this file's alone
+let url: string;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 let db: Db;
 let userId: string;
@@ -29,23 +31,21 @@ function counted(load: () => Promise<CachedUser | null>) {
   return f;
 }
 
-beforeAll(async () => {
-  db = createDb(url, 2);
+test.beforeAll(async ({ ownDb }) => {
+  ({ url, db } = ownDb);
   const [u] = await db.insert(users).values({ email: `cache-${randomUUID()}@example.test`, name: 'Cache Probe', role: 'analyst', passwordHash: 'x' }).returning();
   userId = u.id;
   const [s] = await db.insert(studies).values({ name: `cache probe ${Date.now()}` }).returning();
   studyId = s.id;
 });
-afterAll(async () => {
-  await db.delete(studyMembers).where(eq(studyMembers.studyId, studyId));
-  await db.delete(studies).where(eq(studies.id, studyId));
-  await db.delete(users).where(eq(users.id, userId));
-  await db.$client.end();
-});
 
 describe('access memory shared by two processes', () => {
-  const a = new AccessCache(url);
-  const b = new AccessCache(url);
+  let a: AccessCache;
+  let b: AccessCache;
+  test.beforeAll(() => {
+    a = new AccessCache(url);
+    b = new AccessCache(url);
+  });
   afterAll(async () => { await a.stop(); await b.stop(); });
 
   const readUser = async () => {

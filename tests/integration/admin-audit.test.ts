@@ -3,11 +3,12 @@
  * a release) are listed, the action filter offers exactly the actions the writers use, and paging reaches
  * entries older than the newest page.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { randomUUID } from 'node:crypto';
-import { createDb, type Db } from '../../src/lib/db/client';
-import { AppClient, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { Db } from '../../src/lib/db/client';
+import type { AppClient } from '../support/client';
+import { DEMO } from '../support/demo';
+import { test, it } from '../support/fixtures';
 import { AUDIT_ACTIONS } from '../../src/lib/audit';
 import { summariseLinkRun } from '../../src/lib/db/queries/linkRunSummaries';
 
@@ -32,18 +33,17 @@ async function auditPage(params: Record<string, string>) {
   return { html, rows, options, olderQuery: older ? (older[1] ?? older[2]).replace(/&(amp|#38);/g, '&') : null };
 }
 
-beforeAll(async () => {
-  db = createDb(process.env.DATABASE_URL!, 2);
-  admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
+  admin = await signedIn('admin');
 });
 afterAll(async () => {
   await q(`delete from audit_log where actor_email like $1`, [`pager-${run}-%`]);
-  await db?.$client.end();
 });
 
 describe('admin audit page', () => {
-  it('lists a sign-in and a release the app wrote', async () => {
-    await signedIn(DEMO.analyst, DEMO_PASSWORD);
+  it('lists a sign-in and a release the app wrote', async ({ signedIn }) => {
+    await signedIn('analyst', { fresh: true });
     const signIns = await auditPage({ action: 'sign_in.succeeded', actor: DEMO.analyst });
     expect(signIns.rows.length).toBeGreaterThan(0);
     expect(signIns.rows[0]).toMatchObject({ action: 'sign_in.succeeded', actor: DEMO.analyst });
@@ -62,7 +62,7 @@ describe('admin audit page', () => {
       [linkRunId, fieldId, sampleId],
     );
     await summariseLinkRun(db, linkRunId);
-    const analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+    const analyst = await signedIn('analyst');
     const rel = await analyst.fetch(`/api/samples/${sampleId}/release`, { method: 'POST' });
     expect(rel.status, await rel.clone().text()).toBe(201);
     const released = await auditPage({ action: 'sample.released' });

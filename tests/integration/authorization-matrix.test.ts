@@ -1,10 +1,10 @@
-import { describe, it, expect, beforeAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { readdirSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
-import { AppClient, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD, ROLES, type DemoRole } from '../support/demo';
+import { AppClient } from '../support/client';
+import { DEMO, ROLES, type DemoRole } from '../support/demo';
+import { test, it } from '../support/fixtures';
 import { ROUTES, type RouteSpec } from '../support/routes';
-import { createDb } from '../../src/lib/db/client';
 import { samples, fields } from '../../src/lib/db/schema';
 
 const clients = {} as Record<DemoRole, AppClient>;
@@ -28,21 +28,19 @@ async function call(c: AppClient, r: RouteSpec, outsider = false) {
   return r.body === undefined ? c.fetch(path, { method: r.method }) : c.json(path, r.method, JSON.parse(fill(JSON.stringify(r.body), outsider)));
 }
 
-beforeAll(async () => {
-  for (const role of ROLES) clients[role] = await signedIn(DEMO[role], DEMO_PASSWORD);
+test.beforeAll(async ({ db, signedIn }) => {
+  for (const role of ROLES) clients[role] = await signedIn(role);
   const studies = (await (await clients.biologist.fetch('/api/studies')).json()).studies;
   const other = await clients.admin.json('/api/studies', 'POST', { name: `Matrix other study ${Date.now()}` });
   const users = (await (await clients.admin.fetch('/api/admin/users')).json()).users;
   ids = { study: studies[0].id, other: (await other.json()).id, user: users.find((u: { email: string }) => u.email === DEMO.collaborator).id };
   // A sample and a field in each study, written straight to the database.
-  const db = createDb(process.env.DATABASE_URL!, 2);
   for (const [key, studyId] of [['', ids.study], ['other', ids.other]] as const) {
     const [s] = await db.insert(samples).values({ studyId, code: `MATRIX-${Date.now()}-${key || 'own'}` }).returning();
     const [f] = await db.insert(fields).values({ sampleId: s.id, name: 'matrix probe', status: 'failed', failureReason: 'probe' }).returning();
     ids[key ? 'otherSample' : 'sample'] = s.id;
     ids[key ? 'otherField' : 'field'] = f.id;
   }
-  await db.$client.end();
 });
 
 describe('authorization matrix', () => {

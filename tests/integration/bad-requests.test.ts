@@ -4,13 +4,13 @@
  * reply is a JSON `{ error, message }` with a 4xx status, and no reply ever shows a stack trace, SQL or a
  * server path.
  */
-import { describe, it, expect, beforeAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { eq } from 'drizzle-orm';
-import { AppClient, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD, type DemoRole } from '../support/demo';
+import { AppClient } from '../support/client';
+import { DEMO, type DemoRole } from '../support/demo';
+import { test, it } from '../support/fixtures';
 import { ROUTES, type RouteSpec } from '../support/routes';
-import { createDb } from '../../src/lib/db/client';
 import { samples, fields, users } from '../../src/lib/db/schema';
 import { ownDemoField } from '../support/demoField';
 
@@ -56,10 +56,9 @@ async function expectCleanError(res: Response, statuses: number[], code?: string
   return JSON.parse(text || 'null');
 }
 
-beforeAll(async () => {
+test.beforeAll(async ({ db, signedIn }) => {
   clients.anonymous = new AppClient();
-  for (const role of ['admin', 'biologist'] as const) clients[role] = await signedIn(DEMO[role], DEMO_PASSWORD);
-  const db = createDb(process.env.DATABASE_URL!, 2);
+  for (const role of ['admin', 'biologist'] as const) clients[role] = await signedIn(role);
   // a processed field of its own, so routes that need one judge the body rather than answer 409 not_ready
   // (the seeded ones are registered, linked or released by other tests in any order)
   const fieldId = await ownDemoField('HCP-001', 'BADREQ');
@@ -67,7 +66,6 @@ beforeAll(async () => {
   const [s] = await db.select().from(samples).where(eq(samples.id, f.sampleId));
   const [u] = await db.select().from(users).where(eq(users.email, DEMO.collaborator));
   ids = { study: s.studyId, sample: s.id, field: f.id, user: u.id };
-  await db.$client.end();
 });
 
 describe('bad request bodies', () => {

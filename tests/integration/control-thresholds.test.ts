@@ -4,9 +4,10 @@
  * docs/references.md §6); buffer-only and ordinary samples never contribute; vesicles outside a frame (null amplitude)
  * are not control values; the stricter kind is chosen. Rows are written straight to the database.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import { createDb, type Db } from '../../src/lib/db/client';
+import { describe, expect } from 'vitest';
+import type { Db } from '../../src/lib/db/client';
 import { controlThresholds } from '../../src/lib/jobs/controlThresholds';
+import { test, it } from '../support/fixtures';
 
 let db: Db;
 let studyId: string;
@@ -29,8 +30,9 @@ async function addControl(kind: string, amplitudes: (number | null)[][], current
   );
 }
 
-beforeAll(async () => {
-  db = createDb(process.env.DATABASE_URL!, 2);
+// a database of this file's own (rows are written straight to it; nothing goes through the app server), dropped after the file
+test.beforeAll(async ({ ownDb }) => {
+  db = ownDb.db;
   [{ id: studyId }] = await q<{ id: string }>(`insert into studies (name) values ($1) returning id`, [`Control thresholds ${run}`]);
   // isotype: CD9 amplitudes 1..200 (two samples of 100), CD63 1..200 doubled, CD81 only 50 values (too few)
   const iso = (from: number) => Array.from({ length: 100 }, (_, i) => [from + i, 2 * (from + i), i < 25 ? from + i : null]);
@@ -42,11 +44,6 @@ beforeAll(async () => {
   await addControl('buffer_only', Array.from({ length: 300 }, () => [1e6, 1e6, 1e6]));
   await addControl('none', Array.from({ length: 300 }, () => [1e6, 1e6, 1e6]));
   await addControl('isotype', Array.from({ length: 300 }, () => [1e6, 1e6, 1e6]), false);
-});
-
-afterAll(async () => {
-  await q(`delete from studies where id = $1`, [studyId]);
-  await db.$client.end();
 });
 
 describe('controlThresholds', () => {

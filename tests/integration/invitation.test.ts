@@ -1,13 +1,14 @@
-import { describe, it, expect } from 'vitest';
-import { AppClient, signedIn } from '../support/client';
+import { describe, expect } from 'vitest';
+import { AppClient, signedIn as signInWith } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { test, it } from '../support/fixtures';
 import { waitForMail, linkIn } from '../support/mailSink';
 
 const unique = () => `person-${Date.now()}-${Math.floor(Math.random() * 1e6)}@lab.example`;
 
 describe('invitation by e-mail', () => {
-  it('admin invites, the invitee reads the mail, sets a password once, and signs in with the invited role', async () => {
-    const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+  it('admin invites, the invitee reads the mail, sets a password once, and signs in with the invited role', async ({ signedIn }) => {
+    const admin = await signedIn('admin');
     const email = unique();
     const res = await admin.json('/api/admin/invitations', 'POST', { email, name: 'Rosa Demo', role: 'analyst' });
     expect(res.status).toBe(201);
@@ -32,7 +33,7 @@ describe('invitation by e-mail', () => {
     expect(again.status).toBe(400);
     expect((await again.json()).error).toBe('invalid_token');
 
-    const invitee = await signedIn(email, 'a-new-password-42');
+    const invitee = await signInWith(email, 'a-new-password-42');
     const me = await (await invitee.fetch('/api/me')).json();
     expect(me.user.role).toBe('analyst');
     expect(me.user.email).toBe(email);
@@ -48,8 +49,8 @@ describe('invitation by e-mail', () => {
     expect((await forged.json()).error).toBe('invalid_token');
   });
 
-  it('password reset sends a one-time link that replaces the password', async () => {
-    const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+  it('password reset sends a one-time link that replaces the password', async ({ signedIn }) => {
+    const admin = await signedIn('admin');
     const email = unique();
     await admin.json('/api/admin/invitations', 'POST', { email, name: 'Reset Person', role: 'biologist' });
     const invite = linkIn((await waitForMail(email, 'invitation')).text);
@@ -72,8 +73,8 @@ describe('invitation by e-mail', () => {
 
 describe('sign-in rate limit', () => {
   // growing delays, not a lock (lib/auth/rateLimit.ts; more in security-auth.test.ts)
-  it('makes an e-mail wait after 5 failures from one address, even with the right password', async () => {
-    const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+  it('makes an e-mail wait after 5 failures from one address, even with the right password', async ({ signedIn }) => {
+    const admin = await signedIn('admin');
     const email = unique();
     await admin.json('/api/admin/invitations', 'POST', { email, name: 'Limit Person', role: 'biologist' });
     const { token } = linkIn((await waitForMail(email, 'invitation')).text);

@@ -3,12 +3,12 @@
  * SMTP sink: a failure that a retry mends sends no failure mail, only the "processed" one; a failure on
  * every try sends exactly one failure mail, after the last try.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
 import { eq, sql } from 'drizzle-orm';
 import PgBoss from 'pg-boss';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { fields, fieldFiles, samples, users } from '../../src/lib/db/schema';
 import { createStorage, type Storage } from '../../src/lib/storage/client';
 import { deleteObject, getBytes, putBytes } from '../../src/lib/storage/objects';
@@ -17,40 +17,41 @@ import { insertDemoField } from '../../scripts/seedDemoFields';
 import { readSink } from '../../src/lib/mail/sinkReader';
 import { waitForMail } from '../support/mailSink';
 import { DEMO } from '../support/demo';
+import { test, it } from '../support/fixtures';
 
 const env = process.env as Record<string, string>;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+// a database of this file's own (the worker below and the queue use it; nothing goes through the app server), and
 // a queue schema of its own: npm test's worker never takes these jobs, so their retry settings hold
 const schema = `pgboss_mail_${randomUUID().slice(0, 8)}`;
 let db: Db;
+let dbUrl: string;
 let st: Storage;
 let sampleId: string;
 let uploaderId: string;
 let worker: ChildProcess | undefined;
 let sender: PgBoss | undefined;
 
-beforeAll(async () => {
-  db = createDb(env.DATABASE_URL, 2);
+test.beforeAll(async ({ ownDb }) => {
+  ({ db, url: dbUrl } = ownDb);
   st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
   const [demo] = await db.select().from(samples).where(eq(samples.code, 'HCP-001'));
   const [s] = await db.insert(samples).values({ studyId: demo.studyId, code: `MAILS-${Date.now()}` }).returning();
   sampleId = s.id;
   [{ id: uploaderId }] = await db.select({ id: users.id }).from(users).where(eq(users.email, DEMO.biologist));
 
-  worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { env: { ...process.env, JOB_QUEUE_SCHEMA: schema }, stdio: ['ignore', 'pipe', 'inherit'] });
+  worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { env: { ...process.env, DATABASE_URL: dbUrl, JOB_QUEUE_SCHEMA: schema }, stdio: ['ignore', 'pipe', 'inherit'] });
   await new Promise<void>((res, rej) => {
     const t = setTimeout(() => rej(new Error('the worker did not start within 30 s')), 30_000);
     worker!.stdout!.on('data', (d: Buffer) => { if (d.toString().includes('waiting for jobs')) { clearTimeout(t); res(); } });
   });
-  sender = new PgBoss({ connectionString: env.DATABASE_URL, schema, schedule: false, supervise: false });
+  sender = new PgBoss({ connectionString: dbUrl, schema, schedule: false, supervise: false });
   await sender.start();
 }, 60_000);
 
 afterAll(async () => {
   if (worker && worker.exitCode === null && worker.signalCode === null) worker.kill('SIGTERM');
   await sender?.stop({ graceful: false }).catch(() => undefined);
-  await db?.execute(sql.raw(`DROP SCHEMA IF EXISTS ${schema} CASCADE`)).catch(() => undefined);
-  await db?.$client.end();
 });
 
 /** A demo field of the test's sample whose height map object is taken away (a fault a retry can mend); its bytes and key. */

@@ -3,23 +3,21 @@
  * against the real PostgreSQL and s3rver: an old orphan prefix goes; a prefix whose row exists and a
  * fresh orphan (younger than the cut-off, as during createField's copies) stay.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { randomUUID } from 'node:crypto';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { createStorage } from '../../src/lib/storage/client';
 import { deleteKeys, listKeys, listPages, listSubPrefixes, putBytes } from '../../src/lib/storage/objects';
 import { sweepOrphanObjects } from '../../src/lib/jobs/sweepOrphanObjects';
+import { test, it } from '../support/fixtures';
 
 const env = process.env as Record<string, string>;
 const st = createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket: env.S3_BUCKET, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', forcePathStyle: true });
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 let db: Db;
 
-beforeAll(() => {
-  db = createDb(env.DATABASE_URL, 2);
-});
-afterAll(async () => {
-  await db.$client.end();
+test.beforeAll(async ({ db: fileDb }) => {
+  db = fileDb;
 });
 
 describe('sweepOrphanObjects', () => {

@@ -1,7 +1,7 @@
-import { describe, it, expect, beforeAll } from 'vitest';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { describe, expect } from 'vitest';
+import type { AppClient } from '../support/client';
 import { demoField } from '../support/demoField';
+import { test, it } from '../support/fixtures';
 
 let analyst: AppClient;
 let admin: AppClient;
@@ -15,10 +15,10 @@ const square = [
   { afm: { x: 100, y: 600 }, fl: { x: 40.5, y: 120 } },
 ];
 
-beforeAll(async () => {
-  analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
-  admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
-  biologist = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+test.beforeAll(async ({ signedIn }) => {
+  analyst = await signedIn('analyst');
+  admin = await signedIn('admin');
+  biologist = await signedIn('biologist');
   // a demo field the browser test does not use
   fieldId = await demoField('HCP-003');
 });

@@ -5,15 +5,16 @@
  * link runs and vesicles are written straight to the database (the analysis pipeline is tested elsewhere),
  * registrations, reviews, releases and removals go through the API.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll, beforeAll } from 'vitest';
 import { randomUUID } from 'node:crypto';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { createStorage } from '../../src/lib/storage/client';
 import { listKeys, putBytes } from '../../src/lib/storage/objects';
 import { detectionKey, fieldPrefix, rawFileKey, tilePrefix } from '../../src/lib/storage/keys';
 import { summariseLinkRun } from '../../src/lib/db/queries/linkRunSummaries';
-import { AppClient, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD, ROLES, type DemoRole } from '../support/demo';
+import type { AppClient } from '../support/client';
+import { DEMO, ROLES, type DemoRole } from '../support/demo';
+import { test, it } from '../support/fixtures';
 
 const clients = {} as Record<DemoRole, AppClient>;
 const st = createStorage({ endpoint: process.env.S3_ENDPOINT!, region: 'us-east-1', bucket: process.env.S3_BUCKET!, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', forcePathStyle: true });
@@ -110,9 +111,9 @@ const fivePairs = [
   { afm: { x: 350, y: 350 }, fl: { x: 80, y: 80 } },
 ];
 
-beforeAll(async () => {
-  for (const role of ROLES) clients[role] = await signedIn(DEMO[role], DEMO_PASSWORD);
-  db = createDb(process.env.DATABASE_URL!, 2);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  for (const role of ROLES) clients[role] = await signedIn(role);
+  db = fileDb;
   [{ id: studyId }] = await q<{ id: string }>(`select id from studies where name like 'Harbour Clinic plasma EV pilot%'`);
   [{ id: otherStudyId }] = await q<{ id: string }>(`insert into studies (name) values ($1) returning id`, [`Release integrity other ${run}`]);
 });
@@ -120,7 +121,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await q(`delete from samples where id = any($1::uuid[])`, [sampleIds]);
   await q(`delete from studies where id = $1`, [otherStudyId]);
-  await db.$client.end();
 });
 
 describe('removing a field', () => {

@@ -2,10 +2,10 @@
  * Releases and released results against the running app and its real PostgreSQL. Fields, link runs
  * and vesicles are written straight to the database (the analysis pipeline is tested elsewhere).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import { createDb, type Db } from '../../src/lib/db/client';
-import { AppClient, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD, ROLES, type DemoRole } from '../support/demo';
+import { describe, expect, afterAll } from 'vitest';
+import type { Db } from '../../src/lib/db/client';
+import type { AppClient } from '../support/client';
+import { ROLES, type DemoRole } from '../support/demo';
 import { summariseLinkRun, SIZE_BINS_PER_NM } from '../../src/lib/db/queries/linkRunSummaries';
 import { getSampleContext, getCurrentLinkRunIds, getPanel } from '../../src/lib/db/queries/sampleSelection';
 import { getSampleResults } from '../../src/lib/db/queries/sampleResults';
@@ -13,6 +13,7 @@ import { getComparisonRows } from '../../src/lib/db/queries/comparisonInput';
 import { buildStudyComparison } from '../../src/lib/reporting/buildStudyComparison';
 import { clusteredProportion, compareSampleMedians, welchTTest } from '../../src/lib/analysis/stats';
 import { vesicleCsvColumns } from '../../src/lib/analysis/pipeline';
+import { test, it } from '../support/fixtures';
 
 const clients = {} as Record<DemoRole, AppClient>;
 let db: Db;
@@ -88,9 +89,9 @@ function wilson(k: number, n: number) {
 
 const results = (c: AppClient, id: string, query = '') => c.fetch(`/api/samples/${id}/results${query}`);
 
-beforeAll(async () => {
-  for (const role of ROLES) clients[role] = await signedIn(DEMO[role], DEMO_PASSWORD);
-  db = createDb(process.env.DATABASE_URL!, 4);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  for (const role of ROLES) clients[role] = await signedIn(role);
+  db = fileDb;
   [{ id: studyId }] = await q<{ id: string }>(`select id from studies where name like 'Harbour Clinic plasma EV pilot%'`);
   [{ id: otherStudyId }] = await q<{ id: string }>(`insert into studies (name) values ($1) returning id`, [`Results other study ${run}`]);
   sampleIds.s1 = await addSample(studyId, `RT1-${run}`, GROUP_A);
@@ -107,7 +108,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await q(`delete from samples where id = any($1::uuid[])`, [Object.values(sampleIds)]);
   await q(`delete from studies where id = any($1::uuid[])`, [[otherStudyId, bigStudyId].filter(Boolean)]);
-  await db.$client.end();
 });
 
 describe('release', () => {

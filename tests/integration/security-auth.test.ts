@@ -3,29 +3,32 @@
  * invalidation, the sign-in redirect, and the reset reply for unknown accounts. Against the running app,
  * PostgreSQL and the job worker of npm test.
  */
-import { describe, it, expect, beforeAll, beforeEach, afterAll } from 'vitest';
+import { describe, expect, beforeEach, afterAll } from 'vitest';
 import { eq, like, sql } from 'drizzle-orm';
-import { AppClient, APP_URL, signedIn } from '../support/client';
+import { AppClient, APP_URL, signedIn as signInWith } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { waitForMail, linkIn } from '../support/mailSink';
-import { createDb, type Db } from '../../src/lib/db/client';
+import { test, it } from '../support/fixtures';
+import type { Db } from '../../src/lib/db/client';
 import { auditLog, rateLimits, users } from '../../src/lib/db/schema';
 
 const unique = (what: string) => `${what}-${Date.now()}-${Math.floor(Math.random() * 1e6)}@lab.example`;
 let db: Db;
+let admin: AppClient;
 
-beforeAll(() => { db = createDb(process.env.DATABASE_URL!, 1); });
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
+  admin = await signedIn('admin');
+});
 // every reset request here comes from 127.0.0.1: each test starts with that address's hourly allowance
 beforeEach(async () => { await db.delete(rateLimits).where(like(rateLimits.key, 'reset_addr:%')); });
 afterAll(async () => {
   // this file's reset requests all come from 127.0.0.1: give other test files their hourly allowance back
   await db.delete(rateLimits).where(like(rateLimits.key, 'reset_addr:%'));
-  await db.$client.end();
 });
 
 /** An invited person with a password, signed out. */
 async function person(role: 'biologist' | 'analyst' | 'collaborator', password: string): Promise<string> {
-  const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
   const email = unique(role);
   expect((await admin.json('/api/admin/invitations', 'POST', { email, name: 'Test Person', role })).status).toBe(201);
   const { token } = linkIn((await waitForMail(email, 'invitation')).text);
@@ -111,7 +114,7 @@ describe('sessions end on the server', () => {
 
   it('signing out ends a copied session cookie too', async () => {
     const email = await person('biologist', 'sign-out-pass-1');
-    const c = await signedIn(email, 'sign-out-pass-1');
+    const c = await signInWith(email, 'sign-out-pass-1');
     const stolen = cookieOf(c);
     expect((await meWith(stolen)).status).toBe(200);
     const { csrfToken } = await (await c.fetch('/api/auth/csrf')).json();
@@ -125,12 +128,12 @@ describe('sessions end on the server', () => {
     const s = await fetch(`${APP_URL}/api/auth/session`, { headers: { cookie: stolen } });
     expect(await s.json()).toBeNull();
     // signing in again works
-    expect((await (await signedIn(email, 'sign-out-pass-1')).fetch('/api/me')).status).toBe(200);
+    expect((await (await signInWith(email, 'sign-out-pass-1')).fetch('/api/me')).status).toBe(200);
   });
 
   it('a password reset ends every existing session and voids every older link', async () => {
     const email = await person('analyst', 'before-reset-1');
-    const c = await signedIn(email, 'before-reset-1');
+    const c = await signInWith(email, 'before-reset-1');
     const cookie = cookieOf(c);
     expect((await new AppClient().json('/api/password-reset', 'POST', { email })).status).toBe(202);
     const [firstToken] = await resetTokens(email, 1);
@@ -148,13 +151,12 @@ describe('sessions end on the server', () => {
   });
 
   it('a role change or a deactivation ends the person\'s sessions at once', async () => {
-    const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
     const email = await person('biologist', 'role-change-pw-4');
     const [u] = await db.select({ id: users.id }).from(users).where(eq(users.email, email));
-    const c1 = await signedIn(email, 'role-change-pw-4');
+    const c1 = await signInWith(email, 'role-change-pw-4');
     expect((await admin.json(`/api/admin/users/${u.id}`, 'PATCH', { role: 'collaborator' })).status).toBe(200);
     expect((await meWith(cookieOf(c1))).status).toBe(401);
-    const c2 = await signedIn(email, 'role-change-pw-4');
+    const c2 = await signInWith(email, 'role-change-pw-4');
     expect((await (await c2.fetch('/api/me')).json()).user.role).toBe('collaborator');
     expect((await admin.json(`/api/admin/users/${u.id}`, 'PATCH', { active: false })).status).toBe(200);
     expect((await meWith(cookieOf(c2))).status).toBe(401);
@@ -162,8 +164,8 @@ describe('sessions end on the server', () => {
 });
 
 describe('redirects and unknown accounts', () => {
-  it('sends a signed-in person only to paths of the app itself after sign-in', async () => {
-    const bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+  it('sends a signed-in person only to paths of the app itself after sign-in', async ({ signedIn }) => {
+    const bio = await signedIn('biologist');
     for (const next of ['/\\evil.test', '//evil.test', 'https://evil.test/x', '/\\/evil.test', 'javascript:alert(1)']) {
       const res = await bio.fetch(`/signin?next=${encodeURIComponent(next)}`);
       expect(res.status, next).toBe(302);

@@ -2,9 +2,10 @@
  * Security headers on pages and API replies, the session cookie's flags, and the refusal of a
  * cross-site form POST (Astro's origin check, astro.config.mjs security.checkOrigin).
  */
-import { describe, it, expect } from 'vitest';
-import { AppClient, APP_URL, signedIn } from '../support/client';
+import { describe, expect } from 'vitest';
+import { AppClient, APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { test, it } from '../support/fixtures';
 
 function expectSecurityHeaders(res: Response, what: string) {
   const csp = res.headers.get('content-security-policy') ?? '';
@@ -15,19 +16,19 @@ function expectSecurityHeaders(res: Response, what: string) {
 }
 
 describe('security headers', () => {
-  it('pages carry CSP with frame-ancestors none and nosniff, signed in or not', async () => {
+  it('pages carry CSP with frame-ancestors none and nosniff, signed in or not', async ({ signedIn }) => {
     const anon = new AppClient();
     expectSecurityHeaders(await anon.fetch('/signin'), 'GET /signin');
     expectSecurityHeaders(await anon.fetch('/'), 'GET / (redirect to sign-in)');
-    const bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+    const bio = await signedIn('biologist');
     const home = await bio.fetch('/');
     expect(home.status).toBe(200);
     expectSecurityHeaders(home, 'GET / signed in');
     expectSecurityHeaders(await bio.fetch('/upload'), 'GET /upload');
   });
 
-  it('API replies carry them too, successes and errors alike', async () => {
-    const bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+  it('API replies carry them too, successes and errors alike', async ({ signedIn }) => {
+    const bio = await signedIn('biologist');
     const me = await bio.fetch('/api/me');
     expect(me.status).toBe(200);
     expectSecurityHeaders(me, 'GET /api/me');
@@ -56,8 +57,8 @@ describe('security headers', () => {
     expect(session).toMatch(/;\s*Path=\//i);
   });
 
-  it('refuses a cross-site form POST with 403 and changes nothing', async () => {
-    const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+  it('refuses a cross-site form POST with 403 and changes nothing', async ({ signedIn }) => {
+    const admin = await signedIn('admin');
     const before = (await (await admin.fetch('/api/studies')).json()).studies.length;
     const name = `Cross-site ${Date.now()}`;
     const res = await admin.fetch('/api/studies', {

@@ -3,16 +3,16 @@
  * upload URLs are bound to their key, size and type and live minutes, and what was inspected is what a field
  * gets. Against the S3 fake of npm test (behind its signature gate, scripts/lib/s3.ts), the app and PostgreSQL.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { AppClient } from '../support/client';
+import type { Db } from '../../src/lib/db/client';
 import { fieldFiles, samples } from '../../src/lib/db/schema';
 import { createStorage, type Storage } from '../../src/lib/storage/client';
 import { getBytes, putBytes, listKeys } from '../../src/lib/storage/objects';
 import { makeDemoPair } from '../../fixtures/demoScene';
+import { test, it } from '../support/fixtures';
 
 const S3 = process.env.S3_ENDPOINT!;
 const BUCKET = process.env.S3_BUCKET!;
@@ -30,15 +30,14 @@ async function presign(bytes: number) {
 }
 const put = (url: string, body: Uint8Array, type = 'image/tiff') => fetch(url, { method: 'PUT', body: Buffer.from(body), headers: { 'content-type': type } });
 
-beforeAll(async () => {
-  bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  bio = await signedIn('biologist');
   studyId = (await (await bio.fetch('/api/studies')).json()).studies[0].id;
-  db = createDb(process.env.DATABASE_URL!, 1);
+  db = fileDb;
   st = createStorage({ endpoint: S3, region: 'us-east-1', bucket: BUCKET, accessKeyId: process.env.S3_ACCESS_KEY_ID ?? 'S3RVER', secretAccessKey: process.env.S3_SECRET_ACCESS_KEY ?? 'S3RVER', forcePathStyle: true });
   const [s] = await db.insert(samples).values({ studyId, code: `SEC-${Date.now()}` }).returning();
   sampleId = s.id;
 });
-afterAll(async () => { await db.$client.end(); });
 
 describe('embedded object store', () => {
   it('refuses unsigned reads, writes, listings and deletions, and the app\'s own signed requests still work', async () => {

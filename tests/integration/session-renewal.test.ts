@@ -3,14 +3,15 @@
  * more than an hour old. The old cookie is made here with Auth.js's own encode and a short life, which is how
  * an hour-old cookie looks (less than its full life left).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { encode, decode } from '@auth/core/jwt';
 import { eq } from 'drizzle-orm';
-import { APP_URL, signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
-import { createDb, type Db } from '../../src/lib/db/client';
+import { APP_URL } from '../support/client';
+import { DEMO } from '../support/demo';
+import type { Db } from '../../src/lib/db/client';
 import { users } from '../../src/lib/db/schema';
 import { SESSION_MAX_AGE_S } from '../../src/lib/auth/session';
+import { test, it } from '../support/fixtures';
 
 const NAME = 'authjs.session-token';
 const secret = process.env.AUTH_SECRET!;
@@ -21,11 +22,10 @@ const sessionCookie = (res: Response) => res.headers.getSetCookie().find((c) => 
 const valueOf = (setCookie: string) => setCookie.split(';')[0].slice(NAME.length + 1);
 const me = (token: string, path = '/api/me') => fetch(APP_URL + path, { headers: { cookie: `${NAME}=${token}` }, redirect: 'manual' });
 
-beforeAll(async () => {
-  db = createDb(process.env.DATABASE_URL!, 1);
+test.beforeAll(async ({ db: fileDb }) => {
+  db = fileDb;
   [analyst] = await db.select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.email, DEMO.analyst));
 });
-afterAll(async () => { await db.$client.end(); });
 
 describe('session renewal', () => {
   const claims = () => ({ uid: analyst.id, sub: analyst.id, email: analyst.email, name: analyst.name });
@@ -50,8 +50,8 @@ describe('session renewal', () => {
     expect(sessionCookie(again)).toBeUndefined();
   });
 
-  it('leaves a fresh session cookie alone, and never touches the cookie on Auth.js routes', async () => {
-    const c = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+  it('leaves a fresh session cookie alone, and never touches the cookie on Auth.js routes', async ({ signedIn }) => {
+    const c = await signedIn('analyst', { fresh: true });
     const res = await c.fetch('/api/me');
     expect(res.status).toBe(200);
     expect(sessionCookie(res)).toBeUndefined();

@@ -1,14 +1,15 @@
-import { describe, it, expect, beforeAll } from 'vitest';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { describe, expect } from 'vitest';
+import type { AppClient } from '../support/client';
+import { DEMO } from '../support/demo';
 import { looksIdentifying } from '../../src/lib/reporting/looksIdentifying';
+import { test, it } from '../support/fixtures';
 
 let admin: AppClient;
 let bio: AppClient;
 
-beforeAll(async () => {
-  admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
-  bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+test.beforeAll(async ({ signedIn }) => {
+  admin = await signedIn('admin');
+  bio = await signedIn('biologist');
 });
 
 describe('setting up a study', () => {

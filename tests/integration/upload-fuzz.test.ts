@@ -4,17 +4,17 @@
  * Each is read or refused with a 4xx and a message; none takes the server down or answers 5xx.
  * The in-process fuzz (src/lib/imaging/__tests__/fuzz.test.ts) runs thousands more of the same mutations.
  */
-import { describe, it, expect, beforeAll } from 'vitest';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { describe, expect } from 'vitest';
+import type { AppClient } from '../support/client';
 import { baseFiles, mutate } from '../../src/lib/imaging/__tests__/fuzzCases';
+import { test, it } from '../support/fixtures';
 
 const CASES = Number(process.env.UPLOAD_FUZZ_CASES ?? 120);
 let bio: AppClient;
 let studyId: string;
 
-beforeAll(async () => {
-  bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+test.beforeAll(async ({ signedIn }) => {
+  bio = await signedIn('biologist');
   studyId = (await (await bio.fetch('/api/studies')).json()).studies[0].id;
 });
 

@@ -2,14 +2,14 @@
  * The server's pixel-size decision on field confirmation, against the real s3rver and PostgreSQL:
  * a typed value wins over the file's, and an uncalibrated resolution-tag value is refused.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { AppClient } from '../support/client';
 import { writeTiff } from '../../src/lib/imaging';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { fields, samples } from '../../src/lib/db/schema';
 import { makeDemoPair } from '../../fixtures/demoScene';
+import { test, it } from '../support/fixtures';
 
 let bio: AppClient;
 let db: Db;
@@ -25,14 +25,13 @@ async function upload(bytes: Uint8Array) {
   return uploadId as string;
 }
 
-beforeAll(async () => {
-  bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  bio = await signedIn('biologist');
   studyId = (await (await bio.fetch('/api/studies')).json()).studies[0].id;
-  db = createDb(process.env.DATABASE_URL!, 2);
+  db = fileDb;
   const [s] = await db.insert(samples).values({ studyId, code: `PXS-${Date.now()}` }).returning();
   sampleId = s.id;
 });
-afterAll(async () => { await db.$client.end(); });
 
 describe('pixel size on field confirmation', () => {
   const pair = makeDemoPair({ seed: 21, afmSizePx: 192, flSizePx: 64, nbVesicles: 5 });

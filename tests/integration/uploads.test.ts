@@ -2,17 +2,17 @@
  * Upload path against the real s3rver and PostgreSQL: presigned PUT → inspection → confirmation →
  * ingestion by the worker, and every bad-input case with its message and nothing half-saved.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { eq, count } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { AppClient } from '../support/client';
 import { writeTiff } from '../../src/lib/imaging';
 import { setInline } from '../../src/lib/imaging/__tests__/tiffBytes';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { fields, fieldFiles, samples } from '../../src/lib/db/schema';
 import { createStorage, type Storage } from '../../src/lib/storage/client';
 import { listKeys } from '../../src/lib/storage/objects';
 import { makeDemoPair } from '../../fixtures/demoScene';
+import { test, it } from '../support/fixtures';
 
 let bio: AppClient;
 let analyst: AppClient;
@@ -34,16 +34,15 @@ async function upload(c: AppClient, bytes: Uint8Array) {
 const stagedCount = async () => (await listKeys(st, 'staging/')).length;
 const fieldCount = async () => (await db.select({ n: count() }).from(fields).where(eq(fields.sampleId, sampleId)))[0].n;
 
-beforeAll(async () => {
-  bio = await signedIn(DEMO.biologist, DEMO_PASSWORD);
-  analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  bio = await signedIn('biologist');
+  analyst = await signedIn('analyst');
   studyId = (await (await bio.fetch('/api/studies')).json()).studies[0].id;
-  db = createDb(process.env.DATABASE_URL!, 2);
+  db = fileDb;
   st = createStorage({ endpoint: process.env.S3_ENDPOINT!, region: 'us-east-1', bucket: process.env.S3_BUCKET!, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', forcePathStyle: true });
   const [s] = await db.insert(samples).values({ studyId, code: `UPL-${Date.now()}` }).returning();
   sampleId = s.id;
 });
-afterAll(async () => { await db.$client.end(); });
 
 describe('paired upload', () => {
   it('uploads a pair, shows what was read, saves the field, and the worker renders its tiles', async () => {
@@ -153,9 +152,9 @@ describe('bad uploads: a clear message and nothing half-saved', () => {
     expect(await listKeys(st, 'fields/')).not.toContainEqual(expect.stringContaining(topo.uploadId));
   });
 
-  it('does not let another person inspect or use my upload', async () => {
+  it('does not let another person inspect or use my upload', async ({ signedIn }) => {
     const mine = await upload(bio, small());
-    const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+    const admin = await signedIn('admin');
     const r = await admin.json(`/api/uploads/${mine.uploadId}/inspect`, 'POST', {});
     expect(r.status).toBe(404);
   });
