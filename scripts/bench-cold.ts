@@ -4,7 +4,9 @@
  * - cold: `npm run analyze` as a new process per field, whole wall time, median of BENCH_COLD_RUNS (default 5);
  *   also the same without npm's own start (`node scripts/run-bundled.mjs analyze`), and the peak RSS of each process;
  * - batch: `npm run analyze -- --batch` over BENCH_BATCH_FIELDS (default 20) fields in one process, wall time per field;
- * - warm: the same field analysed in this process after one untimed call (median of 5).
+ * - warm: the same field analysed in this process after one untimed call (median of 5);
+ * - worker: BENCH_WORKER_FIELDS (default 10) fields one after another in a fresh process, without and with the
+ *   worker's start-up warm-up (scripts/lib/workerFieldTimes.ts), first field against the last.
  * The field (issue 16): a 2048 × 2048 height map at 10 nm/px with ~600 vesicles and 8 beads, three 1024 × 1024
  * 16-bit fluorescence channels at 65 nm/px, hand-placed fiducials on the beads. Files are written once to a temporary
  * folder (not timed). Prints the date, the machine and its load average before and after, since a shared machine's
@@ -22,6 +24,7 @@ import { analyzeFieldFiles } from './lib/analyzeFieldFiles';
 
 const COLD_RUNS = Math.max(1, Number(process.env.BENCH_COLD_RUNS ?? 5));
 const BATCH_FIELDS = Math.max(1, Number(process.env.BENCH_BATCH_FIELDS ?? 20));
+const WORKER_FIELDS = Math.max(2, Number(process.env.BENCH_WORKER_FIELDS ?? 10));
 const AFM_SIZE = 2048;
 const AFM_PIXEL_NM = 10;
 const FL_SIZE = 1024;
@@ -131,6 +134,13 @@ async function main() {
       warm.push(performance.now() - t);
     }
 
+    // worker: first against tenth field of a fresh process, without and with the worker's warm-up
+    const workerRuns = (['none', 'warm-up'] as const).map((mode) => {
+      const r = spawnSync(process.execPath, ['--import', 'tsx', 'scripts/lib/workerFieldTimes.ts', dir, String(WORKER_FIELDS), mode], { cwd: root, encoding: 'utf8' });
+      if (r.status !== 0) throw new Error(`workerFieldTimes ${mode} exited ${r.status}:\n${r.stderr}`);
+      return { mode, ...(JSON.parse(r.stdout.trim().split('\n').at(-1)!) as { warmUpMs: number; fieldMs: number[] }) };
+    });
+
     // same bytes on every path
     // (a source edited while the benchmark runs rebuilds the bundle between runs, and then the bytes may differ)
     const coldCsv = await readFile(join(dir, 'cold-0.csv'), 'utf8');
@@ -150,6 +160,12 @@ async function main() {
     console.log(`| cold without npm: \`node scripts/run-bundled.mjs analyze\` (${COLD_RUNS} runs) | ${med(coldNode.map((r) => r.ms)).toFixed(0)} ms | ${Math.min(...coldNode.map((r) => r.ms)).toFixed(0)} ms | ${Math.max(...coldNode.map((r) => r.rssMb)).toFixed(0)} MB |`);
     console.log(`| batch: ${BATCH_FIELDS} fields in one \`npm run analyze -- --batch\` | ${(batch.ms / BATCH_FIELDS).toFixed(0)} ms (total ${(batch.ms / 1000).toFixed(1)} s) | | ${batch.rssMb.toFixed(0)} MB |`);
     console.log(`| warm: in-process, after one call (5 runs) | ${med(warm).toFixed(0)} ms | ${Math.min(...warm).toFixed(0)} ms | ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB (this process) |`);
+    console.log(`\nworker-like process, ${WORKER_FIELDS} fields one after another (ms per field):`);
+    for (const w of workerRuns) {
+      const ratio = w.fieldMs[0] / w.fieldMs[w.fieldMs.length - 1];
+      console.log(`  ${w.mode === 'none' ? 'no warm-up' : `warm-up first (${w.warmUpMs.toFixed(0)} ms, as the worker starts)`}: ` +
+        `${w.fieldMs.map((ms) => ms.toFixed(0)).join(', ')}; first / last = ${ratio.toFixed(2)}`);
+    }
     console.log('\nstages of each cold run (ms):');
     for (const [i, r] of cold.entries()) console.log(`  run ${i + 1} (${(r.ms / 1000).toFixed(1)} s): ${stagesOf(r.stderr)}`);
     console.log(`same CSV bytes as the first cold run: ${differing.length === 0 ? 'every path' : `NO for ${differing.join(', ')}`}`);

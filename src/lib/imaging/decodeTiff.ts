@@ -100,7 +100,7 @@ function readUncompressedStrips(u8: Uint8Array, page: TiffPageInfo, blocks: Page
       }
     }
     // set() converts each sample to float32 by rounding to nearest, as Math.fround does
-    out.set(new Samples(bytes.buffer, bytes.byteOffset, n), firstRow * width);
+    out.set(new Samples(bytes.buffer as ArrayBuffer, bytes.byteOffset, n), firstRow * width);
   }
   return out;
 }

@@ -1,4 +1,5 @@
 export { analyzeField } from './analyzeField';
+export { warmUpAnalysis } from './warmUpAnalysis';
 export { fieldStages } from './fieldStages';
 export { mergeSpots } from './mergeSpots';
 export { DEFAULT_EMISSION_NM, DEFAULT_NUMERICAL_APERTURE } from './opticsDefaults';
