@@ -2,6 +2,7 @@ import { useEffect, useState } from 'react';
 import { FIELD_STATUS_WORDS } from '../../lib/pages/fieldStatusWords';
 import { getFieldStatus, retryField } from '../../lib/api-client/routes';
 import { errorText } from '../../lib/api-client/http';
+import ProgressBar from './ProgressBar';
 
 interface Status { status: string; failureReason: string | null; progress: { stage: string; fraction: number } | null }
 
@@ -45,9 +46,7 @@ export default function FieldStatus({ fieldId, initial, canRetry }: { fieldId: s
       </div>
       {working && (
         <div className="mt-2">
-          <div className="h-2 bg-mica-100 rounded" role="progressbar" aria-valuenow={Math.round((s.progress?.fraction ?? 0) * 100)} aria-valuemin={0} aria-valuemax={100}>
-            <div className="h-2 bg-tip-500 rounded transition-all" style={{ width: `${(s.progress?.fraction ?? 0) * 100}%` }} />
-          </div>
+          <ProgressBar fraction={s.progress?.fraction ?? 0} animate />
           <div className="text-xs text-mica-600 mt-1">{s.progress?.stage ?? 'queued'} · {Math.round((s.progress?.fraction ?? 0) * 100)}%</div>
         </div>
       )}

@@ -6,6 +6,13 @@ import {
   DEFAULT_HEIGHT_DISPLAY, channelRange, channelTransfer, defaultChannelDisplay, formatCounts, heightFilterCss,
   isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, toHex, fromHex, type ChannelDisplay, type HeightDisplay,
 } from './viewer/layerDisplay';
+import { useOpenSeadragonViewers } from './viewer/useOpenSeadragonViewers';
+import { useViewerSync } from './viewer/useViewerSync';
+import { useScaleBar } from './viewer/useScaleBar';
+import { useImagePointer } from './viewer/useImagePointer';
+import { viewportSquareAround } from './viewer/imageCoordinates';
+import { readoutText, type ReadoutLayer } from './viewer/readout';
+import { useCssVariables } from './useCssVariables';
 
 export interface ViewerLayer {
   layer: string;
@@ -21,9 +28,11 @@ interface Props {
   flPixelNm: number;
 }
 
-const NICE_UM = [0.05, 0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 25, 50, 100, 200, 500];
-
 const markerOf = (l: ViewerLayer) => String(l.display.marker ?? l.layer);
+const readoutLayer = (l: ViewerLayer): ReadoutLayer => ({
+  layer: l.layer, name: markerOf(l), widthPx: l.widthPx, heightPx: l.heightPx,
+  valuesFactor: Number(l.display.valuesFactor ?? 1), valuesWidth: Number(l.display.valuesWidth ?? 0),
+});
 
 /**
  * Deep-zoom viewer of one field: the height map or the fluorescence channels, with scale bar and read-out.
@@ -35,14 +44,12 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
   // ids go into CSS `url(#…)`, so keep only characters that need no escaping there
   const uid = `fv${useId().replace(/[^A-Za-z0-9_-]/g, '')}`;
   const hosts = useRef<Record<string, HTMLDivElement | null>>({});
-  const viewer = useRef<OpenSeadragon.Viewer | null>(null);
   const values = useRef<Record<string, Float32Array>>({});
   const height = layers.find((l) => l.layer === 'height');
   const channels = layers.filter((l) => l.layer.startsWith('ch'));
   const [mode, setMode] = useState<'height' | 'fluorescence'>(height ? 'height' : 'fluorescence');
   const [visible, setVisible] = useState<Record<string, boolean>>(Object.fromEntries(channels.map((c) => [c.layer, true])));
   const [gain, setGain] = useState<Record<string, number>>(Object.fromEntries(channels.map((c) => [c.layer, 1])));
-  const [scale, setScale] = useState<{ px: number; label: string } | null>(null);
   // display only: per-layer windows and filters (the data and the read-out are not changed)
   const windows = Object.fromEntries(channels.map((c) => [c.layer, storedWindow(c.display)]));
   const [chDisplay, setChDisplay] = useState<Record<string, ChannelDisplay>>(() => Object.fromEntries(
@@ -65,15 +72,11 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
     return () => stop.abort();
   }, [fieldId, layers]);
 
-  useEffect(() => {
+  // one viewer per shown layer, made again for another mode; only the leader (first) takes the pointer
+  const viewers = useOpenSeadragonViewers((navElement) => {
     const elements = shown.map((l) => hosts.current[l.layer]);
-    if (!elements.length || elements.some((e) => !e) || !navHolder.current) return;
-    // OpenSeadragon wraps and later removes its overview element, so it gets one React does not manage
-    const navElement = document.createElement('div');
-    navElement.style.width = '100%';
-    navElement.style.height = '100%';
-    navHolder.current.replaceChildren(navElement);
-    const viewers = shown.map((l, i) => OpenSeadragon({
+    if (!elements.length || elements.some((e) => !e)) return null;
+    return shown.map((l, i) => ({
       element: elements[i]!,
       tileSources: `/api/fields/${fieldId}/tiles/${l.layer}.dzi`,
       showNavigationControl: false,
@@ -87,60 +90,12 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
       immediateRender: false,
       imageSmoothingEnabled: false,
     } as OpenSeadragon.Options));
-    const [v, ...followers] = viewers;
-    setReadout('Move the pointer over the image');
-    viewer.current = v;
-    // followers take the leader's current viewport on every frame, so the layers never drift apart
-    const sync = () => {
-      const zoom = v.viewport.getZoom(true);
-      const centre = v.viewport.getCenter(true);
-      for (const f of followers) {
-        f.viewport.zoomTo(zoom, undefined, true);
-        f.viewport.panTo(centre, true);
-      }
-    };
-    for (const ev of ['animation', 'animation-finish', 'viewport-change', 'resize'] as const) v.addHandler(ev, sync);
-    followers.forEach((f) => f.addHandler('open', sync));
-    const updateScale = () => {
-      const item = v.world.getItemAt(0);
-      if (!item) return;
-      const screenPerImagePx = item.viewportToImageZoom(v.viewport.getZoom(true));
-      const umPerScreenPx = pixelNm / 1000 / screenPerImagePx;
-      const target = 120 * umPerScreenPx;
-      const um = NICE_UM.reduce((best, n) => (Math.abs(n - target) < Math.abs(best - target) ? n : best), NICE_UM[0]);
-      setScale({ px: um / umPerScreenPx, label: um < 1 ? `${Math.round(um * 1000)} nm` : `${um} µm` });
-    };
-    v.addHandler('animation', updateScale);
-    v.addHandler('open', updateScale);
-    const tracker = new OpenSeadragon.MouseTracker({
-      element: elements[0]!,
-      moveHandler: (e) => {
-        const item = v.world.getItemAt(0);
-        if (!item) return;
-        const p = item.viewerElementToImageCoordinates((e as unknown as { position: OpenSeadragon.Point }).position);
-        const x = p.x - 0.5;
-        const y = p.y - 0.5;
-        const first = shown[0];
-        if (!first || x < -0.5 || y < -0.5 || x > first.widthPx - 0.5 || y > first.heightPx - 0.5) return setReadout('Outside the image');
-        const pos = `x ${((x * pixelNm) / 1000).toFixed(3)} µm, y ${((y * pixelNm) / 1000).toFixed(3)} µm (pixel ${Math.round(x)}, ${Math.round(y)})`;
-        const parts = shown.map((l) => {
-          const vals = values.current[l.layer];
-          const f = Number(l.display.valuesFactor ?? 1);
-          const w = Number(l.display.valuesWidth ?? 0);
-          if (!vals || !w) return null;
-          const val = vals[Math.floor(Math.round(y) / f) * w + Math.floor(Math.round(x) / f)];
-          return l.layer === 'height' ? `height ${val.toFixed(2)} nm` : `${markerOf(l)} ${Math.round(val)} counts`;
-        }).filter(Boolean);
-        setReadout([pos, ...parts].join(' · '));
-      },
-    });
-    return () => {
-      tracker.destroy();
-      viewers.forEach((x) => x.destroy());
-      navElement.remove();
-      viewer.current = null;
-    };
-  }, [fieldId, mode]);
+  }, `${fieldId}/${mode}`, navHolder);
+  const leader = viewers[0] ?? null;
+  useViewerSync(viewers);
+  const scale = useScaleBar(leader, pixelNm);
+  useEffect(() => setReadout('Move the pointer over the image'), [fieldId, mode]);
+  useImagePointer(leader, (p) => setReadout(readoutText(p, shown.map(readoutLayer), values.current, pixelNm)));
 
   // a row chosen in the vesicle table: centre and zoom on it in the height map
   useEffect(() => {
@@ -148,18 +103,14 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
       const { x, y, fieldId: f } = (e as CustomEvent<{ x: number; y: number; fieldId: string }>).detail;
       if (f !== fieldId) return;
       if (mode !== 'height') setMode('height');
-      const v = viewer.current;
-      const item = v?.world.getItemAt(0);
-      if (!v || !item) return;
-      const r = 40;
-      const tl = item.imageToViewportCoordinates(x + 0.5 - r, y + 0.5 - r);
-      const br = item.imageToViewportCoordinates(x + 0.5 + r, y + 0.5 + r);
-      v.viewport.fitBounds(new OpenSeadragon.Rect(tl.x, tl.y, br.x - tl.x, br.y - tl.y));
+      const box = leader && viewportSquareAround(leader, { x, y }, 40);
+      if (!leader || !box) return;
+      leader.viewport.fitBounds(box);
       hosts.current[shown[0]?.layer ?? '']?.scrollIntoView({ behavior: 'smooth', block: 'center' });
     };
     window.addEventListener('heightlight:focus-vesicle', onFocus);
     return () => window.removeEventListener('heightlight:focus-vesicle', onFocus);
-  }, [fieldId, mode]);
+  }, [fieldId, mode, leader]);
 
   const colourBar = (height?.display.colourBar ?? []) as { offset: number; valueNm: number; colour: string }[];
   const filterId = (layer: string) => `${uid}-${layer}-display`;
@@ -183,28 +134,22 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
       </div>
       <div className="relative w-full h-[560px] bg-black rounded-lg overflow-hidden isolate" data-testid="field-viewer">
         {shown.map((l, i) => (
-          <div
+          <LayerHost
             key={`${mode}-${l.layer}`}
-            ref={(el) => { hosts.current[l.layer] = el; }}
-            className="absolute inset-0"
-            data-testid={`viewer-layer-${l.layer}`}
-            data-layer={l.layer}
-            style={{
-              // the leader is on top and takes the pointer; the followers only draw
-              zIndex: shown.length - i,
-              pointerEvents: i === 0 ? 'auto' : 'none',
-              mixBlendMode: mode === 'fluorescence' ? 'plus-lighter' : 'normal',
-              // hidden layers stay in the stack (opacity 0) so the leader keeps its pointer events
-              opacity: mode === 'fluorescence' ? (visible[l.layer] ? gain[l.layer] : 0) : 1,
-              filter: looks[l.layer].filter,
-            }}
+            hostRef={(el) => { hosts.current[l.layer] = el; }}
+            layer={l.layer}
+            leader={i === 0}
+            additive={mode === 'fluorescence'}
+            // hidden layers stay in the stack (opacity 0) so the leader keeps its pointer events
+            opacity={mode === 'fluorescence' ? (visible[l.layer] ? gain[l.layer] : 0) : 1}
+            filter={looks[l.layer].filter}
           />
         ))}
         {shown.map((l) => looks[l.layer].defs)}
         <div ref={navHolder} className="absolute right-3 bottom-3 w-40 h-40 z-20 border border-white/40 bg-black" aria-label="Overview" />
         {scale && (
           <div className="absolute left-3 bottom-3 text-white text-xs z-20 pointer-events-none" data-testid="scale-bar">
-            <div style={{ width: scale.px }} className="h-1.5 bg-white rounded-sm" />
+            <ScaleBarLine px={scale.px} />
             <div className="mt-1 drop-shadow">{scale.label}</div>
           </div>
         )}
@@ -215,7 +160,7 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
           <div className="flex items-center gap-2" aria-label="Height colour bar">
             <span>{colourBar[0].valueNm.toFixed(1)} nm</span>
             {/* same filter as the map, so each height keeps the colour it has on screen */}
-            <div className="w-48 h-3 rounded" style={{ filter: heightFilterCss(heightDisplay), background: `linear-gradient(to right, ${colourBar.map((s) => `${s.colour} ${s.offset * 100}%`).join(', ')})` }} />
+            <ColourBar filter={heightFilterCss(heightDisplay)} gradient={`linear-gradient(to right, ${colourBar.map((s) => `${s.colour} ${s.offset * 100}%`).join(', ')})`} />
             <span>{colourBar[colourBar.length - 1].valueNm.toFixed(1)} nm</span>
           </div>
         )}
@@ -253,6 +198,56 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
       </div>
     </div>
   );
+}
+
+interface LayerHostProps {
+  hostRef: (el: HTMLDivElement | null) => void;
+  layer: string;
+  /** The leader is on top and takes the pointer; the followers only draw. */
+  leader: boolean;
+  /** Channels add up on screen. */
+  additive: boolean;
+  opacity: number;
+  /** CSS filter of the layer's display settings ('none' while it shows the tiles as rendered). */
+  filter: string;
+}
+
+/** The box one layer's viewer draws in; its opacity and filter change at run time, so they go in as CSS variables. */
+function LayerHost({ hostRef, layer, leader, additive, opacity, filter }: LayerHostProps) {
+  const el = useRef<HTMLDivElement>(null);
+  useCssVariables(el, { '--layer-opacity': opacity, '--layer-filter': filter });
+  return (
+    <div
+      ref={(node) => {
+        el.current = node;
+        hostRef(node);
+      }}
+      className={`absolute inset-0 opacity-(--layer-opacity) filter-(--layer-filter) ${leader ? 'z-10' : 'z-[1] pointer-events-none'} ${additive ? 'mix-blend-plus-lighter' : ''}`}
+      data-testid={`viewer-layer-${layer}`}
+      data-layer={layer}
+    />
+  );
+}
+
+/** The bar of the scale bar, `px` screen pixels long. */
+function ScaleBarLine({ px }: { px: number }) {
+  const el = useRef<HTMLDivElement>(null);
+  useCssVariables(el, { '--scale-bar-width': `${px}px` });
+  return <div ref={el} className="w-(--scale-bar-width) h-1.5 bg-white rounded-sm" />;
+}
+
+/** The height colour bar: the tiles' colour stops, through the same display filter as the map. */
+function ColourBar({ filter, gradient }: { filter: string; gradient: string }) {
+  const el = useRef<HTMLDivElement>(null);
+  useCssVariables(el, { '--colour-bar-filter': filter, '--colour-bar': gradient });
+  return <div ref={el} className="w-48 h-3 rounded filter-(--colour-bar-filter) bg-(image:--colour-bar)" />;
+}
+
+/** A channel's colour dot. */
+function Swatch({ colour }: { colour: string }) {
+  const el = useRef<HTMLSpanElement>(null);
+  useCssVariables(el, { '--swatch': colour });
+  return <span ref={el} className="inline-block w-3 h-3 rounded-full bg-(--swatch)" />;
 }
 
 const ROW = 'grid grid-cols-[8rem_4.5rem_minmax(0,1fr)_minmax(0,1.3fr)_minmax(0,1.3fr)_auto] items-center gap-x-5 px-3 py-2';
@@ -315,7 +310,7 @@ function ChannelRow({ layer, visible, onVisible, opacity, onOpacity, display, on
           colour
         </label>
       ) : (
-        <span className="inline-block w-3 h-3 rounded-full" style={{ background: String(layer.display.colour ?? '#fff') }} />
+        <Swatch colour={String(layer.display.colour ?? '#fff')} />
       )}
       <Slider label="Opacity" shows={`${Math.round(opacity * 100)} %`} min={0.1} max={1} step={0.05} value={opacity}
         aria-label={`Opacity of ${name}`} onChange={(e) => onOpacity(Number(e.target.value))} />

@@ -5,6 +5,7 @@ import { z } from 'zod';
 import { AcquisitionSettings, type InspectReply } from '../../lib/schemas/fields';
 import { uploadFile, createField } from '../../lib/api-client/uploads';
 import { ApiError } from '../../lib/api-client/http';
+import ProgressBar from './ProgressBar';
 import { choosePixelSize, distrustFilePixelSize, fmtNm, type PixelSizeChoice, type PixelSizeKind } from '../../lib/uploads/choosePixelSize';
 
 interface StudyOption {
@@ -84,9 +85,7 @@ function FileSlot({ label, kind, state, onFiles, onRetry, onRemove, multiple, te
               </span>
             </div>
             {s.status === 'uploading' && (
-              <div className="h-2 bg-mica-100 rounded mt-1" role="progressbar" aria-valuenow={Math.round(s.progress * 100)} aria-valuemin={0} aria-valuemax={100}>
-                <div className="h-2 bg-tip-500 rounded" style={{ width: `${s.progress * 100}%` }} />
-              </div>
+              <ProgressBar fraction={s.progress} className="mt-1" />
             )}
             {s.status === 'done' && <div className="text-cap-600" data-testid="file-meta">✓ {describe(s.meta)}</div>}
             {s.status === 'done' && fileWarnings(kind, s.meta).map((w) => (

@@ -5,6 +5,8 @@ import { VIRIDIS_RGB } from '../../../lib/imaging/colourMapHeight';
 import type { Affine } from '../../../lib/analysis/types';
 import { getLayerValues } from '../../../lib/api-client/routes';
 import { ApiError } from '../../../lib/api-client/http';
+import { scaleBarFor } from '../viewer/scaleBar';
+import { useCssVariables } from '../useCssVariables';
 
 /** One layer's stored value read-out (`<layer>.f32`, block-averaged) and how to colour it. */
 export interface CheckLayer {
@@ -38,8 +40,9 @@ const MODES: { id: Mode; label: string; hint: string }[] = [
 ];
 /** Whole numbers for a display range, without a "-0". */
 const whole = (v: number) => (Math.round(v) === 0 ? '0' : v.toFixed(0));
-const ZOOMS = [1, 2, 4, 8];
-const NICE_UM = [0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 50];
+const ZOOMS = [1, 2, 4, 8] as const;
+/** The canvas width for each zoom (a share of the frame it scrolls in). */
+const ZOOM_WIDTH: Record<(typeof ZOOMS)[number], string> = { 1: 'w-full', 2: 'w-[200%]', 4: 'w-[400%]', 8: 'w-[800%]' };
 // "no data" stripes where the fluorescence frame does not reach (distinct from viridis and from a dark background)
 const EMPTY_A = [58, 63, 76];
 const EMPTY_B = [38, 41, 50];
@@ -73,8 +76,7 @@ function paint(values: Float32Array, w: number, h: number, layer: CheckLayer): U
 
 /** Scale bar in the bottom-left corner, sized to about a fifth of the width. */
 function drawScaleBar(ctx: CanvasRenderingContext2D, w: number, h: number, umPerPx: number) {
-  const um = NICE_UM.reduce((best, n) => (Math.abs(n / umPerPx - w / 5) < Math.abs(best / umPerPx - w / 5) ? n : best), NICE_UM[0]);
-  const len = um / umPerPx;
+  const { px: len, label } = scaleBarFor(umPerPx, w / 5);
   const pad = Math.round(w / 40);
   const thick = Math.max(2, Math.round(w / 160));
   ctx.fillStyle = 'rgba(0,0,0,.55)';
@@ -83,7 +85,7 @@ function drawScaleBar(ctx: CanvasRenderingContext2D, w: number, h: number, umPer
   ctx.fillRect(pad, h - pad - thick, len, thick);
   ctx.font = `600 ${Math.round(w / 45)}px sans-serif`;
   ctx.textBaseline = 'bottom';
-  ctx.fillText(um < 1 ? `${Math.round(um * 1000)} nm` : `${um} µm`, pad, h - pad - thick - 2);
+  ctx.fillText(label, pad, h - pad - thick - 2);
 }
 
 /**
@@ -103,9 +105,11 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
   const [playing, setPlaying] = useState(true);
   const [phase, setPhase] = useState<0 | 1>(0);
   const [fade, setFade] = useState(0.5);
-  const [zoom, setZoom] = useState(1);
+  const [zoom, setZoom] = useState<(typeof ZOOMS)[number]>(1);
   const frame = useRef<HTMLDivElement>(null);
   const ch = channels.find((c) => c.layer === channel) ?? null;
+  // the frame keeps the shape of the read-out grid
+  useCssVariables(frame, { '--frame-aspect': height ? `${height.valuesWidth} / ${height.valuesHeight}` : null });
 
   // read-outs of the height map and the chosen channel, fetched once each
   useEffect(() => {
@@ -169,7 +173,7 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
   }, [images, mode, phase, fade, squareUm, afmPixelNm, height]);
 
   /** Changes the zoom around the middle of what is in view. */
-  const zoomTo = (next: number) => {
+  const zoomTo = (next: (typeof ZOOMS)[number]) => {
     const el = frame.current;
     if (el) {
       const k = next / zoom;
@@ -201,8 +205,8 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
         <div className="grid gap-4 md:grid-cols-[minmax(0,540px)_1fr]">
           <div className="relative">
             {/* zoomed: the canvas grows inside a frame of the same shape, which scrolls */}
-            <div ref={frame} className="rounded-lg bg-black overflow-auto" style={{ aspectRatio: `${height!.valuesWidth} / ${height!.valuesHeight}` }} data-testid="alignment-frame">
-              <canvas ref={canvas} className="h-auto block max-w-none" style={{ width: `${zoom * 100}%`, imageRendering: zoom > 1 ? 'pixelated' : 'auto' }} data-testid="alignment-canvas" data-mode={mode} aria-label={`${MODES.find((m) => m.id === mode)!.label} of the height map and ${chLabel}`} />
+            <div ref={frame} className="rounded-lg bg-black overflow-auto aspect-(--frame-aspect)" data-testid="alignment-frame">
+              <canvas ref={canvas} className={`h-auto block max-w-none ${ZOOM_WIDTH[zoom]} ${zoom > 1 ? '[image-rendering:pixelated]' : ''}`} data-testid="alignment-canvas" data-mode={mode} aria-label={`${MODES.find((m) => m.id === mode)!.label} of the height map and ${chLabel}`} />
             </div>
             {!images && <p className="absolute inset-0 grid place-items-center text-sm text-white/80">Loading image values…</p>}
           </div>
@@ -256,9 +260,9 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
               </label>
             )}
             <ul className="text-xs text-mica-600 space-y-1">
-              <li><span className="inline-block w-3 h-3 align-middle rounded-sm mr-1" style={{ background: 'linear-gradient(90deg,#440154,#21918c,#fde725)' }} />height map, {whole(height!.low)} to {whole(height!.high)} nm (same colours as the left viewer)</li>
-              <li><span className="inline-block w-3 h-3 align-middle rounded-sm mr-1" style={{ background: ch?.colour ? `rgb(${ch.colour.join(',')})` : '#fff' }} />{chLabel}, {whole(ch?.low ?? 0)} to {whole(ch?.high ?? 0)} counts</li>
-              <li><span className="inline-block w-3 h-3 align-middle rounded-sm mr-1" style={{ background: `repeating-linear-gradient(45deg,rgb(${EMPTY_A}),rgb(${EMPTY_A}) 2px,rgb(${EMPTY_B}) 2px,rgb(${EMPTY_B}) 4px)` }} />stripes: outside the fluorescence frame (no data)</li>
+              <li><LegendSwatch background="linear-gradient(90deg,#440154,#21918c,#fde725)" />height map, {whole(height!.low)} to {whole(height!.high)} nm (same colours as the left viewer)</li>
+              <li><LegendSwatch background={ch?.colour ? `rgb(${ch.colour.join(',')})` : '#fff'} />{chLabel}, {whole(ch?.low ?? 0)} to {whole(ch?.high ?? 0)} counts</li>
+              <li><LegendSwatch background={`repeating-linear-gradient(45deg,rgb(${EMPTY_A}),rgb(${EMPTY_A}) 2px,rgb(${EMPTY_B}) 2px,rgb(${EMPTY_B}) 4px)`} />stripes: outside the fluorescence frame (no data)</li>
             </ul>
             <p className="text-xs text-mica-400">Values at read-out resolution ({((afmPixelNm * height!.valuesFactor)).toFixed(0)} nm per pixel on the height side); the transform updates as you edit pairs.</p>
           </div>
@@ -266,4 +270,11 @@ export default function AlignmentCheck({ fieldId, transform, afmPixelNm, height,
       )}
     </section>
   );
+}
+
+/** A legend square; its background (a colour or a gradient) is known only at run time. */
+function LegendSwatch({ background }: { background: string }) {
+  const el = useRef<HTMLSpanElement>(null);
+  useCssVariables(el, { '--swatch': background });
+  return <span ref={el} className="inline-block w-3 h-3 align-middle rounded-sm mr-1 [background:var(--swatch)]" />;
 }
