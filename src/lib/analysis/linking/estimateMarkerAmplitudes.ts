@@ -218,7 +218,8 @@ export function estimateMarkerAmplitudes(
       // at least one photon's variance, so a pixel at or below the offset never gets an infinite weight
       for (let i = 0; i < m; i++) weights[i] = 1 / Math.max(g * (weights[i] - offsetCounts) + r * r, g + r * r);
       eq = weightedNormalEquations(a, b, m, k, weights, scratch.take('wa', m));
-      solution = solveNnlsNormal(eq.g, eq.h).x;
+      // the unweighted solution's passive set is nearly always the weighted one's too: start from it
+      solution = solveNnlsNormal(eq.g, eq.h, undefined, solution).x;
     }
     const background = solution[k] - solution[k + 1];
     groupBackgroundCounts.push(background);

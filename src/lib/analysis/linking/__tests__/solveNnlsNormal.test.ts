@@ -47,3 +47,28 @@ describe('solveNnlsNormal', () => {
     expect(() => solveNnlsNormal(new Matrix(2, 2), [1, 2, 3])).toThrow(RangeError);
   });
 });
+
+describe('solveNnlsNormal warm start', () => {
+  it('reaches the same optimum from a nearby solution, a wrong one and none (KKT conditions, Lawson & Hanson 1974)', () => {
+    const rng = createTestRng(78);
+    for (let t = 0; t < 20; t++) {
+      const a = new Matrix(50, 7);
+      const b = new Float64Array(50);
+      for (let i = 0; i < 50; i++) {
+        for (let j = 0; j < 7; j++) a.set(i, j, rng.uniform());
+        b[i] = rng.normal() * 2 + rng.uniform();
+      }
+      const at = a.transpose();
+      const g = at.mmul(a);
+      const h = at.mmul(Matrix.columnVector(Array.from(b))).getColumn(0);
+      const cold = solveNnlsNormal(g, h).x;
+      const nearby = solveNnlsNormal(g, h, 1e-10, cold.map((v) => v * (1 + 0.1 * rng.normal()))).x;
+      const wrong = solveNnlsNormal(g, h, 1e-10, cold.map((v) => (v > 0 ? 0 : 1))).x;
+      const scale = Math.max(...cold, 1);
+      for (let j = 0; j < 7; j++) {
+        expect(Math.abs(nearby[j] - cold[j]) / scale).toBeLessThan(1e-9);
+        expect(Math.abs(wrong[j] - cold[j]) / scale).toBeLessThan(1e-9);
+      }
+    }
+  });
+});
