@@ -1,3 +1,4 @@
+import { medianSorted } from 'simple-statistics';
 import type { Point, Raster } from '../types';
 import { AnalysisError } from '../errors';
 import { gaussianPixelFraction } from './gaussianPixelFraction';
@@ -149,9 +150,9 @@ export function aperturePhotometry(
 
   // background and noise
   annulus.sort((a, b) => a - b);
-  const background = medianOfSorted(annulus);
+  const background = medianSorted(annulus);
   const deviations = annulus.map((v) => Math.abs(v - background)).sort((a, b) => a - b);
-  const sigma = 1.4826 * medianOfSorted(deviations);
+  const sigma = 1.4826 * medianSorted(deviations);
   const netCounts = sum - background * area;
   const variance =
     gainCountsPerPhoton * Math.max(netCounts, 0) +
@@ -185,7 +186,4 @@ function coveredFraction(dx: number, dy: number, radius: number, n: number): num
   return inside / (n * n);
 }
 
-function medianOfSorted(sorted: readonly number[]): number {
-  const m = sorted.length >> 1;
-  return sorted.length % 2 ? sorted[m] : 0.5 * (sorted[m - 1] + sorted[m]);
-}
+

@@ -1,4 +1,4 @@
-import { quickselect } from 'simple-statistics';
+import { robustSigma } from '../heightmap/robustSigma';
 
 /** Result of {@link robustNoiseSigma}. */
 export interface RobustNoiseSigmaResult {
@@ -11,7 +11,8 @@ export interface RobustNoiseSigmaResult {
 }
 
 /**
- * Robust location and spread of a large array, from an evenly strided subsample.
+ * Robust location and spread of a large array, from an evenly strided subsample (every ⌈n / maxSamples⌉-th value);
+ * the same computation as the height map's robustSigma, which it calls.
  *
  * @param values - samples (any unit); not modified
  * @param maxSamples - at most this many evenly strided values are used (count)
@@ -23,15 +24,9 @@ export interface RobustNoiseSigmaResult {
 export function robustNoiseSigma(values: ArrayLike<number>, maxSamples = 262_144): RobustNoiseSigmaResult {
   const n = values.length;
   if (n === 0) throw new RangeError('values must not be empty');
-  const stride = Math.max(1, Math.floor(n / maxSamples));
-  const count = Math.ceil(n / stride);
-  const scratch = new Float64Array(count);
-  for (let i = 0, j = 0; i < n && j < count; i += stride, j++) scratch[j] = values[i];
-  const mid = count >> 1;
-  // quickselect is typed for number[] but only indexes and swaps, which a Float64Array supports.
-  quickselect(scratch as unknown as number[], mid);
-  const median = scratch[mid];
-  for (let j = 0; j < count; j++) scratch[j] = Math.abs(scratch[j] - median);
-  quickselect(scratch as unknown as number[], mid);
-  return { median, sigma: 1.4826 * scratch[mid], nbSamples: count };
+  // one MAD-sigma for the whole core: the height map's exact median (the mean of the two middle values for an even
+  // count), on a float64 scratch so that doubles (z-scores, SEs) are not rounded to float32 first
+  const nbSampled = Math.ceil(n / Math.max(1, Math.ceil(n / maxSamples)));
+  const { median, robustSigma: sigma, nbSamples } = robustSigma(values, undefined, new Float64Array(nbSampled + 1), maxSamples);
+  return { median, sigma, nbSamples };
 }

@@ -1,3 +1,4 @@
+import { median } from 'simple-statistics';
 import type { Affine, Point, Raster } from '../types';
 import { fitBeadSpots, type BeadSpotFit } from './fitBeadSpots';
 
@@ -135,8 +136,3 @@ function plausibleSigma(measured: number, predicted: number): number | null {
   return measured >= 0.6 * predicted && measured <= 1.6 * predicted ? measured : null;
 }
 
-function median(values: readonly number[]): number {
-  const s = [...values].sort((p, q) => p - q);
-  const n = s.length;
-  return n % 2 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}

@@ -1,3 +1,4 @@
+import { median } from 'simple-statistics';
 import { applyAffine } from '../geometry/applyAffine';
 import { estimateChannelRegistration, type ChannelRegistration, type EstimateChannelRegistrationResult } from '../geometry/estimateChannelRegistration';
 import { fitBeadSpots } from '../geometry/fitBeadSpots';
@@ -192,8 +193,3 @@ const UNKNOWN_BEAD_BRIGHTNESS_RATIO = 2.5;
 /** Bead images fainter than this (peak over background SD) stay in the frame: too faint to measure or to matter. */
 const MIN_SUBTRACT_SNR = 10;
 
-function median(values: readonly number[]): number {
-  const s = [...values].sort((p, q) => p - q);
-  const n = s.length;
-  return n % 2 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}

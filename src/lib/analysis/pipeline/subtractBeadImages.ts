@@ -1,3 +1,4 @@
+import { median } from 'simple-statistics';
 import type { Raster } from '../types';
 
 /** One bead image in a frame: fitted centre (px) and integrated counts above background (counts), e.g. from fitBeadSpots. */
@@ -45,7 +46,7 @@ export function subtractBeadImages(raster: Raster, beads: readonly BeadImage[], 
     forEachNear(b, radiusPx + 2, width, height, (x, y, r) => {
       if (r >= radiusPx) ring.push(data[y * width + x]);
     });
-    const background = ring.length ? medianOf(ring) : 0;
+    const background = ring.length ? median(ring) : 0;
     const sum = new Float64Array(nbBins);
     const count = new Float64Array(nbBins);
     forEachNear(b, radiusPx, width, height, (x, y, r) => {
@@ -58,7 +59,7 @@ export function subtractBeadImages(raster: Raster, beads: readonly BeadImage[], 
   const profile = new Float64Array(nbBins);
   for (let k = 0; k < nbBins; k++) {
     const values = perBead.filter((p) => p.count[k] > 0).map((p) => p.sum[k] / p.count[k]);
-    if (values.length) profile[k] = medianOf(values);
+    if (values.length) profile[k] = median(values);
   }
   const out = Float32Array.from(data);
   for (const b of beads) {
@@ -73,11 +74,6 @@ export function subtractBeadImages(raster: Raster, beads: readonly BeadImage[], 
   return { raster: { data: out, width, height }, profile };
 }
 
-function medianOf(values: number[]): number {
-  const s = [...values].sort((a, b) => a - b);
-  const n = s.length;
-  return n % 2 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}
 
 function forEachNear(p: { x: number; y: number }, radiusPx: number, w: number, h: number, f: (x: number, y: number, r: number) => void): void {
   const x0 = Math.max(0, Math.ceil(p.x - radiusPx));

@@ -1,4 +1,5 @@
 import { gammaln } from 'simple-statistics';
+import { mulberry32 } from '../geometry/mulberry32';
 
 /** A seeded pseudo-random source. Every draw advances one shared 32-bit state. */
 export interface Rng {
@@ -29,16 +30,8 @@ const POISSON_INVERSION_MAX_MEAN = 10;
  */
 export function createRng(seed: number): Rng {
   if (!Number.isFinite(seed)) throw new RangeError(`seed must be a finite number, got ${seed}`);
-  let state = seed >>> 0;
   let spareNormal = Number.NaN;
-
-  const uniform = (): number => {
-    state = (state + 0x6d2b79f5) | 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const uniform = mulberry32(seed);
 
   const normal = (): number => {
     if (!Number.isNaN(spareNormal)) {
