@@ -30,6 +30,7 @@ export function useImageMarkers(viewer: OpenSeadragon.Viewer | null | undefined,
     viewer.addHandler('open', redraw);
     return () => viewer.removeHandler('open', redraw);
   }, [viewer]);
+  // also covers an image that opened before the handler above was attached
   useEffect(() => {
     if (viewer) drawMarkers(viewer, markers);
   }, [viewer, markers]);

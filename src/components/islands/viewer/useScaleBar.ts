@@ -24,6 +24,8 @@ export function useScaleBar(viewer: OpenSeadragon.Viewer | null | undefined, pix
     };
     viewer.addHandler('animation', update);
     viewer.addHandler('open', update);
+    // the image may have opened before these handlers were attached (the viewer is handed over a render later)
+    update();
     return () => {
       viewer.removeHandler('animation', update);
       viewer.removeHandler('open', update);

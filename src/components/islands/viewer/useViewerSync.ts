@@ -23,6 +23,8 @@ export function useViewerSync(viewers: readonly OpenSeadragon.Viewer[]): void {
     const events = ['animation', 'animation-finish', 'viewport-change', 'resize'] as const;
     for (const ev of events) leader.addHandler(ev, sync);
     followers.forEach((f) => f.addHandler('open', sync));
+    // followers that opened before these handlers were attached take the leader's view now
+    sync();
     return () => {
       for (const ev of events) leader.removeHandler(ev, sync);
       followers.forEach((f) => f.removeHandler('open', sync));
