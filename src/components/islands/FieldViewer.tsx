@@ -1,10 +1,10 @@
-import { useEffect, useId, useRef, useState, type InputHTMLAttributes } from 'react';
-import OpenSeadragon from 'openseadragon';
+import { useEffect, useId, useRef, useState } from 'react';
+import type OpenSeadragon from 'openseadragon';
 import ChannelFilter from './viewer/ChannelFilter';
 import { getLayerValues } from '../../lib/api-client/routes';
 import {
-  DEFAULT_HEIGHT_DISPLAY, channelRange, channelTransfer, defaultChannelDisplay, formatCounts, heightFilterCss,
-  isDefaultChannelDisplay, parseTint, setChannelPoint, storedWindow, toHex, fromHex, type ChannelDisplay, type HeightDisplay,
+  DEFAULT_HEIGHT_DISPLAY, channelTransfer, defaultChannelDisplay, heightFilterCss, isDefaultChannelDisplay, parseTint,
+  setChannelPoint, storedWindow, type ChannelDisplay, type HeightDisplay,
 } from './viewer/layerDisplay';
 import { useOpenSeadragonViewers } from './viewer/useOpenSeadragonViewers';
 import { useViewerSync } from './viewer/useViewerSync';
@@ -12,14 +12,11 @@ import { useScaleBar } from './viewer/useScaleBar';
 import { useImagePointer } from './viewer/useImagePointer';
 import { viewportSquareAround } from './viewer/imageCoordinates';
 import { readoutText, type ReadoutLayer } from './viewer/readout';
-import { useCssVariables } from './useCssVariables';
+import { markerOf, type ViewerLayer } from './viewer/viewerLayer';
+import { ChannelRow, HeightRow } from './viewer/LayerControls';
+import { ColourBar, LayerHost, ScaleBarLine } from './viewer/LayerStack';
 
-export interface ViewerLayer {
-  layer: string;
-  widthPx: number;
-  heightPx: number;
-  display: Record<string, unknown>;
-}
+export type { ViewerLayer };
 
 interface Props {
   fieldId: string;
@@ -28,7 +25,6 @@ interface Props {
   flPixelNm: number;
 }
 
-const markerOf = (l: ViewerLayer) => String(l.display.marker ?? l.layer);
 const readoutLayer = (l: ViewerLayer): ReadoutLayer => ({
   layer: l.layer, name: markerOf(l), widthPx: l.widthPx, heightPx: l.heightPx,
   valuesFactor: Number(l.display.valuesFactor ?? 1), valuesWidth: Number(l.display.valuesWidth ?? 0),
@@ -196,135 +192,6 @@ export default function FieldViewer({ fieldId, layers, afmPixelNm, flPixelNm }: 
           Display only: each setting changes how its layer looks on screen. The read-out{mode === 'height' ? ', the colour bar values' : ''} and all measurements use the stored values.
         </p>
       </div>
-    </div>
-  );
-}
-
-interface LayerHostProps {
-  hostRef: (el: HTMLDivElement | null) => void;
-  layer: string;
-  /** The leader is on top and takes the pointer; the followers only draw. */
-  leader: boolean;
-  /** Channels add up on screen. */
-  additive: boolean;
-  opacity: number;
-  /** CSS filter of the layer's display settings ('none' while it shows the tiles as rendered). */
-  filter: string;
-}
-
-/** The box one layer's viewer draws in; its opacity and filter change at run time, so they go in as CSS variables. */
-function LayerHost({ hostRef, layer, leader, additive, opacity, filter }: LayerHostProps) {
-  const el = useRef<HTMLDivElement>(null);
-  useCssVariables(el, { '--layer-opacity': opacity, '--layer-filter': filter });
-  return (
-    <div
-      ref={(node) => {
-        el.current = node;
-        hostRef(node);
-      }}
-      className={`absolute inset-0 opacity-(--layer-opacity) filter-(--layer-filter) ${leader ? 'z-10' : 'z-[1] pointer-events-none'} ${additive ? 'mix-blend-plus-lighter' : ''}`}
-      data-testid={`viewer-layer-${layer}`}
-      data-layer={layer}
-    />
-  );
-}
-
-/** The bar of the scale bar, `px` screen pixels long. */
-function ScaleBarLine({ px }: { px: number }) {
-  const el = useRef<HTMLDivElement>(null);
-  useCssVariables(el, { '--scale-bar-width': `${px}px` });
-  return <div ref={el} className="w-(--scale-bar-width) h-1.5 bg-white rounded-sm" />;
-}
-
-/** The height colour bar: the tiles' colour stops, through the same display filter as the map. */
-function ColourBar({ filter, gradient }: { filter: string; gradient: string }) {
-  const el = useRef<HTMLDivElement>(null);
-  useCssVariables(el, { '--colour-bar-filter': filter, '--colour-bar': gradient });
-  return <div ref={el} className="w-48 h-3 rounded filter-(--colour-bar-filter) bg-(image:--colour-bar)" />;
-}
-
-/** A channel's colour dot. */
-function Swatch({ colour }: { colour: string }) {
-  const el = useRef<HTMLSpanElement>(null);
-  useCssVariables(el, { '--swatch': colour });
-  return <span ref={el} className="inline-block w-3 h-3 rounded-full bg-(--swatch)" />;
-}
-
-const ROW = 'grid grid-cols-[8rem_4.5rem_minmax(0,1fr)_minmax(0,1.3fr)_minmax(0,1.3fr)_auto] items-center gap-x-5 px-3 py-2';
-
-/** A labelled slider with its current value (and unit) above it. */
-function Slider({ label, shows, valueTestId, ...input }: { label: string; shows: string; valueTestId?: string } & InputHTMLAttributes<HTMLInputElement>) {
-  return (
-    <label className="block min-w-0">
-      <span className="flex justify-between gap-2 text-xs text-mica-600">
-        <span>{label}</span>
-        <span className="tabular-nums text-mica-800" data-testid={valueTestId}>{shows}</span>
-      </span>
-      <input type="range" className="w-full accent-tip-600" {...input} />
-    </label>
-  );
-}
-
-function HeightRow({ display, onChange }: { display: HeightDisplay; onChange: (d: HeightDisplay) => void }) {
-  return (
-    <div className={ROW} data-testid="layer-controls-height">
-      <span className="font-medium text-mica-800">Height map</span>
-      <span />
-      <Slider label="Brightness" shows={`${display.brightnessPct} %`} min={50} max={300} step={5} value={display.brightnessPct}
-        aria-label="Brightness of the height map" onChange={(e) => onChange({ ...display, brightnessPct: Number(e.target.value) })} />
-      <Slider label="Contrast" shows={`${display.contrastPct} %`} min={50} max={300} step={5} value={display.contrastPct}
-        aria-label="Contrast of the height map" onChange={(e) => onChange({ ...display, contrastPct: Number(e.target.value) })} />
-      <span />
-      <button type="button" className="btn btn-quiet" aria-label="Reset height map display" onClick={() => onChange(DEFAULT_HEIGHT_DISPLAY)}>Reset</button>
-    </div>
-  );
-}
-
-interface ChannelRowProps {
-  layer: ViewerLayer;
-  visible: boolean;
-  onVisible: (on: boolean) => void;
-  opacity: number;
-  onOpacity: (o: number) => void;
-  display: ChannelDisplay | undefined;
-  onDisplay: (which: 'black' | 'white', counts: number) => void;
-  onColour: (colour: [number, number, number]) => void;
-  onReset: () => void;
-}
-
-function ChannelRow({ layer, visible, onVisible, opacity, onOpacity, display, onDisplay, onColour, onReset }: ChannelRowProps) {
-  const name = markerOf(layer);
-  const w = storedWindow(layer.display);
-  const range = w ? channelRange(w) : null;
-  const tint = parseTint(layer.display.colour);
-  return (
-    <div className={ROW} data-testid={`layer-controls-${layer.layer}`}>
-      <label className="inline-flex items-center gap-2 font-medium text-mica-800">
-        <input type="checkbox" className="accent-tip-600" aria-label={`Show ${name}`} checked={visible} onChange={(e) => onVisible(e.target.checked)} />
-        {name}
-      </label>
-      {tint && display ? (
-        <label className="inline-flex items-center gap-1.5 text-xs text-mica-600" title="Display colour (screen only)">
-          <input type="color" className="w-7 h-6 p-0 border border-mica-200 rounded cursor-pointer bg-white" aria-label={`Colour of ${name}`}
-            value={toHex(display.colour ?? tint)} onChange={(e) => { const c = fromHex(e.target.value); if (c) onColour(c); }} />
-          colour
-        </label>
-      ) : (
-        <Swatch colour={String(layer.display.colour ?? '#fff')} />
-      )}
-      <Slider label="Opacity" shows={`${Math.round(opacity * 100)} %`} min={0.1} max={1} step={0.05} value={opacity}
-        aria-label={`Opacity of ${name}`} onChange={(e) => onOpacity(Number(e.target.value))} />
-      {range && display ? (
-        <>
-          <Slider label="Black at" shows={formatCounts(display.blackCounts)} valueTestId={`black-${layer.layer}`} min={range.min} max={range.max} step={range.step}
-            value={display.blackCounts} aria-label={`Black level of ${name}`} onChange={(e) => onDisplay('black', Number(e.target.value))} />
-          <Slider label="Full colour at" shows={formatCounts(display.whiteCounts)} valueTestId={`white-${layer.layer}`} min={range.min} max={range.max} step={range.step}
-            value={display.whiteCounts} aria-label={`Full colour level of ${name}`} onChange={(e) => onDisplay('white', Number(e.target.value))} />
-        </>
-      ) : (
-        <span className="col-span-2 text-xs text-mica-400">Levels appear once the field has been processed again.</span>
-      )}
-      <button type="button" className="btn btn-quiet" aria-label={`Reset display of ${name}`} onClick={onReset}>Reset</button>
     </div>
   );
 }
