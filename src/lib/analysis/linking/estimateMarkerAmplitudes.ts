@@ -199,7 +199,17 @@ export function estimateMarkerAmplitudes(
     // weighted by 1/variance of its fitted mean
     let eq = separableNormalEquations(fx, fy, w, h, k, b);
     let solution = solveNnlsNormal(eq.g, eq.h).x;
-    if (camera) {
+    let anyLight = false;
+    for (let c = 0; c < k; c++) if (solution[c] > 0) anyLight = true;
+    if (camera && !anyLight) {
+      // nothing but background: every pixel has the same variance, so the weighted problem is the unweighted one
+      // times 1/variance, with the same solution (skipping the weighted pass is exact, not an approximation)
+      const { offsetCounts, gainCountsPerPhoton: g, readNoiseCounts: r } = camera;
+      const weight = 1 / Math.max(g * (solution[k] - solution[k + 1] - offsetCounts) + r * r, g + r * r);
+      for (let i = 0; i < eq.g.length; i++) eq.g[i] *= weight;
+      for (let i = 0; i < eq.h.length; i++) eq.h[i] *= weight;
+      eq.bb *= weight;
+    } else if (camera) {
       const a = scratch.take('a', m * k);
       for (let c = 0; c < k; c++) {
         let at = c * m;
