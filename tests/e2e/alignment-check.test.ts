@@ -4,32 +4,30 @@
  * alternates and pauses, the cross-fade mixes, and beads (bright in every channel) land on bright
  * fluorescence through the saved transform.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
-import { APP_URL, signedIn } from '../support/client';
+import { describe, expect } from 'vitest';
+import type { Page } from 'playwright-core';
+import { signInAs, screenshot, islandsReady } from '../support/browser';
+import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { demoField } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine } from '../../src/lib/analysis/geometry';
+import { test, it } from '../support/fixtures';
 
 const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-003')!;
 const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
 const beads = truth.truth.filter((t) => t.kind === 'bead');
-let browser: Browser;
 let fieldId: string;
 
-beforeAll(async () => {
-  browser = await launch();
+test.beforeAll(async ({ signedIn }) => {
   fieldId = await demoField(spec.code);
-  const analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+  const analyst = await signedIn('analyst');
   const pairs = beads.map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
   const versions = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;
   const save = await analyst.json(`/api/fields/${fieldId}/registration`, 'POST', { basedOnVersion: versions[0]?.version ?? 0, pairs });
   expect(save.status).toBe(201);
 });
-afterAll(async () => { await browser?.close(); });
 
 /** RGBA of canvas pixels (canvas = AFM read-out grid, here the full 768 × 768 AFM frame). */
 function pixels(page: Page, points: { x: number; y: number }[]) {
@@ -63,8 +61,8 @@ async function sectionShot(page: Page, name: string) {
 const brightness = (rgba: number[]) => rgba[0] + rgba[1] + rgba[2];
 
 describe('alignment check in Chromium', () => {
-  it('draws a checkerboard, blink and cross-fade of the two images through the saved transform', async () => {
-    const page = await (await browser.newContext({ viewport: { width: 1500, height: 1100 } })).newPage();
+  it('draws a checkerboard, blink and cross-fade of the two images through the saved transform', async ({ newPage }) => {
+    const page = await newPage({ viewport: { width: 1500, height: 1100 } });
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/fields/${fieldId}/register`);
     await islandsReady(page);

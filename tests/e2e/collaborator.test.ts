@@ -3,16 +3,15 @@
  * samples but no vesicles, so approved fields, link runs, generated vesicles and a release are
  * written to the database first (idempotent: skipped when the demo samples are already released).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { readFileSync } from 'node:fs';
-import type { Browser } from 'playwright-core';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { summariseLinkRun } from '../../src/lib/db/queries/linkRunSummaries';
-import { islandsReady, launch, signInAs, screenshot } from '../support/browser';
+import { islandsReady, signInAs, screenshot } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let db: Db;
 let studyId: string;
 const positives: Record<string, number> = {};
@@ -38,9 +37,8 @@ async function releaseDemoSample(sampleId: string, n: number, cd9Every: number) 
   await q(`insert into releases (sample_id, version, link_run_ids) values ($1, 1, $2::jsonb)`, [sampleId, JSON.stringify([lr.id])]);
 }
 
-beforeAll(async () => {
-  browser = await launch();
-  db = createDb(process.env.DATABASE_URL!, 2);
+test.beforeAll(async ({ db: fileDb }) => {
+  db = fileDb;
   [{ id: studyId }] = await q<{ id: string }>(`select id from studies where name like 'Harbour Clinic plasma EV pilot%'`);
   const samples = await q<{ id: string; code: string }>(`select id, code from samples where study_id = $1 and code in ('HCP-001', 'HCP-002', 'HCP-003', 'HCP-004')`, [studyId]);
   for (const [i, s] of samples.entries()) {
@@ -54,15 +52,9 @@ beforeAll(async () => {
   }
 });
 
-afterAll(async () => {
-  await browser?.close();
-  await db?.$client.end();
-});
-
 describe('collaborator results in Chromium', () => {
-  it('opens the comparison, sees the caution and downloads the comparison and summary CSVs', async () => {
-    const ctx = await browser.newContext({ acceptDownloads: true });
-    const page = await ctx.newPage();
+  it('opens the comparison, sees the caution and downloads the comparison and summary CSVs', async ({ newPage }) => {
+    const page = await newPage({ acceptDownloads: true });
     const errors: string[] = [];
     page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
     await signInAs(page, DEMO.collaborator, DEMO_PASSWORD);
@@ -106,6 +98,5 @@ describe('collaborator results in Chromium', () => {
     expect(Number(cd9[6])).toBe(positives['HCP-001']);
     await screenshot(page, 'collaborator-sample');
     expect(errors).toEqual([]);
-    await ctx.close();
   });
 });

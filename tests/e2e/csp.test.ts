@@ -2,22 +2,19 @@
  * The app's own pages run under its Content-Security-Policy without a single violation: sign-in,
  * studies, a study, a processed field with the viewer, and the upload page, in Debian's Chromium.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import { describe, expect } from 'vitest';
+import type { Page } from 'playwright-core';
 import { eq } from 'drizzle-orm';
-import { launch, signInAs } from '../support/browser';
+import { signInAs } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
-import { createDb } from '../../src/lib/db/client';
 import { fields, samples } from '../../src/lib/db/schema';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let studyId = '';
 let fieldId = '';
 
-beforeAll(async () => {
-  browser = await launch();
-  const db = createDb(process.env.DATABASE_URL!, 2);
+test.beforeAll(async ({ db }) => {
   // a processed demo field (the worker ingests them at start-up)
   const until = Date.now() + 60_000;
   while (Date.now() < until && !fieldId) {
@@ -26,9 +23,7 @@ beforeAll(async () => {
     if (row) ({ id: fieldId, studyId } = row);
     else await new Promise((r) => setTimeout(r, 1000));
   }
-  await db.$client.end();
 });
-afterAll(async () => { await browser?.close(); });
 
 /** Collects CSP reports from the console and from the page's securitypolicyviolation events. */
 async function watch(page: Page) {
@@ -43,10 +38,8 @@ async function watch(page: Page) {
 }
 
 describe('Content-Security-Policy in Chromium', () => {
-  it('the app pages produce no CSP violation', async () => {
+  it('the app pages produce no CSP violation', async ({ page }) => {
     expect(fieldId, 'a processed demo field').not.toBe('');
-    const ctx = await browser.newContext();
-    const page = await ctx.newPage();
     const violations = await watch(page);
     const seen: string[] = [];
     page.on('response', (r) => { if (r.request().resourceType() === 'document') seen.push(new URL(r.url()).pathname); });
@@ -66,6 +59,5 @@ describe('Content-Security-Policy in Chromium', () => {
     expect(tiles).toBeGreaterThan(0);
     expect(seen).toContain('/signin');
     expect(violations).toEqual([]);
-    await ctx.close();
   });
 });

@@ -3,17 +3,16 @@
  * lowers the bead cut-off below the 200 nm beads and detects again; the status card shows the job and the page
  * then shows the beads as fiducial candidates. A biologist sees the settings read-only.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser } from 'playwright-core';
+import { describe, expect, afterAll } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { fields, samples } from '../../src/lib/db/schema';
-import { islandsReady, launch, screenshot, signInAs } from '../support/browser';
-import { APP_URL, signedIn } from '../support/client';
+import { islandsReady, screenshot, signInAs } from '../support/browser';
+import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { BEAD_FIELD, insertBeadField } from '../support/beadField';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let db: Db;
 let sampleId: string;
 let fieldId: string;
@@ -29,27 +28,23 @@ async function processed(timeoutMs = 90_000) {
   throw new Error('the field was not processed in time');
 }
 
-beforeAll(async () => {
-  browser = await launch();
-  db = createDb(process.env.DATABASE_URL!, 1);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
   const [demo] = await db.select().from(samples).where(eq(samples.code, 'HCP-001'));
   const [s] = await db.insert(samples).values({ studyId: demo.studyId, code: `DETSET-E2E-${Date.now().toString(36)}` }).returning();
   sampleId = s.id;
   fieldId = await insertBeadField(db, sampleId, 'beads e2e');
-  const biologist = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+  const biologist = await signedIn('biologist');
   expect((await biologist.fetch(`/api/fields/${fieldId}/retry`, { method: 'POST' })).status).toBe(202);
   await processed();
 }, 150_000);
 
 afterAll(async () => {
-  await browser?.close();
   if (sampleId) await db.delete(samples).where(eq(samples.id, sampleId));
-  await db?.$client.end();
 });
 
 describe('detection settings on the field page', () => {
-  it('an analyst lowers the bead cut-off and detects again; the beads become fiducial candidates', async () => {
-    const page = await (await browser.newContext()).newPage();
+  it('an analyst lowers the bead cut-off and detects again; the beads become fiducial candidates', async ({ page }) => {
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/fields/${fieldId}`);
     await islandsReady(page);
@@ -87,8 +82,7 @@ describe('detection settings on the field page', () => {
     await screenshot(page, 'detection-settings-analyst');
   }, 150_000);
 
-  it('a biologist sees the settings used without the form', async () => {
-    const page = await (await browser.newContext()).newPage();
+  it('a biologist sees the settings used without the form', async ({ page }) => {
     await signInAs(page, DEMO.biologist, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/fields/${fieldId}`);
     await islandsReady(page);

@@ -3,37 +3,29 @@
  * (written to <data dir>/screenshots/first-*.png), that the collaborator sees released pilot samples, and that
  * every result view shows the research-use caution on screen and in print.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import { describe, expect } from 'vitest';
+import type { Page } from 'playwright-core';
 import { eq } from 'drizzle-orm';
-import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
+import { signInAs, screenshot, islandsReady } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD, type DemoRole } from '../support/demo';
-import { createDb } from '../../src/lib/db/client';
 import { fields, samples, studies } from '../../src/lib/db/schema';
 import { PILOT_STUDY_NAME } from '../../scripts/seedPilot';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let studyId: string;
 let sampleId: string;
 let linkedFieldId: string;
 
-beforeAll(async () => {
-  browser = await launch();
-  const db = createDb(process.env.DATABASE_URL!, 1);
-  try {
-    const [study] = await db.select().from(studies).where(eq(studies.name, PILOT_STUDY_NAME));
-    studyId = study.id;
-    const rows = await db.select({ id: samples.id, code: samples.code }).from(samples).where(eq(samples.studyId, studyId));
-    sampleId = rows.find((r) => r.code === 'PDAC-01')!.id;
-    const hc5 = rows.find((r) => r.code === 'HC-05')!.id;
-    const f = await db.select({ id: fields.id, status: fields.status }).from(fields).where(eq(fields.sampleId, hc5));
-    linkedFieldId = f.find((x) => x.status === 'linked')!.id;
-  } finally {
-    await db.$client.end();
-  }
+test.beforeAll(async ({ db }) => {
+  const [study] = await db.select().from(studies).where(eq(studies.name, PILOT_STUDY_NAME));
+  studyId = study.id;
+  const rows = await db.select({ id: samples.id, code: samples.code }).from(samples).where(eq(samples.studyId, studyId));
+  sampleId = rows.find((r) => r.code === 'PDAC-01')!.id;
+  const hc5 = rows.find((r) => r.code === 'HC-05')!.id;
+  const f = await db.select({ id: fields.id, status: fields.status }).from(fields).where(eq(fields.sampleId, hc5));
+  linkedFieldId = f.find((x) => x.status === 'linked')!.id;
 });
-afterAll(async () => { await browser?.close(); });
 
 /** The caution is on the page and stays visible when printed. */
 async function expectCaution(page: Page, what: string) {
@@ -55,9 +47,8 @@ async function visit(page: Page, role: DemoRole, path: string, name: string, cau
 }
 
 describe('first screens of each role after the seed', () => {
-  it('collaborator: released pilot samples, the sample view and the comparison, each with the caution', async () => {
-    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-    const page = await ctx.newPage();
+  it('collaborator: released pilot samples, the sample view and the comparison, each with the caution', async ({ newPage }) => {
+    const page = await newPage({ viewport: { width: 1280, height: 900 } });
     await signInAs(page, DEMO.collaborator, DEMO_PASSWORD);
     await visit(page, 'collaborator', '/', 'home', true);
     await visit(page, 'collaborator', '/results', 'results', true);
@@ -67,12 +58,10 @@ describe('first screens of each role after the seed', () => {
     await visit(page, 'collaborator', `/studies/${studyId}`, 'study', true);
     await visit(page, 'collaborator', `/results/${sampleId}`, 'sample', true);
     await visit(page, 'collaborator', `/studies/${studyId}/compare`, 'compare', true);
-    await ctx.close();
   });
 
-  it('analyst: the queue with pilot fields at each step, and a linked field waiting for review with the caution', async () => {
-    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-    const page = await ctx.newPage();
+  it('analyst: the queue with pilot fields at each step, and a linked field waiting for review with the caution', async ({ newPage }) => {
+    const page = await newPage({ viewport: { width: 1280, height: 900 } });
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);
     await visit(page, 'analyst', '/', 'home', false);
     await visit(page, 'analyst', '/queue', 'queue', false);
@@ -80,17 +69,14 @@ describe('first screens of each role after the seed', () => {
       await expect(page.getByText(title).first().isVisible(), title).resolves.toBe(true);
     }
     await visit(page, 'analyst', `/fields/${linkedFieldId}`, 'linked-field', true);
-    await ctx.close();
   });
 
-  it('biologist and admin: home and the pilot study page', async () => {
+  it('biologist and admin: home and the pilot study page', async ({ newPage }) => {
     for (const role of ['biologist', 'admin'] as const) {
-      const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-      const page = await ctx.newPage();
+      const page = await newPage({ viewport: { width: 1280, height: 900 } });
       await signInAs(page, DEMO[role], DEMO_PASSWORD);
       await visit(page, role, '/', 'home', false);
       await visit(page, role, `/studies/${studyId}`, 'study', true);
-      await ctx.close();
     }
   });
 });

@@ -2,15 +2,14 @@
  * In Chromium: an analyst sets k and a hand-set threshold on the study page (a bad k gets the server's message), sees
  * a field linked with other settings listed, and its review panel shows each marker's threshold, rule and k.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { createDb, type Db } from '../../src/lib/db/client';
-import { islandReady, islandsReady, launch, signInAs } from '../support/browser';
+import { describe, expect, afterAll } from 'vitest';
+import type { Db } from '../../src/lib/db/client';
+import { islandReady, islandsReady, signInAs } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { ownStudy } from '../support/demoField';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let db: Db;
 let studyId: string;
 let sampleId: string;
@@ -18,9 +17,8 @@ let fieldId: string;
 const code = `PS-${Date.now().toString(36)}`;
 const q = async <T = Record<string, unknown>>(text: string, params: unknown[] = []) => (await db.$client.query(text, params)).rows as T[];
 
-beforeAll(async () => {
-  browser = await launch();
-  db = createDb(process.env.DATABASE_URL!, 1);
+test.beforeAll(async ({ db: fileDb }) => {
+  db = fileDb;
   // a study of its own (the demo panel and members): its thresholds change here while other files link the demo study
   studyId = await ownStudy('Positivity settings e2e');
   [{ id: sampleId }] = await q<{ id: string }>(`insert into samples (study_id, code) values ($1, $2) returning id`, [studyId, code]);
@@ -35,15 +33,12 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  await browser?.close();
   await db?.$client.query(`update marker_channels set positivity_k = 3, manual_threshold_counts = null where study_id = $1`, [studyId]);
   await db?.$client.query(`delete from samples where id = $1`, [sampleId]);
-  await db?.$client.end();
 });
 
 describe('positivity settings in Chromium', () => {
-  it('saves k and a hand-set threshold, lists the field linked with other settings, and the review panel shows what a run used', async () => {
-    const page = await (await browser.newContext()).newPage();
+  it('saves k and a hand-set threshold, lists the field linked with other settings, and the review panel shows what a run used', async ({ page }) => {
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/studies/${studyId}`);
     // the study page is long (other tests add samples): its client:visible islands hydrate when scrolled to

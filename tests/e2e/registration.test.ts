@@ -4,10 +4,10 @@
  * saving and a reload the same transform (on screen and from the API) and FRE are shown; a second
  * analyst (invited for this test) who started from the old version gets the conflict message.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
-import { APP_URL, AppClient, signedIn } from '../support/client';
+import { describe, expect } from 'vitest';
+import type { Page } from 'playwright-core';
+import { signInAs, screenshot, islandsReady } from '../support/browser';
+import { APP_URL, AppClient } from '../support/client';
 import { waitForMail, linkIn } from '../support/mailSink';
 import { DEMO_STUDY_NAME } from '../../scripts/seed';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
@@ -16,16 +16,15 @@ import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine } from '../../src/lib/analysis/geometry';
 import type { Affine } from '../../src/lib/analysis/types';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let fieldId: string;
 /** A second analyst of the demo study, invited through the admin API for this test. */
 const secondAnalyst = { email: `analyst-two-${Date.now()}@lab.example`, password: 'second-analyst-pw-42' };
-beforeAll(async () => {
-  browser = await launch();
+test.beforeAll(async ({ signedIn }) => {
   // a copy of HCP-001's field of its own: other tests register and release the seeded one
   fieldId = await ownDemoField('HCP-001', 'REG');
-  const admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
+  const admin = await signedIn('admin');
   expect((await admin.json('/api/admin/invitations', 'POST', { email: secondAnalyst.email, name: 'Second Analyst', role: 'analyst' })).status).toBe(201);
   const { token } = linkIn((await waitForMail(secondAnalyst.email, 'invitation')).text);
   expect((await new AppClient().json('/api/invitations/accept', 'POST', { token, password: secondAnalyst.password })).status).toBe(200);
@@ -35,7 +34,6 @@ beforeAll(async () => {
   const userId = people.find((p) => p.email === secondAnalyst.email)!.id;
   expect((await admin.json(`/api/studies/${studyId}/members`, 'PUT', { userId, role: 'analyst' })).status).toBe(204);
 });
-afterAll(async () => { await browser?.close(); });
 
 /** Screen position of image pixel (x, y) in a viewer showing a w × h image fitted to its box (the viewer's home view). */
 async function screenPoint(page: Page, testId: string, w: number, h: number, x: number, y: number) {
@@ -60,7 +58,7 @@ async function openWorkspace(page: Page) {
 }
 
 describe('registration workspace in Chromium', () => {
-  it('picks three pairs, reviews proposed partners, saves, and a reload shows the same transform and FRE; a stale save gets the conflict message', async () => {
+  it('picks three pairs, reviews proposed partners, saves, and a reload shows the same transform and FRE; a stale save gets the conflict message', async ({ newPage }) => {
     const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-001')!;
     const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
     const beads = truth.truth.filter((t) => t.kind === 'bead').slice(0, 6);
@@ -68,9 +66,9 @@ describe('registration workspace in Chromium', () => {
     const afmSize = 768;
     const flSize = 256;
 
-    const first = await (await browser.newContext({ viewport: { width: 1500, height: 1000 } })).newPage();
+    const first = await newPage({ viewport: { width: 1500, height: 1000 } });
     await signInAs(first, DEMO.analyst, DEMO_PASSWORD);
-    const second = await (await browser.newContext({ viewport: { width: 1500, height: 1000 } })).newPage();
+    const second = await newPage({ viewport: { width: 1500, height: 1000 } });
     await signInAs(second, secondAnalyst.email, secondAnalyst.password);
     await openWorkspace(first);
     await openWorkspace(second); // the second analyst starts from the same (empty) version

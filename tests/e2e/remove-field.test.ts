@@ -2,23 +2,21 @@
  * A biologist removes a failed field from its field page in Chromium: the confirmation names the field,
  * dismissing it keeps the field, accepting it removes the field and returns to the study.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { createDb, type Db } from '../../src/lib/db/client';
-import { islandsReady, launch, signInAs } from '../support/browser';
+import { describe, expect, afterAll } from 'vitest';
+import type { Db } from '../../src/lib/db/client';
+import { islandsReady, signInAs } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { test, it } from '../support/fixtures';
 
-let browser: Browser;
 let db: Db;
 let studyId: string;
 let sampleId: string;
 let fieldId: string;
 const code = `RF-${Date.now().toString(36)}`;
 
-beforeAll(async () => {
-  browser = await launch();
-  db = createDb(process.env.DATABASE_URL!, 1);
+test.beforeAll(async ({ db: fileDb }) => {
+  db = fileDb;
   const q = async (text: string, params: unknown[]) => (await db.$client.query(text, params)).rows;
   [{ id: studyId }] = await q(`select id from studies where name like 'Harbour Clinic plasma EV pilot%'`, []);
   [{ id: sampleId }] = await q(`insert into samples (study_id, code) values ($1, $2) returning id`, [studyId, code]);
@@ -29,14 +27,11 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  await browser?.close();
   await db?.$client.query(`delete from samples where id = $1`, [sampleId]);
-  await db?.$client.end();
 });
 
 describe('removing a field in Chromium', () => {
-  it('asks by name, keeps the field when dismissed, removes it when confirmed', async () => {
-    const page = await (await browser.newContext()).newPage();
+  it('asks by name, keeps the field when dismissed, removes it when confirmed', async ({ page }) => {
     await signInAs(page, DEMO.biologist, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/fields/${fieldId}`);
     await islandsReady(page);

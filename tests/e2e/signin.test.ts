@@ -1,12 +1,8 @@
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
+import { describe, expect } from 'vitest';
+import { signInAs, screenshot, islandsReady } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
-
-let browser: Browser;
-beforeAll(async () => { browser = await launch(); });
-afterAll(async () => { await browser?.close(); });
+import { test, it } from '../support/fixtures';
 
 const NAV = {
   admin: ['Studies', 'People', 'Audit log', 'Outbox'],
@@ -17,9 +13,7 @@ const NAV = {
 
 describe('sign-in in Chromium', () => {
   for (const role of Object.keys(NAV) as (keyof typeof NAV)[]) {
-    it(`${role} signs in through the form and sees only their navigation`, async () => {
-      const ctx = await browser.newContext();
-      const page = await ctx.newPage();
+    it(`${role} signs in through the form and sees only their navigation`, async ({ page }) => {
       const errors: string[] = [];
       page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
       await signInAs(page, DEMO[role], DEMO_PASSWORD);
@@ -28,12 +22,10 @@ describe('sign-in in Chromium', () => {
       await expect(page.getByTestId('whoami').textContent()).resolves.toBeTruthy();
       await screenshot(page, `home-${role}`);
       expect(errors).toEqual([]);
-      await ctx.close();
     });
   }
 
-  it('shows a clear message for a wrong password and stays on the sign-in page', async () => {
-    const page = await browser.newPage();
+  it('shows a clear message for a wrong password and stays on the sign-in page', async ({ page }) => {
     await page.goto(`${APP_URL}/signin`);
     await islandsReady(page);
     // without JavaScript the form must not put the password into the address (a GET)
@@ -44,6 +36,5 @@ describe('sign-in in Chromium', () => {
     await expect(page.getByRole('alert').textContent()).resolves.toContain('do not match');
     expect(new URL(page.url()).pathname).toBe('/signin');
     await screenshot(page, 'signin-error');
-    await page.close();
   });
 });

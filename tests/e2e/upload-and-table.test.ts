@@ -2,24 +2,20 @@
  * In Chromium: a biologist uploads a pair, sees what was read, saves, and sees the field in the
  * viewer; an analyst opens a linked demo field's vesicle table, filters it and downloads the CSV.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { readFileSync } from 'node:fs';
-import type { Browser } from 'playwright-core';
-import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
-import { APP_URL, signedIn } from '../support/client';
+import { signInAs, screenshot, islandsReady } from '../support/browser';
+import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { demoField } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine } from '../../src/lib/analysis/geometry';
-
-let browser: Browser;
-beforeAll(async () => { browser = await launch(); });
-afterAll(async () => { await browser?.close(); });
+import { test, it } from '../support/fixtures';
 
 describe('upload in Chromium', () => {
-  it('uploads a pair, confirms the metadata and sees the field in the viewer', async () => {
-    const page = await (await browser.newContext({ viewport: { width: 1400, height: 1000 } })).newPage();
+  it('uploads a pair, confirms the metadata and sees the field in the viewer', async ({ newPage }) => {
+    const page = await newPage({ viewport: { width: 1400, height: 1000 } });
     await signInAs(page, DEMO.biologist, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/upload`);
     // the form's state is set up on hydration; typing before it would be reset
@@ -50,9 +46,9 @@ describe('upload in Chromium', () => {
 });
 
 describe('vesicle table in Chromium', () => {
-  it('opens a linked demo field, filters the table and downloads the CSV', async () => {
+  it('opens a linked demo field, filters the table and downloads the CSV', async ({ newPage, signedIn }) => {
     // link the HCP-003 demo field through the API first (bead pairs from the generator's truth)
-    const analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+    const analyst = await signedIn('analyst');
     const fieldId = await demoField('HCP-003');
     const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-003')!;
     const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
@@ -67,8 +63,7 @@ describe('vesicle table in Chromium', () => {
       await new Promise((r) => setTimeout(r, 500));
     }
 
-    const ctx = await browser.newContext({ viewport: { width: 1400, height: 1000 }, acceptDownloads: true });
-    const page = await ctx.newPage();
+    const page = await newPage({ viewport: { width: 1400, height: 1000 }, acceptDownloads: true });
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);
     await page.goto(`${APP_URL}/fields/${fieldId}`);
     await islandsReady(page);
@@ -109,6 +104,5 @@ describe('vesicle table in Chromium', () => {
     const hi = text[1].split(',').indexOf('height_nm');
     expect(text.length - 2).toBe(heights.length > 0 ? Number((await count.textContent())!.match(/· ([\d,]+) vesicles/)![1].replace(/,/g, '')) : 0);
     for (const line of text.slice(2)) expect(Number(line.split(',')[hi])).toBeGreaterThanOrEqual(20);
-    await ctx.close();
   });
 });

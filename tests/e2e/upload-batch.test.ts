@@ -3,23 +3,22 @@
  * files with them, a failed or wrong file can be removed, and an uncalibrated pixel size from the
  * file is refused until the biologist types one (which then wins).
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { launch, signInAs, screenshot, islandsReady } from '../support/browser';
-import { APP_URL, signedIn, type AppClient } from '../support/client';
+import { describe, expect } from 'vitest';
+import type { Page } from 'playwright-core';
+import { signInAs, screenshot, islandsReady } from '../support/browser';
+import { APP_URL, type AppClient } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { writeTiff } from '../../src/lib/imaging';
+import { test, it, type NewPage } from '../support/fixtures';
 
-let browser: Browser;
 let bio: AppClient;
-beforeAll(async () => { browser = await launch(); bio = await signedIn(DEMO.biologist, DEMO_PASSWORD); });
-afterAll(async () => { await browser?.close(); });
+test.beforeAll(async ({ signedIn }) => { bio = await signedIn('biologist'); });
 
 const tif = (name: string, bytes: Uint8Array) => ({ name, mimeType: 'image/tiff', buffer: Buffer.from(bytes) });
 
-async function uploadPage(): Promise<Page> {
-  const page = await (await browser.newContext({ viewport: { width: 1400, height: 1000 } })).newPage();
+async function uploadPage(newPage: NewPage): Promise<Page> {
+  const page = await newPage({ viewport: { width: 1400, height: 1000 } });
   await signInAs(page, DEMO.biologist, DEMO_PASSWORD);
   await page.goto(`${APP_URL}/upload`);
   await islandsReady(page);
@@ -36,8 +35,8 @@ async function saveAndFetch(page: Page, name: string) {
 }
 
 describe('upload form in Chromium', () => {
-  it('removing Field 1 of 2 leaves Field 2 with its own files, and saves them', async () => {
-    const page = await uploadPage();
+  it('removing Field 1 of 2 leaves Field 2 with its own files, and saves them', async ({ newPage }) => {
+    const page = await uploadPage(newPage);
     const a = makeDemoPair({ seed: 11, afmSizePx: 192, flSizePx: 64, nbVesicles: 5 });
     const b = makeDemoPair({ seed: 12, afmSizePx: 192, flSizePx: 64, nbVesicles: 5 });
     await page.getByRole('button', { name: 'Add another field' }).click();
@@ -59,8 +58,8 @@ describe('upload form in Chromium', () => {
     expect(saved.files.map((f) => [f.kind, f.originalName]).sort()).toEqual([['fluorescence', 'B-fluo.tif'], ['topography', 'B-height.tif']]);
   });
 
-  it('a failed file can be removed with the keyboard and replaced, then the field saves', async () => {
-    const page = await uploadPage();
+  it('a failed file can be removed with the keyboard and replaced, then the field saves', async ({ newPage }) => {
+    const page = await uploadPage(newPage);
     const p = makeDemoPair({ seed: 13, afmSizePx: 192, flSizePx: 64, nbVesicles: 5 });
     await page.getByLabel('Sample').selectOption({ label: 'HCP-002' });
     await page.getByLabel('Field name').fill('after removal');
@@ -81,8 +80,8 @@ describe('upload form in Chromium', () => {
     expect(saved.files.map((f) => f.originalName).sort()).toEqual(['good-fluo.tif', 'good-height.tif']);
   });
 
-  it('refuses a 72 px/inch height map until a pixel size is typed, then saves the typed value', async () => {
-    const page = await uploadPage();
+  it('refuses a 72 px/inch height map until a pixel size is typed, then saves the typed value', async ({ newPage }) => {
+    const page = await uploadPage(newPage);
     const p = makeDemoPair({ seed: 14, afmSizePx: 192, flSizePx: 64, nbVesicles: 5 });
     // 1 inch / 72 = 352 777.8 nm per pixel (TIFF 6.0 section 8, ResolutionUnit 2 = inch)
     const heights = Float32Array.from({ length: 96 * 96 }, (_, i) => (i * 7919) % 23);

@@ -3,22 +3,18 @@
  * and sees only that channel change on screen (as the transfer predicts), the others and the cursor
  * read-out stay as they were, and reset brings the channel back.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { decode } from 'fast-png';
 import { eq } from 'drizzle-orm';
-import type { Browser, Page } from 'playwright-core';
-import { launch, signInAs, islandsReady, screenshot } from '../support/browser';
+import type { Page } from 'playwright-core';
+import { signInAs, islandsReady, screenshot } from '../support/browser';
 import { APP_URL } from '../support/client';
 import { DEMO, DEMO_PASSWORD } from '../support/demo';
 import { demoField } from '../support/demoField';
-import { createDb } from '../../src/lib/db/client';
 import { tileSets } from '../../src/lib/db/schema';
 import { applyChannelTransfer, channelTransfer, parseTint, storedWindow } from '../../src/components/islands/viewer/layerDisplay';
-
-let browser: Browser;
-beforeAll(async () => { browser = await launch(); });
-afterAll(async () => { await browser?.close(); });
+import { test, it } from '../support/fixtures';
 
 const shotDir = `${process.env.HEIGHTLIGHT_DATA_DIR ?? '.test-data'}/screenshots`;
 
@@ -54,17 +50,15 @@ async function showOnly(page: Page, names: string[], keep: string) {
 }
 
 describe('per-channel display in the field viewer', () => {
-  it('changes one channel only, keeps the read-out raw and resets', async () => {
+  it('changes one channel only, keeps the read-out raw and resets', async ({ db, newPage }) => {
     const fieldId = await demoField('HCP-001');
-    const db = createDb(process.env.DATABASE_URL!, 1);
     const sets = await db.select().from(tileSets).where(eq(tileSets.fieldId, fieldId));
-    await db.$client.end();
     const chans = sets.filter((s) => s.layer.startsWith('ch')).sort((a, b) => a.layer.localeCompare(b.layer));
     expect(chans.length).toBeGreaterThanOrEqual(2);
     const names = chans.map((c) => String((c.display as Record<string, unknown>).marker ?? c.layer));
     const [first, second] = chans;
 
-    const page = await (await browser.newContext({ viewport: { width: 1400, height: 1100 } })).newPage();
+    const page = await newPage({ viewport: { width: 1400, height: 1100 } });
     const pageErrors: string[] = [];
     page.on('pageerror', (e) => pageErrors.push(e.message));
     await signInAs(page, DEMO.analyst, DEMO_PASSWORD);

@@ -5,11 +5,11 @@
  * true transform, fields wait at every analyst step, and the collaborator sees released results, a group
  * comparison and the research-use caution on every result reply.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { and, eq, inArray, sql } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { AppClient } from '../support/client';
+import { DEMO } from '../support/demo';
+import type { Db } from '../../src/lib/db/client';
 import { auditLog, fields, linkRuns, registrations, releases, samples, studies, users, vesicles } from '../../src/lib/db/schema';
 import { PILOT_FIELD_NAMES, PILOT_SAMPLES, PILOT_SCENE, PILOT_STUDY_NAME, pilotSeed } from '../../scripts/seedPilot';
 import { makeCorrelativePair } from '../../fixtures/demoScene';
@@ -17,6 +17,7 @@ import { DEMO_PANEL } from '../../scripts/seed';
 import { applyAffine } from '../../src/lib/analysis/geometry';
 import type { Affine } from '../../src/lib/analysis/types';
 import { RESEARCH_USE_NOTICE } from '../../src/lib/reporting/researchUse';
+import { test, it } from '../support/fixtures';
 
 let db: Db;
 let collaborator: AppClient;
@@ -24,17 +25,13 @@ let studyId: string;
 let sampleRows: (typeof samples.$inferSelect)[];
 let fieldRows: (typeof fields.$inferSelect)[];
 
-beforeAll(async () => {
-  db = createDb(process.env.DATABASE_URL!, 2);
-  collaborator = await signedIn(DEMO.collaborator, DEMO_PASSWORD);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
+  collaborator = await signedIn('collaborator');
   const [study] = await db.select().from(studies).where(eq(studies.name, PILOT_STUDY_NAME));
   studyId = study.id;
   sampleRows = await db.select().from(samples).where(eq(samples.studyId, studyId));
   fieldRows = await db.select().from(fields).where(inArray(fields.sampleId, sampleRows.map((s) => s.id)));
-});
-
-afterAll(async () => {
-  await db?.$client.end();
 });
 
 const fieldOf = (code: string, name: string) => {
@@ -145,8 +142,8 @@ describe('the seeded demo pilot', () => {
     expect(cd63.pValue).toBeLessThan(0.05);
   });
 
-  it('carries the research-use caution on every result reply, export and page a collaborator or analyst opens', async () => {
-    const analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
+  it('carries the research-use caution on every result reply, export and page a collaborator or analyst opens', async ({ signedIn }) => {
+    const analyst = await signedIn('analyst');
     const sample = sampleRows.find((s) => s.code === 'PDAC-01')!;
     const field = fieldOf('PDAC-01', PILOT_FIELD_NAMES[0]);
     const q = new URLSearchParams({ groupA: 'pancreatic cancer', groupB: 'healthy control' });

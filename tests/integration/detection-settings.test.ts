@@ -4,18 +4,17 @@
  * become fiducial candidates under a 150 nm cut-off; a manual threshold drops the low vesicles; bad input, the wrong
  * role and an approved or busy field change nothing.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { AppClient } from '../support/client';
 import { BEAD_FIELD, beadFluorescence, beadScene, insertBeadField } from '../support/beadField';
 import { applyAffine } from '../../src/lib/analysis/geometry';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { fields, linkRuns, samples } from '../../src/lib/db/schema';
 import type { FieldDetection } from '../../src/lib/jobs/detectionTypes';
 import type { DetectionSettings } from '../../src/lib/schemas/detectionSettings';
+import { test, it } from '../support/fixtures';
 
-const env = process.env as Record<string, string>;
 const AFM_NM = BEAD_FIELD.afmPixelNm;
 const scene = beadScene();
 const beads = scene.truth.filter((t) => t.kind === 'bead');
@@ -59,10 +58,10 @@ async function detectAgain(settings: DetectionSettings | null) {
 const nearestBead = (p: { x: number; y: number }) => Math.min(...beads.map((b) => Math.hypot(b.xPx - p.x, b.yPx - p.y)));
 const defaults = (): DetectionSettings => ({ threshold: { method: 'robust', k: 3 }, minHeightNm: 2, minAreaNm2: 9 * AFM_NM * AFM_NM, beadMinHeightNm: 300, levellingOrder: 1 });
 
-beforeAll(async () => {
-  db = createDb(env.DATABASE_URL, 2);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
   [analyst, biologist, collaborator] = await Promise.all([
-    signedIn(DEMO.analyst, DEMO_PASSWORD), signedIn(DEMO.biologist, DEMO_PASSWORD), signedIn(DEMO.collaborator, DEMO_PASSWORD),
+    signedIn('analyst'), signedIn('biologist'), signedIn('collaborator'),
   ]);
   // a sample of its own in the demo study, so the demo samples stay as seeded
   const [demo] = await db.select().from(samples).where(eq(samples.code, 'HCP-001'));
@@ -74,7 +73,6 @@ beforeAll(async () => {
 }, 150_000);
 afterAll(async () => {
   if (sampleId) await db.delete(samples).where(eq(samples.id, sampleId));
-  await db?.$client.end();
 });
 
 describe('detection settings of a field', () => {

@@ -2,7 +2,7 @@
  * Faults with the real services: PostgreSQL stopped and restarted under the running app, the object
  * store unreachable during field creation, and a worker killed in the middle of an ingestion job.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
 import { createServer } from 'node:net';
@@ -11,11 +11,10 @@ import { join } from 'node:path';
 import { tmpdir } from 'node:os';
 import type { APIContext } from 'astro';
 import { eq, sql } from 'drizzle-orm';
-import { signedIn } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import { DEMO } from '../support/demo';
 import { clusterDir, findBinDir, runPg } from '../../scripts/lib/postgres';
 import { startS3 } from '../../scripts/lib/s3';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { fields, fieldFiles, samples, tileSets, users } from '../../src/lib/db/schema';
 import { createStorage, type Storage } from '../../src/lib/storage/client';
 import { listKeys, putBytes } from '../../src/lib/storage/objects';
@@ -28,6 +27,7 @@ import { QUEUES } from '../../src/lib/jobs/queues';
 import PgBoss from 'pg-boss';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { insertDemoField } from '../../scripts/seedDemoFields';
+import { test, it } from '../support/fixtures';
 
 const env = process.env as Record<string, string>;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -40,8 +40,8 @@ function expectNoInternals(text: string) {
 
 let sampleId: string;
 
-beforeAll(async () => {
-  db = createDb(env.DATABASE_URL, 2);
+test.beforeAll(async ({ db: fileDb }) => {
+  db = fileDb;
   // a sample of its own in the demo study, so the demo samples' results stay as seeded
   const [demo] = await db.select().from(samples).where(eq(samples.code, 'HCP-001'));
   const [s] = await db.insert(samples).values({ studyId: demo.studyId, code: `FAULTS-${Date.now()}` }).returning();
@@ -49,7 +49,6 @@ beforeAll(async () => {
 });
 afterAll(async () => {
   await (await getBoss(env.DATABASE_URL)).stop({ graceful: false }).catch(() => undefined);
-  await db?.$client.end();
 });
 
 describe('PostgreSQL restarts while the app runs', () => {
@@ -57,8 +56,8 @@ describe('PostgreSQL restarts while the app runs', () => {
   const pgdata = clusterDir(join(env.HEIGHTLIGHT_DATA_DIR, 'postgres'));
   const start = () => runPg(pgCtl, ['-D', pgdata, '-l', join(pgdata, 'server.log'), '-w', '-t', '60', 'restart']);
 
-  it('answers 503 JSON during the outage and recovers without an app restart', { timeout: 150_000 }, async () => {
-    const c = await signedIn(DEMO.biologist, DEMO_PASSWORD);
+  it('answers 503 JSON during the outage and recovers without an app restart', { timeout: 150_000 }, async ({ signedIn }) => {
+    const c = await signedIn('biologist');
     expect((await c.fetch('/api/studies')).status).toBe(200);
     // Wait until no job is running: a worker whose job is mid-flight when PostgreSQL goes away
     // currently exits (pg-boss's fail() rejects unhandled), which would stop later files' ingestion.

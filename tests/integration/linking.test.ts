@@ -2,16 +2,16 @@
  * Linking through the job worker on a demo field whose truth is known: marker calls against the
  * generator's truth, idempotent re-runs, streamed CSV, and approval with optimistic concurrency.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { eq, count } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { AppClient } from '../support/client';
 import { demoField } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine, fitAffine } from '../../src/lib/analysis/geometry';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { vesicles, linkRuns } from '../../src/lib/db/schema';
+import { test, it } from '../support/fixtures';
 
 let analyst: AppClient;
 let admin: AppClient;
@@ -31,10 +31,10 @@ async function waitFor(status: string, timeoutMs = 90_000) {
   throw new Error(`field did not reach ${status}`);
 }
 
-beforeAll(async () => {
-  analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
-  admin = await signedIn(DEMO.admin, DEMO_PASSWORD);
-  db = createDb(process.env.DATABASE_URL!, 2);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  analyst = await signedIn('analyst');
+  admin = await signedIn('admin');
+  db = fileDb;
   fieldId = await demoField(spec.code);
   const beads = truth.truth.filter((t) => t.kind === 'bead');
   const pairs = beads.map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
@@ -42,7 +42,6 @@ beforeAll(async () => {
   const save = await analyst.json(`/api/fields/${fieldId}/registration`, 'POST', { basedOnVersion: versions[0]?.version ?? 0, pairs });
   expect(save.status).toBe(201);
 });
-afterAll(async () => { await db.$client.end(); });
 
 describe('linking a field', () => {
   it('links every vesicle with calls that match the truth, and a re-run leaves the same rows', async () => {

@@ -5,16 +5,17 @@
  * the null's mean + k·SD (the x_L = x̄_blank + k·s_blank form of docs/references.md §9, IUPAC Gold Book L03540); with an
  * isotype control the control's 0.99 amplitude quantile (Hyndman & Fan 1996, definition 7; docs/references.md §6) sets the specificity.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect } from 'vitest';
 import { and, desc, eq, inArray } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { AppClient } from '../support/client';
+import { DEMO } from '../support/demo';
 import { ownDemoField, ownStudy } from '../support/demoField';
 import { makeDemoPair } from '../../fixtures/demoScene';
 import { DEMO_FIELDS } from '../../scripts/seedDemoFields';
 import { applyAffine } from '../../src/lib/analysis/geometry';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { auditLog, linkRuns, markerChannels, samples, vesicles } from '../../src/lib/db/schema';
+import { test, it } from '../support/fixtures';
 
 let analyst: AppClient;
 let collaborator: AppClient;
@@ -72,11 +73,11 @@ async function callsOf(runId: string, channel: number) {
   };
 }
 
-beforeAll(async () => {
-  analyst = await signedIn(DEMO.analyst, DEMO_PASSWORD);
-  collaborator = await signedIn(DEMO.collaborator, DEMO_PASSWORD);
-  biologist = await signedIn(DEMO.biologist, DEMO_PASSWORD);
-  db = createDb(process.env.DATABASE_URL!, 2);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  analyst = await signedIn('analyst');
+  collaborator = await signedIn('collaborator');
+  biologist = await signedIn('biologist');
+  db = fileDb;
   // a study of its own (the demo panel and members): its thresholds change here while other files link the demo study
   studyId = await ownStudy('Positivity settings test');
   fieldId = await ownDemoField(spec.code, 'POS', 120_000, studyId);
@@ -93,10 +94,6 @@ beforeAll(async () => {
   expect((await analyst.fetch(`/api/fields/${fieldId}/link`, { method: 'POST' })).status).toBe(202);
   await waitForNewRun(before?.id);
 }, 240_000);
-
-afterAll(async () => {
-  await db.$client.end();
-});
 
 describe('positivity settings per marker', () => {
   it('refuses bad input with 400 and changes nothing; collaborators and biologists get 403', async () => {

@@ -7,18 +7,18 @@
  * - vesicles outside a channel's frame are "not measured" there and leave that marker's denominators;
  * - a bead under a fiducial pick (100–200 nm, below the 300 nm default cut-off) never reaches the released table.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { and, eq } from 'drizzle-orm';
-import { signedIn, type AppClient } from '../support/client';
-import { DEMO, DEMO_PASSWORD } from '../support/demo';
+import type { AppClient } from '../support/client';
 import { correlativeScene, insertCorrelativeField } from '../support/correlativeField';
-import { createDb, type Db } from '../../src/lib/db/client';
+import type { Db } from '../../src/lib/db/client';
 import { beads, fields, linkRunMarkerCounts, linkRunPhenotypes, linkRuns, releases, samples, vesicles } from '../../src/lib/db/schema';
 import type { FieldDetection } from '../../src/lib/jobs/detectionTypes';
 import type { DetectionSettings } from '../../src/lib/schemas/detectionSettings';
 import { createStorage } from '../../src/lib/storage/client';
 import { getBytes, putBytes } from '../../src/lib/storage/objects';
 import { detectionKey } from '../../src/lib/storage/keys';
+import { test, it } from '../support/fixtures';
 
 const env = process.env as Record<string, string>;
 const scene = correlativeScene(4242);
@@ -61,9 +61,9 @@ async function link() {
 
 const currentRun = async () => (await db.select().from(linkRuns).where(and(eq(linkRuns.fieldId, fieldId), eq(linkRuns.current, true))))[0];
 
-beforeAll(async () => {
-  db = createDb(env.DATABASE_URL, 2);
-  [analyst, biologist] = await Promise.all([signedIn(DEMO.analyst, DEMO_PASSWORD), signedIn(DEMO.biologist, DEMO_PASSWORD)]);
+test.beforeAll(async ({ db: fileDb, signedIn }) => {
+  db = fileDb;
+  [analyst, biologist] = await Promise.all([signedIn('analyst'), signedIn('biologist')]);
   // a sample of its own in the demo study (no control kind), so the demo samples stay as seeded
   const [demo] = await db.select().from(samples).where(eq(samples.code, 'HCP-001'));
   const [s] = await db.insert(samples).values({ studyId: demo.studyId, code: `VSET-${Date.now()}` }).returning();
@@ -74,7 +74,6 @@ beforeAll(async () => {
 }, 660_000);
 afterAll(async () => {
   if (sampleId) await db.delete(samples).where(eq(samples.id, sampleId));
-  await db?.$client.end();
 });
 
 describe('one vesicle set from review to release', () => {
