@@ -1,24 +1,30 @@
 /**
- * Backup and restore against the real test services: `npm run backup` of the running setup, then
+ * Backup and restore against the real test services: `npm run backup` of a setup of this file's own (a database
+ * copied from the suite's template and a bucket, holding one demo field's rows and raw files), then
  * `npm run restore` into a fresh database on the same PostgreSQL server and a fresh bucket on the
  * same s3rver; every table's row count and every object's SHA-256 must come back.
  */
-import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { describe, expect, afterAll } from 'vitest';
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { mkdtempSync, readFileSync, writeFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { tmpdir } from 'node:os';
 import pg from 'pg';
-import { DeleteObjectsCommand, DeleteBucketCommand } from '@aws-sdk/client-s3';
+import { CreateBucketCommand, DeleteObjectsCommand, DeleteBucketCommand } from '@aws-sdk/client-s3';
+import { eq } from 'drizzle-orm';
 import { createStorage, type Storage } from '../../src/lib/storage/client';
 import { getBytes, listKeys } from '../../src/lib/storage/objects';
 import type { Manifest } from '../../scripts/backup';
+import { DEMO_FIELDS, insertDemoField } from '../../scripts/seedDemoFields';
+import { samples } from '../../src/lib/db/schema';
+import { test, it } from '../support/fixtures';
 
 const env = process.env as Record<string, string>;
 const n = `${Date.now()}_${process.pid}`;
 const restoreDb = `heightlight_restore_${n}`;
 const restoreBucket = `restore-${n}`.replace(/_/g, '-');
+const sourceBucket = `backup-source-${n}`.replace(/_/g, '-');
 const work = mkdtempSync(join(tmpdir(), 'hl-backup-test-'));
 const out = join(work, 'backup');
 
@@ -27,8 +33,8 @@ const withDb = (url: string, name: string) => {
   u.pathname = `/${name}`;
   return u.toString();
 };
-const sourceUrl = env.DATABASE_URL;
-const targetUrl = withDb(sourceUrl, restoreDb);
+let sourceUrl: string;
+const targetUrl = withDb(env.DATABASE_URL, restoreDb);
 const storageFor = (bucket: string): Storage =>
   createStorage({ endpoint: env.S3_ENDPOINT, region: 'us-east-1', bucket, accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY, forcePathStyle: true });
 
@@ -66,37 +72,40 @@ async function objectHashes(st: Storage): Promise<Record<string, string>> {
   return out;
 }
 
-beforeAll(async () => {
-  // Let the demo fields finish processing, so tables and bucket hold still while we compare.
-  const until = Date.now() + 60_000;
-  while (Date.now() < until) {
-    const [r] = await query<{ n: number }>(sourceUrl, `SELECT count(*)::int AS n FROM fields WHERE status = 'ingesting'`);
-    if (r.n === 0) break;
-    await new Promise((res) => setTimeout(res, 500));
-  }
-  await query(withDb(sourceUrl, 'postgres'), `CREATE DATABASE ${restoreDb}`);
+// The source is this file's own database and bucket: they hold still while we compare (the suite's worker and
+// other files never write to them), and the backup copies one field's objects rather than the whole suite's.
+test.beforeAll(async ({ ownDb }) => {
+  sourceUrl = ownDb.url;
+  const source = storageFor(sourceBucket);
+  await source.s3.send(new CreateBucketCommand({ Bucket: sourceBucket }));
+  const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-001')!;
+  const [sample] = await ownDb.db.select().from(samples).where(eq(samples.code, spec.code));
+  await insertDemoField(ownDb.db, source, { sampleId: sample.id, name: spec.name, seed: spec.seed, positiveFractions: spec.positiveFractions, filePrefix: 'backup' });
+  await query(withDb(env.DATABASE_URL, 'postgres'), `CREATE DATABASE ${restoreDb}`);
 });
 
 afterAll(async () => {
-  await query(withDb(sourceUrl, 'postgres'), `DROP DATABASE IF EXISTS ${restoreDb} WITH (FORCE)`).catch(() => undefined);
-  const st = storageFor(restoreBucket);
-  const keys = await listKeys(st, '').catch(() => [] as string[]);
-  for (let i = 0; i < keys.length; i += 1000) {
-    await st.s3.send(new DeleteObjectsCommand({ Bucket: restoreBucket, Delete: { Objects: keys.slice(i, i + 1000).map((Key) => ({ Key })) } }));
+  await query(withDb(env.DATABASE_URL, 'postgres'), `DROP DATABASE IF EXISTS ${restoreDb} WITH (FORCE)`).catch(() => undefined);
+  for (const bucket of [restoreBucket, sourceBucket]) {
+    const st = storageFor(bucket);
+    const keys = await listKeys(st, '').catch(() => [] as string[]);
+    for (let i = 0; i < keys.length; i += 1000) {
+      await st.s3.send(new DeleteObjectsCommand({ Bucket: bucket, Delete: { Objects: keys.slice(i, i + 1000).map((Key) => ({ Key })) } }));
+    }
+    await st.s3.send(new DeleteBucketCommand({ Bucket: bucket })).catch(() => undefined);
   }
-  await st.s3.send(new DeleteBucketCommand({ Bucket: restoreBucket })).catch(() => undefined);
   rmSync(work, { recursive: true, force: true });
 });
 
 describe('backup and restore', () => {
   it('restores every row and every object into an empty database and bucket', async () => {
-    const source = storageFor(env.S3_BUCKET);
+    const source = storageFor(sourceBucket);
     const countsBefore = await rowCounts(sourceUrl);
     const hashesBefore = await objectHashes(source);
     expect(countsBefore['public.fields']).toBeGreaterThan(0);
     expect(Object.keys(hashesBefore).length).toBeGreaterThan(0);
 
-    const b = npmRun('backup', ['--out', out]);
+    const b = npmRun('backup', ['--out', out], { DATABASE_URL: sourceUrl, S3_BUCKET: sourceBucket });
     expect(b.out).toContain('[backup] done');
     expect(b.code).toBe(0);
     const countsAfter = await rowCounts(sourceUrl);
