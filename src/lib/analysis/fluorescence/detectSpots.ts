@@ -61,6 +61,12 @@ export interface DetectSpotsOptions {
    * @default 1
    */
   gainCountsPerPhoton?: number;
+  /**
+   * The raster's robust noise SD (counts) when the caller already has it: correctBackground's residualSigmaCounts is
+   * robustNoiseSigma of this same corrected frame, so passing it saves computing it again.
+   * @default robustNoiseSigma(raster.data).sigma
+   */
+  pixelSigmaCounts?: number;
 }
 
 /** Result of {@link detectSpots}. */
@@ -124,7 +130,7 @@ export function detectSpots(raster: Raster, options: DetectSpotsOptions): Detect
   const log = laplacianOfGaussian(raster, sigmaPx).data;
   const logStats = robustNoiseSigma(log);
   const thresholdLog = logStats.median + thresholdK * logStats.sigma;
-  const pixelSigmaCounts = robustNoiseSigma(data).sigma;
+  const pixelSigmaCounts = options.pixelSigmaCounts ?? robustNoiseSigma(data).sigma;
 
   // local maxima: ties are broken towards the later pixel so a plateau yields one maximum
   const candidates: number[] = [];

@@ -108,7 +108,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     const bg = correctBackground(c.raster, { cameraOffsetCounts });
     correctedByMarker[c.marker] = bg;
     spotsByMarker[c.marker] = detectSpots(bg.corrected, {
-      sigmaPx: sigmaPxByMarker[c.marker], thresholdK: spotThresholdK, background: bg.background,
+      sigmaPx: sigmaPxByMarker[c.marker], thresholdK: spotThresholdK, background: bg.background, pixelSigmaCounts: bg.summary.residualSigmaCounts,
     }).spots;
     onProgress('spots', (i + 1) / channels.length);
   });
@@ -163,7 +163,9 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
     const bg = correctedByMarker[m];
     // dim spots: those of a lower threshold not already detected (one column per emitter, never two)
     const detected = nearAny(spotsByMarker[m], 1.5);
-    dimSpotsByMarker[m] = detectSpots(bg.corrected, { sigmaPx, thresholdK: dimSpotThresholdK, background: bg.background, refine: 'centroid' })
+    dimSpotsByMarker[m] = detectSpots(bg.corrected, {
+      sigmaPx, thresholdK: dimSpotThresholdK, background: bg.background, refine: 'centroid', pixelSigmaCounts: bg.summary.residualSigmaCounts,
+    })
       .spots.filter((s) => !detected(s)).map((s) => ({ x: s.x, y: s.y }));
     const avoid = [...vesiclesFl, ...fiducialsFl, ...spotsByMarker[m], ...dimSpotsByMarker[m]];
     const nullZ = calibrateNullZ(c.raster, avoid, {
