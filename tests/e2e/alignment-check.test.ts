@@ -20,8 +20,8 @@ const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFr
 const beads = truth.truth.filter((t) => t.kind === 'bead');
 let fieldId: string;
 
-test.beforeAll(async ({ signedIn }) => {
-  fieldId = await demoField(spec.code);
+test.beforeAll(async ({ db, signedIn }) => {
+  fieldId = await demoField(db, spec.code);
   const analyst = await signedIn('analyst');
   const pairs = beads.map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
   const versions = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;

@@ -20,7 +20,7 @@ const q = async <T = Record<string, unknown>>(text: string, params: unknown[] = 
 test.beforeAll(async ({ db: fileDb }) => {
   db = fileDb;
   // a study of its own (the demo panel and members): its thresholds change here while other files link the demo study
-  studyId = await ownStudy('Positivity settings e2e');
+  studyId = await ownStudy(db, 'Positivity settings e2e');
   [{ id: sampleId }] = await q<{ id: string }>(`insert into samples (study_id, code) values ($1, $2) returning id`, [studyId, code]);
   [{ id: fieldId }] = await q<{ id: string }>(`insert into fields (sample_id, name, status) values ($1, 'grid P1', 'linked') returning id`, [sampleId]);
   // a run as the linking job saves it: CD9 set by hand, CD63 from empty places, CD81 from controls

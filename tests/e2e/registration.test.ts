@@ -21,9 +21,9 @@ import { test, it } from '../support/fixtures';
 let fieldId: string;
 /** A second analyst of the demo study, invited through the admin API for this test. */
 const secondAnalyst = { email: `analyst-two-${Date.now()}@lab.example`, password: 'second-analyst-pw-42' };
-test.beforeAll(async ({ signedIn }) => {
+test.beforeAll(async ({ db, signedIn }) => {
   // a copy of HCP-001's field of its own: other tests register and release the seeded one
-  fieldId = await ownDemoField('HCP-001', 'REG');
+  fieldId = await ownDemoField(db, 'HCP-001', 'REG');
   const admin = await signedIn('admin');
   expect((await admin.json('/api/admin/invitations', 'POST', { email: secondAnalyst.email, name: 'Second Analyst', role: 'analyst' })).status).toBe(201);
   const { token } = linkIn((await waitForMail(secondAnalyst.email, 'invitation')).text);

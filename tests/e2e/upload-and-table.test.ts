@@ -46,10 +46,10 @@ describe('upload in Chromium', () => {
 });
 
 describe('vesicle table in Chromium', () => {
-  it('opens a linked demo field, filters the table and downloads the CSV', async ({ newPage, signedIn }) => {
+  it('opens a linked demo field, filters the table and downloads the CSV', async ({ db, newPage, signedIn }) => {
     // link the HCP-003 demo field through the API first (bead pairs from the generator's truth)
     const analyst = await signedIn('analyst');
-    const fieldId = await demoField('HCP-003');
+    const fieldId = await demoField(db, 'HCP-003');
     const spec = DEMO_FIELDS.find((f) => f.code === 'HCP-003')!;
     const truth = makeDemoPair({ seed: spec.seed, positiveFractions: spec.positiveFractions });
     const pairs = truth.truth.filter((t) => t.kind === 'bead').map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));

@@ -51,7 +51,7 @@ async function showOnly(page: Page, names: string[], keep: string) {
 
 describe('per-channel display in the field viewer', () => {
   it('changes one channel only, keeps the read-out raw and resets', async ({ db, newPage }) => {
-    const fieldId = await demoField('HCP-001');
+    const fieldId = await demoField(db, 'HCP-001');
     const sets = await db.select().from(tileSets).where(eq(tileSets.fieldId, fieldId));
     const chans = sets.filter((s) => s.layer.startsWith('ch')).sort((a, b) => a.layer.localeCompare(b.layer));
     expect(chans.length).toBeGreaterThanOrEqual(2);

@@ -61,7 +61,7 @@ test.beforeAll(async ({ db, signedIn }) => {
   for (const role of ['admin', 'biologist'] as const) clients[role] = await signedIn(role);
   // a processed field of its own, so routes that need one judge the body rather than answer 409 not_ready
   // (the seeded ones are registered, linked or released by other tests in any order)
-  const fieldId = await ownDemoField('HCP-001', 'BADREQ');
+  const fieldId = await ownDemoField(db, 'HCP-001', 'BADREQ');
   const [f] = await db.select().from(fields).where(eq(fields.id, fieldId));
   const [s] = await db.select().from(samples).where(eq(samples.id, f.sampleId));
   const [u] = await db.select().from(users).where(eq(users.email, DEMO.collaborator));

@@ -35,7 +35,7 @@ test.beforeAll(async ({ db: fileDb, signedIn }) => {
   analyst = await signedIn('analyst');
   admin = await signedIn('admin');
   db = fileDb;
-  fieldId = await demoField(spec.code);
+  fieldId = await demoField(db, spec.code);
   const beads = truth.truth.filter((t) => t.kind === 'bead');
   const pairs = beads.map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(truth.flFromAfm, { x: b.xPx, y: b.yPx }) }));
   const versions = (await (await analyst.fetch(`/api/fields/${fieldId}/registration`)).json()).versions;

@@ -79,8 +79,8 @@ test.beforeAll(async ({ db: fileDb, signedIn }) => {
   biologist = await signedIn('biologist');
   db = fileDb;
   // a study of its own (the demo panel and members): its thresholds change here while other files link the demo study
-  studyId = await ownStudy('Positivity settings test');
-  fieldId = await ownDemoField(spec.code, 'POS', 120_000, studyId);
+  studyId = await ownStudy(db, 'Positivity settings test');
+  fieldId = await ownDemoField(db, spec.code, 'POS', 120_000, studyId);
   const status = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field.status;
   if (status === 'approved') {
     const f = (await (await analyst.fetch(`/api/fields/${fieldId}`)).json()).field;
@@ -204,7 +204,7 @@ describe('positivity settings per marker', () => {
   it("with an isotype control linked, the 0.99 quantile of its vesicles' amplitudes is the specificity threshold; a hand-set threshold still wins", async () => {
     const iso = DEMO_FIELDS.find((f) => f.code === 'HCP-ISO')!;
     const isoTruth = makeDemoPair({ seed: iso.seed, positiveFractions: iso.positiveFractions });
-    const isoId = await ownDemoField(iso.code, 'POS-ISO', 120_000, studyId);
+    const isoId = await ownDemoField(db, iso.code, 'POS-ISO', 120_000, studyId);
     const isoField = (await (await analyst.fetch(`/api/fields/${isoId}`)).json()).field;
     if (!['linked', 'approved'].includes(isoField.status)) {
       const pairs = isoTruth.truth.filter((t) => t.kind === 'bead').map((b) => ({ afm: { x: b.xPx, y: b.yPx }, fl: applyAffine(isoTruth.flFromAfm, { x: b.xPx, y: b.yPx }) }));

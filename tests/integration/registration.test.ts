@@ -15,12 +15,12 @@ const square = [
   { afm: { x: 100, y: 600 }, fl: { x: 40.5, y: 120 } },
 ];
 
-test.beforeAll(async ({ signedIn }) => {
+test.beforeAll(async ({ db, signedIn }) => {
   analyst = await signedIn('analyst');
   admin = await signedIn('admin');
   biologist = await signedIn('biologist');
   // a demo field the browser test does not use
-  fieldId = await demoField('HCP-003');
+  fieldId = await demoField(db, 'HCP-003');
 });
 
 describe('saving registrations', () => {

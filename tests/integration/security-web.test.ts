@@ -24,7 +24,7 @@ test.beforeAll(async ({ db: fileDb, signedIn }) => {
   db = fileDb;
   admin = await signedIn('admin');
   // a study of its own (demo members and panel), renamed and with a marker named like a formula
-  studyId = await ownStudy('Security CSV');
+  studyId = await ownStudy(db, 'Security CSV');
   await db.update(studies).set({ name: HOSTILE_STUDY }).where(eq(studies.id, studyId));
   const panel = await db.select().from(markerChannels).where(eq(markerChannels.studyId, studyId)).orderBy(markerChannels.channelIndex);
   await db.update(markerChannels).set({ marker: '+1-1' }).where(eq(markerChannels.id, panel[0].id));
