@@ -33,7 +33,7 @@ test.beforeAll(async ({ db: fileDb }) => {
 });
 
 afterAll(async () => {
-  await db?.$client.query(`update marker_channels set positivity_k = 3, manual_threshold_counts = null where study_id = $1`, [studyId]);
+  await db?.$client.query(`update marker_channels set positivity_k = 2.58, manual_threshold_counts = null where study_id = $1`, [studyId]);
   await db?.$client.query(`delete from samples where id = $1`, [sampleId]);
 });
 
@@ -48,7 +48,7 @@ describe('positivity settings in Chromium', () => {
     await card.getByLabel('k for CD63').fill('0');
     await card.getByRole('button', { name: 'Save thresholds' }).click();
     await expect.poll(async () => card.getByRole('status').textContent()).toMatch(/k must be at least 0\.5/);
-    expect(await q(`select marker from marker_channels where study_id = $1 and positivity_k <> 3`, [studyId])).toEqual([]);
+    expect(await q(`select marker from marker_channels where study_id = $1 and positivity_k <> 2.58::real`, [studyId])).toEqual([]);
 
     await card.getByLabel('k for CD63').fill('4');
     await card.getByLabel('threshold set by hand for CD9 (counts)').fill('250');
@@ -56,7 +56,7 @@ describe('positivity settings in Chromium', () => {
     await expect.poll(async () => card.getByRole('status').textContent()).toMatch(/Thresholds saved/);
     const rows = await q<{ marker: string; k: number; manual: number | null }>(
       `select marker, positivity_k as k, manual_threshold_counts as manual from marker_channels where study_id = $1 order by channel_index`, [studyId]);
-    expect(rows).toEqual([{ marker: 'CD9', k: 3, manual: 250 }, { marker: 'CD63', k: 4, manual: null }, { marker: 'CD81', k: 3, manual: null }]);
+    expect(rows).toEqual([{ marker: 'CD9', k: 2.58, manual: 250 }, { marker: 'CD63', k: 4, manual: null }, { marker: 'CD81', k: 2.58, manual: null }]);
 
     // the run above used 180 counts for CD9 and k = 3 for CD63: listed with both markers, and a button to link it again
     const listed = card.getByTestId('linked-with-other-settings');

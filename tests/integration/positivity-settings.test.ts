@@ -101,7 +101,7 @@ describe('positivity settings per marker', () => {
     for (const [markers, pattern] of [
       [[{ marker: 'CD63', positivityK: 0, manualThresholdCounts: null }], /k must be at least 0\.5/],
       [[{ marker: 'CD63', positivityK: 10.5, manualThresholdCounts: null }], /k must be at most 10/],
-      [[{ marker: 'CD63', positivityK: 3.25, manualThresholdCounts: null }], /steps of 0\.1/],
+      [[{ marker: 'CD63', positivityK: 3.255, manualThresholdCounts: null }], /steps of 0\.01/],
       [[{ marker: 'CD9', positivityK: 3, manualThresholdCounts: -1 }], /above 0 counts/],
       [[{ marker: 'CD47', positivityK: 3, manualThresholdCounts: null }], /"CD47" is not in this study's panel \(CD9, CD63, CD81\)/],
       [[{ marker: 'CD9', positivityK: 4, manualThresholdCounts: null }, { marker: 'CD9', positivityK: 5, manualThresholdCounts: null }], /Each marker may appear once/],
@@ -121,9 +121,9 @@ describe('positivity settings per marker', () => {
     expect(await panelRows()).toEqual(before);
   });
 
-  it('k = 5 gives a higher derived threshold than k = 3, listed as linked with other settings until linked again', async () => {
+  it('k = 5 gives a higher derived threshold than the default k = 2.58 (one-sided p < 0.005), listed as linked with other settings until linked again', async () => {
     const run3 = (await currentRun())!;
-    expect(run3.settings.k).toMatchObject({ CD63: 3 });
+    expect(run3.settings.k).toMatchObject({ CD63: 2.58 });
     const t3 = (run3.settings.thresholds as Record<string, number>).CD63;
     const set = await put(analyst, [{ marker: 'CD63', positivityK: 5, manualThresholdCounts: null }]);
     expect(set.status).toBe(200);
@@ -131,26 +131,26 @@ describe('positivity settings per marker', () => {
     expect(body.markers.find((m: { marker: string }) => m.marker === 'CD63')).toMatchObject({ positivityK: 5, manualThresholdCounts: null });
     const listed = body.fieldsLinkedWithOtherSettings.find((f: { id: string }) => f.id === fieldId);
     expect(listed.markers.map((m: { marker: string }) => m.marker)).toEqual(['CD63']);
-    expect(listed.markers[0].used).toMatchObject({ k: 3, thresholdCounts: t3 });
+    expect(listed.markers[0].used).toMatchObject({ k: 2.58, thresholdCounts: t3 });
     const [entry] = await db.select().from(auditLog).where(and(eq(auditLog.action, 'panel.changed'), eq(auditLog.targetId, studyId))).orderBy(desc(auditLog.id)).limit(1);
     expect(entry.actorEmail).toBe(DEMO.analyst);
-    expect(entry.details).toMatchObject({ positivity: [{ marker: 'CD63', from: { k: 3, manualThresholdCounts: null }, to: { k: 5, manualThresholdCounts: null } }] });
+    expect(entry.details).toMatchObject({ positivity: [{ marker: 'CD63', from: { k: 2.58, manualThresholdCounts: null }, to: { k: 5, manualThresholdCounts: null } }] });
 
     const queued = await relink(analyst, [fieldId]);
     expect(queued.status).toBe(202);
     expect((await queued.json()).queued).toEqual([fieldId]);
     const run5 = await waitForNewRun(run3.id);
     const t5 = (run5.settings.thresholds as Record<string, number>).CD63;
-    expect(run5.settings.k).toMatchObject({ CD9: 3, CD63: 5, CD81: 3 });
+    expect(run5.settings.k).toMatchObject({ CD9: 2.58, CD63: 5, CD81: 2.58 });
     expect(t5).toBeGreaterThan(t3);
     const rule = (run5.settings.thresholdRule as Record<string, string>).CD63;
     expect(rule).toBe((run3.settings.thresholdRule as Record<string, string>).CD63);
     if (rule === 'camera_noise') {
       // k is the calibrated z a vesicle must exceed; on the same empty places of the same frame the amplitude a lone
-      // vesicle needs is the null's mean + k·SD, so the thresholds differ by (5 − 3)·SD
+      // vesicle needs is the null's mean + k·SD, so the thresholds differ by (5 − 2.58)·SD
       const ch = (run5.summary as { channels: Record<string, { backgroundMeanCounts: number; backgroundSdCounts: number }> }).channels.CD63;
       expect(t5).toBeCloseTo(ch.backgroundMeanCounts + 5 * ch.backgroundSdCounts, 6);
-      expect(t5 - t3).toBeCloseTo(2 * ch.backgroundSdCounts, 6);
+      expect(t5 - t3).toBeCloseTo((5 - 2.58) * ch.backgroundSdCounts, 6);
     } else {
       // control samples linked in this study: their 0.99 amplitude quantile, or the noise threshold where higher
       expect(rule).toBe('control');
@@ -224,7 +224,7 @@ describe('positivity settings per marker', () => {
     const { n, q99 } = await controlQuantile(1);
     expect(n).toBeGreaterThanOrEqual(100);
     expect(run.settings.thresholdRule).toMatchObject({ CD9: 'manual', CD63: 'control', CD81: 'control' });
-    expect(run.settings.k).toMatchObject({ CD9: null, CD63: 4.5, CD81: 3 });
+    expect(run.settings.k).toMatchObject({ CD9: null, CD63: 4.5, CD81: 2.58 });
     // the isotype control's own threshold is the 0.99 quantile of its vesicles' stored CD63 amplitudes (k plays no
     // part there; it is the z a vesicle must also reach above camera noise), so the amplitude needed is the larger of the two
     const fromControls = (run.settings.controlThresholds as Record<string, number>).CD63;

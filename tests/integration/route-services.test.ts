@@ -185,7 +185,7 @@ describe('replacePanel and setPositivity: transactions over the marker channels'
       { marker: 'CD63', antibodyClone: 'H5C6', fluorophore: 'AF488', excitationNm: 488, emissionNm: 520 },
       { marker: 'CD81', antibodyClone: '', fluorophore: '', excitationNm: null, emissionNm: null },
     ]);
-    expect(panel.map((c) => [c.channelIndex, c.marker, c.positivityK, c.manualThresholdCounts])).toEqual([[0, 'CD63', 4.5, 820], [1, 'CD81', 3, null]]);
+    expect(panel.map((c) => [c.channelIndex, c.marker, c.positivityK, c.manualThresholdCounts])).toEqual([[0, 'CD63', 4.5, 820], [1, 'CD81', 2.58, null]]);
     expect((await auditOf(studyId)).map((a) => [a.action, a.details])).toEqual([['panel.changed', { panel: ['CD63', 'CD81'] }]]);
   });
 
@@ -201,16 +201,16 @@ describe('replacePanel and setPositivity: transactions over the marker channels'
     const studyId = await newStudy(['CD9', 'CD63', 'CD81']);
     const e = await refusal(setPositivity(db, by, studyId, [{ marker: 'CD9', positivityK: 5, manualThresholdCounts: null }, { marker: 'TSG101', positivityK: 3, manualThresholdCounts: null }]));
     expect([e.status, e.code, e.message]).toEqual([400, 'unknown_marker', '"TSG101" is not in this study\'s panel (CD9, CD63, CD81).']);
-    expect(await q(`select positivity_k from marker_channels where study_id = $1 and marker = 'CD9'`, [studyId])).toEqual([{ positivity_k: 3 }]);
+    expect(await q(`select positivity_k from marker_channels where study_id = $1 and marker = 'CD9'`, [studyId])).toEqual([{ positivity_k: 2.58 }]);
 
     const out = await setPositivity(db, by, studyId, [
-      { marker: 'CD9', positivityK: 3, manualThresholdCounts: null }, // as it was: not audited
+      { marker: 'CD9', positivityK: 2.58, manualThresholdCounts: null }, // as it was (the default): not audited
       { marker: 'CD81', positivityK: 2.5, manualThresholdCounts: 1200 },
     ]);
-    expect(out.markers.map((m) => [m.marker, m.positivityK, m.manualThresholdCounts])).toEqual([['CD9', 3, null], ['CD63', 3, null], ['CD81', 2.5, 1200]]);
+    expect(out.markers.map((m) => [m.marker, m.positivityK, m.manualThresholdCounts])).toEqual([['CD9', 2.58, null], ['CD63', 2.58, null], ['CD81', 2.5, 1200]]);
     expect(out.fieldsLinkedWithOtherSettings).toEqual([]);
     expect((await auditOf(studyId)).map((a) => a.details)).toEqual([{
-      positivity: [{ marker: 'CD81', from: { k: 3, manualThresholdCounts: null }, to: { k: 2.5, manualThresholdCounts: 1200 } }],
+      positivity: [{ marker: 'CD81', from: { k: 2.58, manualThresholdCounts: null }, to: { k: 2.5, manualThresholdCounts: 1200 } }],
     }]);
     // the same settings again change nothing and write no audit entry
     await setPositivity(db, by, studyId, [{ marker: 'CD81', positivityK: 2.5, manualThresholdCounts: 1200 }]);

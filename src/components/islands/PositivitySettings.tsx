@@ -67,7 +67,7 @@ export default function PositivitySettings({ studyId, canEdit, markers, fieldsLi
               <td className="font-semibold">{r.marker}</td>
               <td>
                 {canEdit
-                  ? <input className="input w-24" type="number" min={POSITIVITY_K_MIN} max={POSITIVITY_K_MAX} step={0.1} aria-label={`k for ${r.marker}`} value={r.kText} onChange={(e) => set(i, { kText: e.target.value })} />
+                  ? <input className="input w-24" type="number" min={POSITIVITY_K_MIN} max={POSITIVITY_K_MAX} step={0.01} aria-label={`k for ${r.marker}`} value={r.kText} onChange={(e) => set(i, { kText: e.target.value })} />
                   : r.positivityK}
               </td>
               <td>

@@ -1,7 +1,7 @@
 import './zodConfig';
 import { z } from 'zod';
 
-/** Bounds of k in mean + k SD (dimensionless); 3 is common practice. */
+/** Bounds of k, the calibrated z a vesicle must exceed (dimensionless); the default is 2.58 (one-sided p < 0.005). */
 export const POSITIVITY_K_MIN = 0.5;
 export const POSITIVITY_K_MAX = 10;
 /** Largest hand-set threshold accepted (counts of joint amplitude): far above any 16-bit frame's PSF total. */
@@ -10,10 +10,10 @@ export const MANUAL_THRESHOLD_MAX_COUNTS = 1e9;
 /** One marker's positivity setting as sent by the study page. */
 export const MarkerPositivity = z.object({
   marker: z.string().trim().min(1, 'Name the marker').max(40),
-  positivityK: z.number({ error: 'Give k as a number, e.g. 3' })
+  positivityK: z.number({ error: 'Give k as a number, e.g. 2.58' })
     .min(POSITIVITY_K_MIN, `k must be at least ${POSITIVITY_K_MIN}`)
     .max(POSITIVITY_K_MAX, `k must be at most ${POSITIVITY_K_MAX}`)
-    .refine((k) => Math.abs(k * 10 - Math.round(k * 10)) < 1e-6, 'Give k in steps of 0.1, e.g. 3.5'),
+    .refine((k) => Math.abs(k * 100 - Math.round(k * 100)) < 1e-6, 'Give k in steps of 0.01, e.g. 2.58'),
   manualThresholdCounts: z.number({ error: 'Give the threshold as a number of counts, or leave it empty' })
     .positive('A hand-set threshold must be above 0 counts; leave it empty to derive the threshold')
     .max(MANUAL_THRESHOLD_MAX_COUNTS, `A hand-set threshold must be at most ${MANUAL_THRESHOLD_MAX_COUNTS} counts`)

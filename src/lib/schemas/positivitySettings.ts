@@ -1,7 +1,8 @@
 /**
- * Positivity settings of a study's markers (k of mean + k SD, or a threshold set by hand) and what a link run
+ * Positivity settings of a study's markers (k, the calibrated z to exceed, or a threshold set by hand) and what a link run
  * recorded it used, so linking, the study page and the review panel read one form. Pure: no I/O, safe in islands.
  */
+import { DEFAULT_Z_CRITICAL } from '../analysis/linking/describeMarkerCallRule';
 
 /**
  * How a marker was called: 'camera_noise' (calibrated z above k: detected above camera and background noise),
@@ -10,13 +11,20 @@
  */
 export type ThresholdRule = 'manual' | 'camera_noise' | 'control' | 'control_mean_k_sd' | 'background_mean_k_sd';
 
-/** k used when nothing else is set (mean + 3 SD, common practice). */
-export const DEFAULT_POSITIVITY_K = 3;
+/**
+ * k (the calibrated z a vesicle must exceed) when nothing else is set: the analysis core's default, 2.58 (one-sided
+ * p < 0.005), so the study page, linking and the command line use one number. Panels set up before this default
+ * keep the 3 they were given.
+ */
+export const DEFAULT_POSITIVITY_K = DEFAULT_Z_CRITICAL;
+
+/** k of link runs saved before per-marker settings, which did not record one: they all used 3. */
+const LEGACY_RUN_K = 3;
 
 /** One marker's settings as kept on the panel. */
 export interface MarkerPositivitySetting {
   marker: string;
-  /** k of mean + k SD (dimensionless, 0.5–10 in steps of 0.1). */
+  /** k: the calibrated z a vesicle must exceed (dimensionless, 0.5–10 in steps of 0.01). */
   positivityK: number;
   /** Threshold set by hand (joint amplitude, counts); replaces the derived one when not null. */
   manualThresholdCounts: number | null;
@@ -34,10 +42,10 @@ export interface MarkerPositivityUsed {
 }
 
 /**
- * k as kept in the database (a 4-byte real, so 3.1 reads as 3.0999999) back to its 0.1 step.
+ * k as kept in the database (a 4-byte real, so 3.1 reads as 3.0999999) back to its 0.01 step.
  * @param k - stored k
  */
-export const roundK = (k: number) => Math.round(k * 10) / 10;
+export const roundK = (k: number) => Math.round(k * 100) / 100;
 
 /** Words for a rule, for people (thresholds in counts of joint amplitude). */
 export function describeRule(used: MarkerPositivityUsed): string {
@@ -67,7 +75,7 @@ export function positivityUsed(settings: Record<string, unknown> | null | undefi
   const k = rule === 'manual' ? null
     : typeof ks === 'number' ? ks
       : ks && typeof ks === 'object' && typeof (ks as Record<string, unknown>)[marker] === 'number' ? (ks as Record<string, number>)[marker]
-        : DEFAULT_POSITIVITY_K;
+        : LEGACY_RUN_K;
   const t = thresholds[marker];
   const sentence = ((settings.ruleSentence ?? {}) as Record<string, unknown>)[marker];
   return { rule, k, thresholdCounts: typeof t === 'number' ? t : null, ...(typeof sentence === 'string' ? { sentence } : {}) };

@@ -1,12 +1,14 @@
 import type { MarkerCallRule, ThresholdControlKind } from './types';
 
 /**
- * Calibrated z a vesicle must exceed to be called above camera noise: 2.576 is the one-sided standard-normal
- * quantile of p = 0.005, so about 1 unlabelled vesicle in 200 per marker is called positive by noise alone, half
- * the 1 % false-positive rate a reviewer would accept; a stricter 3.09 (p = 0.001) misses a quarter of the dimmest
- * labelled vesicles (300–400 photons on 100 photons/px, z ≈ 3–4), see docs/marker-calls.md.
+ * Calibrated z a vesicle must exceed to be called above camera noise: 2.58, the one-sided standard-normal quantile
+ * of p = 0.005 (2.5758) rounded up to the 0.01 step of the study's positivity settings, so the web app and the
+ * command line use the same number (one-sided p = 0.0049). About 1 unlabelled vesicle in 200 per marker is called
+ * positive by noise alone, half the 1 % false-positive rate a reviewer would accept; a stricter 3.09 (p = 0.001)
+ * misses a quarter of the dimmest labelled vesicles (300–400 photons on 100 photons/px, z ≈ 3–4), see
+ * docs/marker-calls.md.
  */
-export const DEFAULT_Z_CRITICAL = 2.5758;
+export const DEFAULT_Z_CRITICAL = 2.58;
 
 /** Quantile of the control vesicles' joint amplitudes that a vesicle must exceed under the control rule. */
 export const DEFAULT_CONTROL_QUANTILE = 0.99;

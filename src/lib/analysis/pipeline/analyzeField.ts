@@ -63,7 +63,7 @@ export function analyzeField(input: AnalyzeFieldInput, options: AnalyzeFieldOpti
   } = input;
   const cameraOffsetCounts = options.cameraOffsetCounts ?? givenCamera.offsetCounts ?? 0;
   validateInput(input);
-  // z_crit per marker (calibrated z of the camera-noise test); 2.576 = one-sided p < 0.005
+  // z_crit per marker (calibrated z of the camera-noise test); default 2.58 = one-sided p < 0.005
   const positivityKByMarker = options.positivityKByMarker ?? {};
   for (const [m, k] of Object.entries(positivityKByMarker)) {
     if (!(k > 0) || !Number.isFinite(k)) throw new RangeError(`positivityKByMarker.${m} must be a positive finite number, got ${k}`);

@@ -88,7 +88,7 @@ export interface AnalyzeFieldOptions {
   spotThresholdK?: number;
   /**
    * z_crit per marker: a vesicle is detected above camera noise when its calibrated z (its amplitude in SDs of the
-   * empty places' null) exceeds k. @default 2.576 for every marker (one-sided p < 0.005)
+   * empty places' null) exceeds k. @default 2.58 for every marker (one-sided p < 0.005)
    */
   positivityKByMarker?: Readonly<Record<string, number>>;
   /** Spots found at this lower LoG threshold (robust SDs) are avoided by the null places and fitted as their own sources. @default 3 */

@@ -64,8 +64,11 @@ export const markerChannels = pgTable(
     fluorophore: text().notNull().default(''),
     excitationNm: real(),
     emissionNm: real(),
-    /** Positivity threshold = mean + k SD of the control vesicles' amplitudes (or of empty places without controls). */
-    positivityK: real().notNull().default(3),
+    /**
+     * k: the calibrated z a vesicle's amplitude must exceed to be called positive (with controls, also above their 0.99
+     * quantile). Default 2.58 (one-sided p < 0.005), the analysis core's DEFAULT_Z_CRITICAL; panels made earlier keep 3.
+     */
+    positivityK: real().notNull().default(2.58),
     /** A threshold set by hand (joint amplitude, counts); when set it replaces the derived one. */
     manualThresholdCounts: real(),
   },

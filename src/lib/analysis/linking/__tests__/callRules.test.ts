@@ -37,7 +37,7 @@ describe('callMarkerAmplitudes', () => {
     expect(calls[2].qValue).toBeCloseTo(Math.min(3 * 0.00255513, 1.5 * 0.02275013, 0.11506967), 7);
     expect(calls[1].qValue).toBeCloseTo(Math.min(1.5 * 0.02275013, 0.11506967), 7);
     expect(calls[0].qValue).toBeCloseTo(0.11506967, 7);
-    // only calibrated z 2.8 passes 2.576
+    // only calibrated z 2.8 passes 2.58
     expect(calls.map((c) => c.positive)).toEqual([false, false, true, null]);
     expect(calls[3]).toEqual({ z: null, zCalibrated: null, pValue: null, qValue: null, positive: null });
   });

@@ -139,7 +139,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
     }
   });
 
-  it('calls each marker above camera noise: calibrated z > 2.576 (one-sided p < 0.005), null from empty places', () => {
+  it('calls each marker above camera noise: calibrated z > 2.58 (one-sided p < 0.005), null from empty places', () => {
     // the joint amplitude is what is tested, in SEs of the camera noise model; the null is the median/MAD of z at
     // empty places (docs/references.md §4 for the SE, §7 for BH q)
     for (const m of picked.summary.markers) {
@@ -147,7 +147,7 @@ describe('analyzeField on a synthetic field with known truth', () => {
       expect(c.thresholdSource).toBe('camera_noise');
       expect(c.rule).toBe('camera_noise');
       expect(c.ruleSentence).toMatch(/^Positive: detected above camera noise/);
-      expect(c.zCritical).toBeCloseTo(2.576, 3);
+      expect(c.zCritical).toBe(2.58);
       expect(c.nullCalibrated).toBe(true);
       // z at empty places of a Poisson frame follows N(0, 1) when the model is right: median ≈ 0, MAD ≈ 1; places next
       // to spots are fitted with them, conditional on the ones NNLS clips, which shifts the median a little (the

@@ -1,0 +1,1 @@
+ALTER TABLE "marker_channels" ALTER COLUMN "positivity_k" SET DEFAULT 2.58;
