@@ -11,7 +11,7 @@ interface Props { studyId: string; canEdit: boolean; markers: Row[]; fieldsLinke
 const fmtCounts = (v: number | null) => (v == null ? '–' : `${Number(v.toPrecision(6))} counts`);
 
 /**
- * Per marker: k of mean + k SD, or a threshold set by hand (counts of joint amplitude); then the fields whose current
+ * Per marker: k (the calibrated z to exceed), or a threshold set by hand (counts of joint amplitude); then the fields whose current
  * results were linked with other settings, with a button to link them again.
  */
 export default function PositivitySettings({ studyId, canEdit, markers, fieldsLinkedWithOtherSettings }: Props) {
@@ -55,7 +55,8 @@ export default function PositivitySettings({ studyId, canEdit, markers, fieldsLi
     <div className="space-y-3 text-sm" data-testid="positivity-settings">
       <p className="text-mica-600">
         A vesicle is called positive for a marker when its joint amplitude stands above camera noise: its z (amplitude over
-        its standard error), calibrated at empty places of the same frame, exceeds k. With an isotype or secondary-only
+        its standard error), calibrated at empty places of the same frame, exceeds k (default 2.58: one unlabelled
+        vesicle in 200 called positive by noise, one-sided p &lt; 0.005). With an isotype or secondary-only
         control linked, the amplitude must also exceed the control vesicles&apos; 0.99 quantile. A threshold set by hand
         (counts) replaces both.
       </p>
